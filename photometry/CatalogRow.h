@@ -1,0 +1,34 @@
+#pragma once
+// One catalog source, reduced to what the census needs. Units are in the names; a missing value is
+// NaN (floating point) or kMissingSourceId.
+#include <cstdint>
+#include <limits>
+
+namespace starcensus::photometry {
+
+inline constexpr std::int64_t kMissingSourceId = std::numeric_limits<std::int64_t>::min();
+inline constexpr double kMissing = std::numeric_limits<double>::quiet_NaN();
+
+struct CatalogRow {
+    std::int64_t source_id = kMissingSourceId;
+    double ra_deg = kMissing;
+    double dec_deg = kMissing;
+    double parallax_mas = kMissing;
+    double parallax_error_mas = kMissing;
+    double pmra_mas_per_yr = kMissing;
+    double pmdec_mas_per_yr = kMissing;
+    double g_mag = kMissing;  // Gaia G (Vega)
+    double bp_mag = kMissing; // Gaia G_BP
+    double rp_mag = kMissing; // Gaia G_RP
+    double g_error_mag = kMissing;
+    double bp_error_mag = kMissing;
+    double rp_error_mag = kMissing;
+    double j_mag = kMissing; // 2MASS J
+    double h_mag = kMissing; // 2MASS H
+    double ks_mag = kMissing; // 2MASS Ks
+    double ruwe = kMissing;   // renormalised unit weight error (dimensionless)
+    std::uint32_t file_index = 0; // which input file the row came from
+    std::int64_t row_index = 0;   // 0-based row within that file's table
+};
+
+} // namespace starcensus::photometry

@@ -1,0 +1,48 @@
+#pragma once
+// The classes a census counts, and the numeric spectral-type code used throughout.
+//
+// Spectral code: O0 = 0, B0 = 10, A0 = 20, F0 = 30, G0 = 40, K0 = 50, M0 = 60, L0 = 70, T0 = 80, Y0 = 90,
+// so G2V is 42.0 and M4.5V is 64.5 (common practice, no source: the usual decimal subtype scale).
+#include <array>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+
+namespace starcensus::photometry {
+
+enum class StellarClass : std::uint8_t {
+    O,
+    B,
+    A,
+    F,
+    G,
+    K,
+    M,
+    L,
+    T,
+    Y,
+    WhiteDwarf,
+    Evolved,
+    Unclassified,
+};
+
+inline constexpr std::size_t kClassCount = 13;
+inline constexpr std::array<std::string_view, kClassCount> kClassNames = {
+    "O", "B", "A", "F", "G", "K", "M", "L", "T", "Y", "WD", "evolved", "unclassified"};
+
+constexpr std::string_view className(StellarClass c) { return kClassNames[static_cast<std::size_t>(c)]; }
+
+std::optional<StellarClass> classFromName(std::string_view name);
+
+/// The dwarf letter class (O..Y) of a spectral code; codes beyond Y9.5 stay Y.
+StellarClass dwarfClassOfCode(double spectral_code);
+
+/// "G2.0V"-style label of a spectral code.
+std::string spectralTypeLabel(double spectral_code);
+
+/// Parse "M4.5 V", "G2V", "L1", "T7.5" (luminosity class ignored) into a spectral code; nullopt if it is
+/// not a recognised dwarf type.
+std::optional<double> parseSpectralType(std::string_view type);
+
+} // namespace starcensus::photometry

@@ -1,0 +1,19 @@
+#include "photometry/StellarClass.h"
+
+#include <doctest/doctest.h>
+
+using namespace starcensus::photometry;
+
+TEST_CASE("spectral codes follow the decimal MK subtype scale") {
+    // Convention stated in StellarClass.h (common practice, no source).
+    CHECK(parseSpectralType("G2V").value() == doctest::Approx(42.0));
+    CHECK(parseSpectralType("M4.5 V").value() == doctest::Approx(64.5));
+    CHECK(parseSpectralType("L1").value() == doctest::Approx(71.0));
+    CHECK_FALSE(parseSpectralType("DA2").has_value());
+    CHECK_FALSE(parseSpectralType("").has_value());
+    CHECK(dwarfClassOfCode(64.5) == StellarClass::M);
+    CHECK(dwarfClassOfCode(99.9) == StellarClass::Y);
+    CHECK(spectralTypeLabel(42.0) == "G2.0V");
+    CHECK(classFromName("WD") == StellarClass::WhiteDwarf);
+    CHECK_FALSE(classFromName("Q").has_value());
+}
