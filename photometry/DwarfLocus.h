@@ -12,11 +12,11 @@ struct LocusPoint {
     std::string spectral_type; // e.g. "G2V"
     double spectral_code;      // see StellarClass.h
     double teff_k;
-    double abs_g_mag;          // M_G
-    double bp_rp_mag;          // G_BP - G_RP
-    double g_rp_mag;           // G - G_RP
-    double abs_j_mag;          // M_J (2MASS)
-    double abs_ks_mag;         // M_Ks (2MASS)
+    double abs_g_mag;  // M_G
+    double bp_rp_mag;  // G_BP - G_RP
+    double g_rp_mag;   // G - G_RP
+    double abs_j_mag;  // M_J (2MASS)
+    double abs_ks_mag; // M_Ks (2MASS)
     double mass_msun;
 };
 

@@ -1,0 +1,61 @@
+#pragma once
+// Distance posteriors from a measured parallax, and the probability that a star lies within a radius.
+//
+// Likelihood: the measured parallax is Gaussian about the true one, p(plx_obs | t) = N(plx_obs; t, sigma),
+// with the catalogue's error inflated by a factor and the zero-point offset subtracted first
+// (Lindegren et al. 2021, A&A 649, A4). Priors on the distance r = 1000 / t pc:
+//  - constant space density, p(r) ∝ r^2 for 0 < r <= r_max, i.e. p(t) ∝ t^-4 for t >= 1000 / r_max
+//    (Lutz & Kelker 1973, PASP 85, 573; Bailer-Jones 2015, PASP 127, 994, Sect. 5);
+//  - flat in parallax, p(t) = const for t >= 1000 / r_max (a "no prior" reference case).
+// Then P(r < R | plx_obs) = ∫_{1000/R}^∞ p(t) N(plx_obs; t, sigma) dt / ∫_{1000/r_max}^∞ (same) dt.
+#include <array>
+#include <cstdint>
+#include <vector>
+
+namespace starcensus::census {
+
+enum class DistancePrior : std::uint8_t { ConstantDensity, FlatParallax };
+
+/// Settings of the membership model; the defaults are the documented ones.
+struct MembershipSettings {
+    DistancePrior prior = DistancePrior::ConstantDensity;
+    double outer_distance_pc = 200.0;      // prior truncation r_max (pc); must exceed every census radius
+    double parallax_zero_point_mas = 0.0;  // subtracted from measured parallaxes (mas); DR3: about -0.017
+    double parallax_error_inflation = 1.0; // multiplies catalogue parallax errors (dimensionless)
+};
+
+/// The posterior of one star's true parallax, tabulated for fast probabilities and random draws.
+class DistancePosterior {
+  public:
+    /// Quantile nodes stored for random draws (distance modulus at equally spaced probabilities).
+    static constexpr int kQuantileNodes = 65;
+
+    /// parallax_mas and parallax_error_mas are the catalogue values (before zero point and inflation).
+    DistancePosterior(double parallax_mas, double parallax_error_mas, const MembershipSettings& settings);
+
+    /// P(true distance < radius_pc).
+    double probabilityWithin(double radius_pc) const;
+
+    /// Posterior median distance (pc).
+    double medianDistancePc() const;
+
+    /// Distance modulus 5 log10(d / 10 pc) at cumulative probability u in [0, 1], interpolated.
+    double distanceModulusAt(double u) const;
+
+    /// The tabulated distance moduli at u = k / (kQuantileNodes - 1), nearest star first.
+    const std::array<float, kQuantileNodes>& distanceModulusQuantiles() const { return modulus_quantiles_; }
+
+  private:
+    std::vector<double> true_parallax_mas_; // grid, increasing
+    std::vector<double> cdf_in_parallax_;   // P(t < grid value), increasing from 0 to 1
+    std::array<float, kQuantileNodes> modulus_quantiles_{};
+};
+
+/// Probability within radius_pc for one star, without keeping its table.
+double membershipProbability(double parallax_mas, double parallax_error_mas, double radius_pc,
+                             const MembershipSettings& settings);
+
+/// The classic hard cut: corrected parallax > 1000 / radius_pc.
+bool insideByHardCut(double parallax_mas, double radius_pc, const MembershipSettings& settings);
+
+} // namespace starcensus::census

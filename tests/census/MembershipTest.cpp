@@ -1,0 +1,68 @@
+#include "census/Membership.h"
+
+#include "tests/support/Subprocess.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <sstream>
+
+using namespace starcensus::census;
+
+TEST_CASE("membership probabilities agree with direct integration by scipy") {
+    // Reference: scipy.integrate.quad of the same posterior (tests/python/membership_reference.py),
+    // Bailer-Jones 2015, PASP 127, 994. Tolerance 2e-4 absolute: the trapezoid grid is ~0.05 sigma.
+    const auto reference = starcensus::testing::runReferencePython("membership_reference.py");
+    REQUIRE(reference.exit_code == 0);
+    std::istringstream lines(reference.output);
+    std::string prior;
+    double parallax = 0, error = 0, radius = 0, outer = 0, expected = 0;
+    constexpr double kTolerance = 2e-4;
+    int compared = 0;
+    double worst = 0.0;
+    while (lines >> prior >> parallax >> error >> radius >> outer >> expected) {
+        MembershipSettings settings;
+        settings.outer_distance_pc = outer;
+        settings.prior = prior == "constant" ? DistancePrior::ConstantDensity : DistancePrior::FlatParallax;
+        const double computed = membershipProbability(parallax, error, radius, settings);
+        worst = std::max(worst, std::abs(computed - expected));
+        CHECK_MESSAGE(std::abs(computed - expected) < kTolerance,
+                      prior << " plx=" << parallax << " err=" << error << " R=" << radius);
+        ++compared;
+    }
+    CHECK(compared == 144);
+    MESSAGE("largest difference from scipy: " << worst);
+}
+
+TEST_CASE("the small-error limit of the membership probability is the hard parallax cut") {
+    const MembershipSettings settings;
+    for (const double parallax : {99.0, 99.9, 100.1, 101.0}) {
+        const double probability = membershipProbability(parallax, 1e-4, 10.0, settings);
+        CHECK(probability == doctest::Approx(insideByHardCut(parallax, 10.0, settings) ? 1.0 : 0.0));
+    }
+}
+
+TEST_CASE("zero point and error inflation act on the parallax before the likelihood") {
+    MembershipSettings shifted;
+    shifted.parallax_zero_point_mas = -0.5; // parallax too small by 0.5 mas
+    MembershipSettings plain;
+    CHECK(membershipProbability(99.6, 0.2, 10.0, shifted) ==
+          doctest::Approx(membershipProbability(100.1, 0.2, 10.0, plain)).epsilon(1e-9));
+    MembershipSettings inflated;
+    inflated.parallax_error_inflation = 2.0;
+    CHECK(membershipProbability(101.0, 0.5, 10.0, inflated) ==
+          doctest::Approx(membershipProbability(101.0, 1.0, 10.0, plain)).epsilon(1e-9));
+}
+
+TEST_CASE("distance-modulus quantiles follow the posterior") {
+    // For a 1% parallax error the posterior is nearly Gaussian in parallax: the median distance modulus is
+    // that of the measured parallax to within the Lutz-Kelker shift (~4 (sigma/plx)^2 relative in plx).
+    const MembershipSettings settings;
+    const DistancePosterior posterior(100.0, 1.0, settings);
+    CHECK(posterior.medianDistancePc() == doctest::Approx(10.0).epsilon(2e-3));
+    // P(d < d(u)) = u by construction: check at the quartiles.
+    for (const double u : {0.25, 0.5, 0.75}) {
+        const double distance_pc = 10.0 * std::pow(10.0, posterior.distanceModulusAt(u) / 5.0);
+        CHECK(std::abs(posterior.probabilityWithin(distance_pc) - u) < 2e-3); // quantile-table interpolation
+    }
+}
