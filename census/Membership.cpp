@@ -17,10 +17,10 @@ double lowerParallaxLimitMas(const MembershipSettings& settings) {
     return 1000.0 / settings.outer_distance_pc;
 }
 
-double logPrior(double true_parallax_mas, DistancePrior prior) {
+double logPrior(double log_true_parallax, DistancePrior prior) {
     // Constant space density: p(r) dr ∝ r^2 dr with r = 1000/t gives p(t) ∝ t^-4 (Bailer-Jones 2015, Eq. 17
     // written in parallax).
-    return prior == DistancePrior::ConstantDensity ? -4.0 * std::log(true_parallax_mas) : 0.0;
+    return prior == DistancePrior::ConstantDensity ? -4.0 * log_true_parallax : 0.0;
 }
 
 double correctedParallax(double parallax_mas, const MembershipSettings& settings) {
@@ -48,13 +48,16 @@ DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_
     // t^-4 prior near the outer distance (even in log t).
     true_parallax_mas_.resize(kGridNodes);
     std::vector<double> log_density(kGridNodes);
-    const double log_ratio = std::log(upper / lower);
+    const double log_lower = std::log(lower);
+    const double log_step = std::log(upper / lower) / (kGridNodes - 1);
+    const double step_factor = std::exp(log_step);
     double max_log_density = -std::numeric_limits<double>::infinity();
-    for (int k = 0; k < kGridNodes; ++k) {
-        const double t = lower * std::exp(log_ratio * k / (kGridNodes - 1));
-        true_parallax_mas_[static_cast<std::size_t>(k)] = t;
-        const double z = (observed - t) / sigma;
-        log_density[static_cast<std::size_t>(k)] = logPrior(t, settings.prior) - 0.5 * z * z;
+    double grid_parallax = lower;
+    for (int k = 0; k < kGridNodes; ++k, grid_parallax *= step_factor) {
+        true_parallax_mas_[static_cast<std::size_t>(k)] = grid_parallax;
+        const double z = (observed - grid_parallax) / sigma;
+        log_density[static_cast<std::size_t>(k)] =
+            logPrior(log_lower + k * log_step, settings.prior) - 0.5 * z * z;
         max_log_density = std::max(max_log_density, log_density[static_cast<std::size_t>(k)]);
     }
 

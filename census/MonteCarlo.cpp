@@ -1,0 +1,186 @@
+#include "census/MonteCarlo.h"
+
+#include "census/Random.h"
+#include "census/detail/FastNormal.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numeric>
+#include <thread>
+
+namespace starcensus::census {
+
+namespace {
+
+// Stars per random stream and per unit of work handed to a thread.
+constexpr std::size_t kBlockStars = 256;
+
+unsigned resolveThreads(unsigned requested) {
+    return requested != 0 ? requested : std::max(1u, std::thread::hardware_concurrency());
+}
+
+/// Runs body(begin, end, thread) over [0, count) in contiguous blocks claimed in order by `threads`
+/// threads (blocks are static: thread t takes blocks t, t + threads, ...).
+template <class Body>
+void forEachBlock(std::size_t count, unsigned threads, Body&& body) {
+    const std::size_t blocks = (count + kBlockStars - 1) / kBlockStars;
+    const auto run = [&](unsigned thread) {
+        for (std::size_t block = thread; block < blocks; block += threads) {
+            body(block, block * kBlockStars, std::min(count, (block + 1) * kBlockStars), thread);
+        }
+    };
+    if (threads <= 1 || blocks <= 1) {
+        run(0);
+        return;
+    }
+    std::vector<std::jthread> workers;
+    for (unsigned t = 1; t < threads; ++t) {
+        workers.emplace_back(run, t);
+    }
+    run(0);
+}
+
+float quadratureSum(double a, double b) {
+    return static_cast<float>(std::sqrt(a * a + b * b));
+}
+
+float finiteOrZero(double value) {
+    return std::isfinite(value) ? static_cast<float>(value) : 0.0f;
+}
+
+} // namespace
+
+PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
+                               const MembershipSettings& membership, double min_parallax_snr_to_classify,
+                               unsigned threads)
+    : radii_pc_(std::move(radii_pc)) {
+    const std::size_t n = rows.size();
+    g_mag_.resize(n);
+    g_error_mag_.resize(n);
+    colour_mag_.resize(n);
+    colour_error_mag_.resize(n);
+    probability_within_.resize(n * radii_pc_.size());
+    modulus_quantiles_.resize(n * kQuantiles);
+    forEachBlock(n, resolveThreads(threads), [&](std::size_t, std::size_t begin, std::size_t end, unsigned) {
+        for (std::size_t s = begin; s < end; ++s) {
+            const photometry::CatalogRow& row = rows[s];
+            const bool classifiable =
+                row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas;
+            g_mag_[s] =
+                classifiable ? static_cast<float>(row.g_mag) : std::numeric_limits<float>::quiet_NaN();
+            g_error_mag_[s] = finiteOrZero(row.g_error_mag);
+            colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
+            colour_error_mag_[s] =
+                quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
+            const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
+            for (std::size_t r = 0; r < radii_pc_.size(); ++r) {
+                probability_within_[s * radii_pc_.size() + r] =
+                    static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
+            }
+            std::copy(posterior.distanceModulusQuantiles().begin(),
+                      posterior.distanceModulusQuantiles().end(),
+                      modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
+        }
+    });
+}
+
+double PreparedSample::expectedCount(std::size_t r) const {
+    double sum = 0.0;
+    for (std::size_t s = 0; s < size(); ++s) {
+        sum += probabilityWithin(s, r);
+    }
+    return sum;
+}
+
+/// The hot loop, with access to PreparedSample's arrays.
+class SampleDrawer {
+  public:
+    SampleDrawer(const PreparedSample& sample, const photometry::ClassGrid& classes,
+                 const DrawSettings& settings)
+        : sample_(sample), classes_(classes), settings_(settings) {}
+
+    DrawTallies run() const {
+        const unsigned threads = resolveThreads(settings_.threads);
+        const std::size_t radii = sample_.radii_pc_.size();
+        const std::size_t tally_size =
+            static_cast<std::size_t>(settings_.draws) * radii * photometry::kClassCount;
+        std::vector<std::vector<std::uint32_t>> per_thread(threads,
+                                                           std::vector<std::uint32_t>(tally_size, 0));
+        DrawTallies tallies;
+        tallies.draws = settings_.draws;
+        tallies.radii = radii;
+        tallies.star_classes.assign(sample_.size() * photometry::kClassCount, 0);
+        forEachBlock(sample_.size(), threads,
+                     [&](std::size_t block, std::size_t begin, std::size_t end, unsigned t) {
+                         drawBlock(block, begin, end, per_thread[t], tallies.star_classes);
+                     });
+        tallies.counts.assign(tally_size, 0);
+        for (const auto& partial : per_thread) {
+            std::transform(partial.begin(), partial.end(), tallies.counts.begin(), tallies.counts.begin(),
+                           std::plus<>());
+        }
+        return tallies;
+    }
+
+  private:
+    void drawBlock(std::size_t block, std::size_t begin, std::size_t end, std::vector<std::uint32_t>& counts,
+                   std::vector<std::uint32_t>& star_classes) const {
+        Xoshiro256 random(settings_.seed, block);
+        const std::size_t radii = sample_.radii_pc_.size();
+        constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
+        for (std::size_t s = begin; s < end; ++s) {
+            const float* quantiles = &sample_.modulus_quantiles_[s * PreparedSample::kQuantiles];
+            const float* within = &sample_.probability_within_[s * radii];
+            const float g = sample_.g_mag_[s];
+            const float g_error = sample_.g_error_mag_[s];
+            const float colour = sample_.colour_mag_[s];
+            const float colour_error = sample_.colour_error_mag_[s];
+            const bool has_colour = std::isfinite(colour);
+            const bool has_magnitude = std::isfinite(g);
+            std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
+            for (int d = 0; d < settings_.draws; ++d) {
+                const std::uint64_t bits_distance = random();
+                const std::uint64_t bits_photometry = random();
+                // 24 bits of u: the same u decides membership (u < P(d < R), exact) and the distance modulus
+                // (quantile function at u), so both come from one consistent distance.
+                const float u = static_cast<float>(bits_distance >> 40) * 0x1.0p-24f;
+                const float position = u * kQuantileSteps;
+                const int node = std::min(static_cast<int>(position), PreparedSample::kQuantiles - 2);
+                const float modulus = quantiles[node] + (position - static_cast<float>(node)) *
+                                                            (quantiles[node + 1] - quantiles[node]);
+                const float abs_g =
+                    g + g_error * normal_(static_cast<std::uint32_t>(bits_photometry)) - modulus;
+                photometry::StellarClass assigned = photometry::StellarClass::Unclassified;
+                if (has_colour && has_magnitude) {
+                    const float drawn_colour =
+                        colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
+                    assigned = classes_.lookup(drawn_colour, abs_g);
+                } else if (has_magnitude) {
+                    assigned = classes_.lookupMagnitudeOnly(abs_g);
+                }
+                const auto class_index = static_cast<std::size_t>(assigned);
+                ++classes_seen[class_index];
+                std::uint32_t* draw_counts =
+                    &counts[static_cast<std::size_t>(d) * radii * photometry::kClassCount + class_index];
+                for (std::size_t r = 0; r < radii; ++r) {
+                    draw_counts[r * photometry::kClassCount] += u < within[r] ? 1u : 0u;
+                }
+            }
+            std::copy(classes_seen.begin(), classes_seen.end(),
+                      star_classes.begin() + static_cast<std::ptrdiff_t>(s * photometry::kClassCount));
+        }
+    }
+
+    const PreparedSample& sample_;
+    const photometry::ClassGrid& classes_;
+    const DrawSettings& settings_;
+    detail::FastNormal normal_;
+};
+
+DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
+                       const DrawSettings& settings) {
+    return SampleDrawer(sample, classes, settings).run();
+}
+
+} // namespace starcensus::census

@@ -1,0 +1,74 @@
+#pragma once
+// Monte Carlo over the measurement errors (parallax, G, BP-RP): in each draw every candidate gets a true
+// distance from its membership posterior and photometry from its errors; membership in each radius,
+// absolute magnitude and class are recomputed and counted.
+//
+// Layout for speed: a structure of arrays built once (PreparedSample), processed star-major (each star's
+// tables stay in cache while all its draws are made), per-thread tallies summed at the end. Each block of
+// stars has its own random stream (seed, block), so the result is identical for any thread count.
+#include "census/Membership.h"
+#include "photometry/CatalogRow.h"
+#include "photometry/ClassGrid.h"
+#include "photometry/StellarClass.h"
+
+#include <cstdint>
+#include <span>
+#include <vector>
+
+namespace starcensus::census {
+
+/// Monte Carlo settings.
+struct DrawSettings {
+    int draws = 1000;       // number of realisations of the sample
+    std::uint64_t seed = 1; // master seed; each block of stars draws from stream (seed, block)
+    unsigned threads = 0;   // 0 = all hardware threads
+};
+
+/// The per-star inputs of the Monte Carlo, as a structure of arrays.
+class PreparedSample {
+  public:
+    static constexpr int kQuantiles = DistancePosterior::kQuantileNodes;
+
+    /// Stars without G, or with parallax_mas / parallax_error_mas below min_parallax_snr_to_classify, are
+    /// counted as members by their probabilities but always get the class `unclassified`.
+    PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
+                   const MembershipSettings& membership, double min_parallax_snr_to_classify,
+                   unsigned threads);
+
+    std::size_t size() const { return g_mag_.size(); }
+    const std::vector<double>& radii() const { return radii_pc_; }
+    /// P(d < radii()[r]) of star s.
+    float probabilityWithin(std::size_t s, std::size_t r) const {
+        return probability_within_[s * radii_pc_.size() + r];
+    }
+    /// Expected count within radii()[r]: the sum of the membership probabilities.
+    double expectedCount(std::size_t r) const;
+
+  private:
+    friend class SampleDrawer;
+    std::vector<double> radii_pc_;
+    std::vector<float> g_mag_; // NaN marks a star that is not classified
+    std::vector<float> g_error_mag_;
+    std::vector<float> colour_mag_; // BP-RP, NaN if either band is missing
+    std::vector<float> colour_error_mag_;
+    std::vector<float> probability_within_; // [star][radius]
+    std::vector<float> modulus_quantiles_;  // [star][kQuantiles], distance modulus (mag)
+};
+
+/// Counts per draw, radius and class, and per-star class frequencies.
+struct DrawTallies {
+    int draws = 0;
+    std::size_t radii = 0;
+    std::vector<std::uint32_t> counts;       // [(draw * radii + r) * kClassCount + class]
+    std::vector<std::uint32_t> star_classes; // [star * kClassCount + class]: draws with that class
+
+    std::uint32_t count(int draw, std::size_t r, photometry::StellarClass c) const {
+        return counts[(static_cast<std::size_t>(draw) * radii + r) * photometry::kClassCount +
+                      static_cast<std::size_t>(c)];
+    }
+};
+
+DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
+                       const DrawSettings& settings);
+
+} // namespace starcensus::census

@@ -1,0 +1,29 @@
+#include "photometry/ClassGrid.h"
+
+#include <cmath>
+
+namespace starcensus::photometry {
+
+ClassGrid::ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_colour,
+                     const MagnitudeClassifier& magnitude_only)
+    : axes_(axes), colour_min_(static_cast<float>(axes.colour_min_mag)),
+      magnitude_min_(static_cast<float>(axes.abs_mag_min_mag)),
+      inverse_cell_(static_cast<float>(1.0 / axes.cell_mag)),
+      colour_cells_(static_cast<int>(std::ceil((axes.colour_max_mag - axes.colour_min_mag) / axes.cell_mag))),
+      magnitude_cells_(
+          static_cast<int>(std::ceil((axes.abs_mag_max_mag - axes.abs_mag_min_mag) / axes.cell_mag))) {
+    by_colour_.resize(static_cast<std::size_t>(colour_cells_) * static_cast<std::size_t>(magnitude_cells_));
+    by_magnitude_.resize(static_cast<std::size_t>(magnitude_cells_));
+    for (int m = 0; m < magnitude_cells_; ++m) {
+        const double magnitude = axes.abs_mag_min_mag + (m + 0.5) * axes.cell_mag;
+        by_magnitude_[static_cast<std::size_t>(m)] = static_cast<std::uint8_t>(magnitude_only(magnitude));
+        for (int c = 0; c < colour_cells_; ++c) {
+            const double colour = axes.colour_min_mag + (c + 0.5) * axes.cell_mag;
+            by_colour_[static_cast<std::size_t>(m) * static_cast<std::size_t>(colour_cells_) +
+                       static_cast<std::size_t>(c)] =
+                static_cast<std::uint8_t>(with_colour(colour, magnitude));
+        }
+    }
+}
+
+} // namespace starcensus::photometry

@@ -1,0 +1,68 @@
+#pragma once
+// A rasterised classifier for the Monte Carlo hot loop: the class of every cell of a fine grid in
+// (BP-RP, M_G), and of a 1-D grid in M_G for objects without colours. Built once from the exact
+// classifier; a lookup is two multiplies and a load.
+#include "photometry/StellarClass.h"
+
+#include <cstdint>
+#include <functional>
+#include <vector>
+
+namespace starcensus::photometry {
+
+/// Extent and resolution of the grid (mag). Outside it, lookups clamp to the edge cells.
+struct ClassGridAxes {
+    double colour_min_mag = -1.0;
+    double colour_max_mag = 6.0;
+    double abs_mag_min_mag = -6.0;
+    double abs_mag_max_mag = 26.0;
+    double cell_mag = 0.02; // 0.02 mag: well below typical photometric errors near class boundaries
+};
+
+class ClassGrid {
+  public:
+    using ColourClassifier = std::function<StellarClass(double bp_rp_mag, double abs_g_mag)>;
+    using MagnitudeClassifier = std::function<StellarClass(double abs_g_mag)>;
+
+    /// Evaluates the classifiers at every cell centre.
+    ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_colour,
+              const MagnitudeClassifier& magnitude_only);
+
+    StellarClass lookup(float bp_rp_mag, float abs_g_mag) const noexcept {
+        return static_cast<StellarClass>(by_colour_[static_cast<std::size_t>(magnitudeCell(abs_g_mag)) *
+                                                        static_cast<std::size_t>(colour_cells_) +
+                                                    static_cast<std::size_t>(colourCell(bp_rp_mag))]);
+    }
+
+    StellarClass lookupMagnitudeOnly(float abs_g_mag) const noexcept {
+        return static_cast<StellarClass>(by_magnitude_[static_cast<std::size_t>(magnitudeCell(abs_g_mag))]);
+    }
+
+    const ClassGridAxes& axes() const { return axes_; }
+
+  private:
+    int colourCell(float colour) const noexcept { return cell(colour, colour_min_, colour_cells_); }
+    int magnitudeCell(float magnitude) const noexcept {
+        return cell(magnitude, magnitude_min_, magnitude_cells_);
+    }
+    int cell(float value, float minimum, int cells) const noexcept {
+        const float position = (value - minimum) * inverse_cell_;
+        // NaN and out-of-range values go to the edge cells (the comparison is false for NaN).
+        if (!(position >= 0.0f)) {
+            return 0;
+        }
+        const int index = static_cast<int>(position);
+        return index < cells ? index : cells - 1;
+    }
+
+    ClassGridAxes axes_;
+    float colour_min_;
+    float magnitude_min_;
+    float inverse_cell_;
+    int colour_cells_;
+    int magnitude_cells_;
+    std::vector<std::uint8_t> by_colour_;    // [magnitude cell][colour cell]
+    std::vector<std::uint8_t> by_magnitude_; // [magnitude cell]
+};
+
+} // namespace starcensus::photometry

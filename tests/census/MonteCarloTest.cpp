@@ -1,0 +1,93 @@
+#include "census/MonteCarlo.h"
+
+#include "census/Random.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <vector>
+
+using namespace starcensus;
+using photometry::StellarClass;
+
+namespace {
+
+// A toy classifier for exercising the engine (not a physical one): bright is K, faint is M, no colour is
+// L, so each path through the grid is visible in the counts.
+photometry::ClassGrid toyGrid() {
+    return photometry::ClassGrid(
+        photometry::ClassGridAxes{},
+        [](double, double abs_g) { return abs_g < 8.0 ? StellarClass::K : StellarClass::M; },
+        [](double) { return StellarClass::L; });
+}
+
+std::vector<photometry::CatalogRow> toyStars(int n, std::uint64_t seed) {
+    census::Xoshiro256 random(seed);
+    std::vector<photometry::CatalogRow> rows(static_cast<std::size_t>(n));
+    for (auto& row : rows) {
+        row.parallax_mas = 40.0 + 120.0 * random.uniform();
+        row.parallax_error_mas = 0.5 + 10.0 * random.uniform();
+        row.g_mag = 6.0 + 8.0 * random.uniform();
+        row.g_error_mag = 0.01;
+        row.bp_mag = row.g_mag + 0.5;
+        row.rp_mag = row.g_mag - 0.8;
+        row.bp_error_mag = 0.02;
+        row.rp_error_mag = 0.02;
+    }
+    return rows;
+}
+
+} // namespace
+
+TEST_CASE("Monte Carlo results do not depend on the thread count") {
+    const auto rows = toyStars(3000, 7);
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 1);
+    const census::PreparedSample sample_threaded(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 2);
+    const auto grid = toyGrid();
+    census::DrawSettings one_thread{.draws = 50, .seed = 11, .threads = 1};
+    census::DrawSettings two_threads{.draws = 50, .seed = 11, .threads = 2};
+    const auto a = census::drawSample(sample, grid, one_thread);
+    const auto b = census::drawSample(sample_threaded, grid, two_threads);
+    CHECK(a.counts == b.counts);
+    CHECK(a.star_classes == b.star_classes);
+    two_threads.seed = 12;
+    CHECK(census::drawSample(sample, grid, two_threads).counts != a.counts);
+}
+
+TEST_CASE("mean Monte Carlo counts equal the summed membership probabilities") {
+    const auto rows = toyStars(4000, 3);
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 0);
+    const auto tallies = census::drawSample(sample, toyGrid(), {.draws = 400, .seed = 5, .threads = 0});
+    for (std::size_t r = 0; r < 2; ++r) {
+        double total = 0.0;
+        for (int d = 0; d < tallies.draws; ++d) {
+            for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+                total += tallies.count(d, r, static_cast<StellarClass>(c));
+            }
+        }
+        const double mean = total / tallies.draws;
+        const double expected = sample.expectedCount(r);
+        // Each draw's count is a sum of Bernoulli variables: the mean of 400 draws scatters by at most
+        // sqrt(expected / 400) (binomial variance <= mean); allow 4 of those.
+        CHECK(std::abs(mean - expected) < 4.0 * std::sqrt(expected / 400.0));
+    }
+}
+
+TEST_CASE("stars too noisy to classify, or without colour, take the documented classes") {
+    std::vector<photometry::CatalogRow> rows(2);
+    rows[0].parallax_mas = 200.0; // 5 pc, M_G = 10 + 5 + 5 log10(0.2) = 11.5: toy class M
+    rows[0].parallax_error_mas = 0.1;
+    rows[0].g_mag = 10.0;
+    rows[0].g_error_mag = 0.001;
+    rows[1] = rows[0];
+    rows[1].bp_mag = 10.5;
+    rows[1].rp_mag = 9.2;
+    const auto grid = toyGrid();
+    const census::PreparedSample sample(rows, {10.0}, census::MembershipSettings{}, 5.0, 1);
+    const auto tallies = census::drawSample(sample, grid, {.draws = 20, .seed = 1, .threads = 1});
+    CHECK(tallies.count(0, 0, StellarClass::L) == 1); // no colour: magnitude-only grid
+    CHECK(tallies.count(0, 0, StellarClass::M) == 1);
+    const census::PreparedSample strict(rows, {10.0}, census::MembershipSettings{}, 5000.0, 1);
+    CHECK(census::drawSample(strict, grid, {.draws = 20, .seed = 1, .threads = 1})
+              .count(3, 0, StellarClass::Unclassified) == 2);
+}
