@@ -13,6 +13,9 @@ namespace starcensus::census {
 
 namespace {
 
+const photometry::Category kUnclassified =
+    photometry::categoryOf(photometry::StellarClass::Unclassified, 0.0);
+
 // Stars per random stream and per unit of work handed to a thread.
 constexpr std::size_t kBlockStars = 256;
 
@@ -85,6 +88,16 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     });
 }
 
+std::uint32_t DrawTallies::classCount(int draw, std::size_t r, photometry::StellarClass c) const {
+    std::uint32_t total = 0;
+    for (std::size_t category = 0; category < photometry::kCategoryCount; ++category) {
+        if (photometry::classOfCategory(static_cast<photometry::Category>(category)) == c) {
+            total += count(draw, r, static_cast<photometry::Category>(category));
+        }
+    }
+    return total;
+}
+
 double PreparedSample::expectedCount(std::size_t r) const {
     double sum = 0.0;
     for (std::size_t s = 0; s < size(); ++s) {
@@ -104,7 +117,7 @@ class SampleDrawer {
         const unsigned threads = resolveThreads(settings_.threads);
         const std::size_t radii = sample_.radii_pc_.size();
         const std::size_t tally_size =
-            static_cast<std::size_t>(settings_.draws) * radii * photometry::kClassCount;
+            static_cast<std::size_t>(settings_.draws) * radii * photometry::kCategoryCount;
         std::vector<std::vector<std::uint32_t>> per_thread(threads,
                                                            std::vector<std::uint32_t>(tally_size, 0));
         DrawTallies tallies;
@@ -139,6 +152,7 @@ class SampleDrawer {
             const bool has_colour = std::isfinite(colour);
             const bool has_magnitude = std::isfinite(g);
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
+            const auto draws = static_cast<std::size_t>(settings_.draws);
             for (int d = 0; d < settings_.draws; ++d) {
                 const std::uint64_t bits_distance = random();
                 const std::uint64_t bits_photometry = random();
@@ -151,7 +165,7 @@ class SampleDrawer {
                                                             (quantiles[node + 1] - quantiles[node]);
                 const float abs_g =
                     g + g_error * normal_(static_cast<std::uint32_t>(bits_photometry)) - modulus;
-                photometry::StellarClass assigned = photometry::StellarClass::Unclassified;
+                photometry::Category assigned = kUnclassified;
                 if (has_colour && has_magnitude) {
                     const float drawn_colour =
                         colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
@@ -159,12 +173,10 @@ class SampleDrawer {
                 } else if (has_magnitude) {
                     assigned = classes_.lookupMagnitudeOnly(abs_g);
                 }
-                const auto class_index = static_cast<std::size_t>(assigned);
-                ++classes_seen[class_index];
-                std::uint32_t* draw_counts =
-                    &counts[static_cast<std::size_t>(d) * radii * photometry::kClassCount + class_index];
+                ++classes_seen[static_cast<std::size_t>(photometry::classOfCategory(assigned))];
+                std::uint32_t* draw_counts = &counts[assigned * draws + static_cast<std::size_t>(d)];
                 for (std::size_t r = 0; r < radii; ++r) {
-                    draw_counts[r * photometry::kClassCount] += u < within[r] ? 1u : 0u;
+                    draw_counts[r * photometry::kCategoryCount * draws] += u < within[r] ? 1u : 0u;
                 }
             }
             std::copy(classes_seen.begin(), classes_seen.end(),

@@ -55,17 +55,21 @@ class PreparedSample {
     std::vector<float> modulus_quantiles_;  // [star][kQuantiles], distance modulus (mag)
 };
 
-/// Counts per draw, radius and class, and per-star class frequencies.
+/// Member counts per radius, census category and draw, and per-star class frequencies.
 struct DrawTallies {
     int draws = 0;
     std::size_t radii = 0;
-    std::vector<std::uint32_t> counts;       // [(draw * radii + r) * kClassCount + class]
+    // [(r * kCategoryCount + category) * draws + draw]: draw-fastest, so a star whose category is stable
+    // across draws walks memory sequentially.
+    std::vector<std::uint32_t> counts;
     std::vector<std::uint32_t> star_classes; // [star * kClassCount + class]: draws with that class
 
-    std::uint32_t count(int draw, std::size_t r, photometry::StellarClass c) const {
-        return counts[(static_cast<std::size_t>(draw) * radii + r) * photometry::kClassCount +
-                      static_cast<std::size_t>(c)];
+    std::uint32_t count(int draw, std::size_t r, photometry::Category category) const {
+        return counts[(r * photometry::kCategoryCount + category) * static_cast<std::size_t>(draws) +
+                      static_cast<std::size_t>(draw)];
     }
+    /// The member count of a whole class in one draw.
+    std::uint32_t classCount(int draw, std::size_t r, photometry::StellarClass c) const;
 };
 
 DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,

@@ -16,12 +16,11 @@ ClassGrid::ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_col
     by_magnitude_.resize(static_cast<std::size_t>(magnitude_cells_));
     for (int m = 0; m < magnitude_cells_; ++m) {
         const double magnitude = axes.abs_mag_min_mag + (m + 0.5) * axes.cell_mag;
-        by_magnitude_[static_cast<std::size_t>(m)] = static_cast<std::uint8_t>(magnitude_only(magnitude));
+        by_magnitude_[static_cast<std::size_t>(m)] = magnitude_only(magnitude);
         for (int c = 0; c < colour_cells_; ++c) {
             const double colour = axes.colour_min_mag + (c + 0.5) * axes.cell_mag;
             by_colour_[static_cast<std::size_t>(m) * static_cast<std::size_t>(colour_cells_) +
-                       static_cast<std::size_t>(c)] =
-                static_cast<std::uint8_t>(with_colour(colour, magnitude));
+                       static_cast<std::size_t>(c)] = with_colour(colour, magnitude);
         }
     }
 }

@@ -1,7 +1,7 @@
 #pragma once
-// A rasterised classifier for the Monte Carlo hot loop: the class of every cell of a fine grid in
-// (BP-RP, M_G), and of a 1-D grid in M_G for objects without colours. Built once from the exact
-// classifier; a lookup is two multiplies and a load.
+// A rasterised classifier for the Monte Carlo hot loop: the census category (StellarClass.h) of every
+// cell of a fine grid in (BP-RP, M_G), and of a 1-D grid in M_G for objects without colours. Built once
+// from the exact classifier; a lookup is two multiplies and a load.
 #include "photometry/StellarClass.h"
 
 #include <cstdint>
@@ -21,21 +21,21 @@ struct ClassGridAxes {
 
 class ClassGrid {
   public:
-    using ColourClassifier = std::function<StellarClass(double bp_rp_mag, double abs_g_mag)>;
-    using MagnitudeClassifier = std::function<StellarClass(double abs_g_mag)>;
+    using ColourClassifier = std::function<Category(double bp_rp_mag, double abs_g_mag)>;
+    using MagnitudeClassifier = std::function<Category(double abs_g_mag)>;
 
     /// Evaluates the classifiers at every cell centre.
     ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_colour,
               const MagnitudeClassifier& magnitude_only);
 
-    StellarClass lookup(float bp_rp_mag, float abs_g_mag) const noexcept {
-        return static_cast<StellarClass>(by_colour_[static_cast<std::size_t>(magnitudeCell(abs_g_mag)) *
-                                                        static_cast<std::size_t>(colour_cells_) +
-                                                    static_cast<std::size_t>(colourCell(bp_rp_mag))]);
+    Category lookup(float bp_rp_mag, float abs_g_mag) const noexcept {
+        return by_colour_[static_cast<std::size_t>(magnitudeCell(abs_g_mag)) *
+                              static_cast<std::size_t>(colour_cells_) +
+                          static_cast<std::size_t>(colourCell(bp_rp_mag))];
     }
 
-    StellarClass lookupMagnitudeOnly(float abs_g_mag) const noexcept {
-        return static_cast<StellarClass>(by_magnitude_[static_cast<std::size_t>(magnitudeCell(abs_g_mag))]);
+    Category lookupMagnitudeOnly(float abs_g_mag) const noexcept {
+        return by_magnitude_[static_cast<std::size_t>(magnitudeCell(abs_g_mag))];
     }
 
     const ClassGridAxes& axes() const { return axes_; }
@@ -61,8 +61,8 @@ class ClassGrid {
     float inverse_cell_;
     int colour_cells_;
     int magnitude_cells_;
-    std::vector<std::uint8_t> by_colour_;    // [magnitude cell][colour cell]
-    std::vector<std::uint8_t> by_magnitude_; // [magnitude cell]
+    std::vector<Category> by_colour_;    // [magnitude cell][colour cell]
+    std::vector<Category> by_magnitude_; // [magnitude cell]
 };
 
 } // namespace starcensus::photometry

@@ -21,6 +21,32 @@ std::optional<StellarClass> classFromName(std::string_view name) {
     return std::nullopt;
 }
 
+Category categoryOf(StellarClass stellar_class, double spectral_code) {
+    switch (stellar_class) {
+    case StellarClass::WhiteDwarf:
+        return static_cast<Category>(kDwarfCategories);
+    case StellarClass::Evolved:
+        return static_cast<Category>(kDwarfCategories + 1);
+    case StellarClass::Unclassified:
+        return static_cast<Category>(kDwarfCategories + 2);
+    default: {
+        // Keep the code inside its letter so the category never contradicts the class.
+        const double letter_start = 10.0 * static_cast<double>(static_cast<int>(stellar_class));
+        const double code = std::isfinite(spectral_code) ? spectral_code : letter_start;
+        return static_cast<Category>(std::clamp(code, letter_start, letter_start + 9.999));
+    }
+    }
+}
+
+StellarClass classOfCategory(Category category) {
+    if (category < kDwarfCategories) {
+        return static_cast<StellarClass>(category / 10);
+    }
+    return category == kDwarfCategories       ? StellarClass::WhiteDwarf
+           : category == kDwarfCategories + 1 ? StellarClass::Evolved
+                                              : StellarClass::Unclassified;
+}
+
 StellarClass dwarfClassOfCode(double spectral_code) {
     const double clamped = std::clamp(spectral_code, 0.0, 99.9);
     return static_cast<StellarClass>(static_cast<int>(clamped / 10.0));

@@ -37,6 +37,16 @@ constexpr std::string_view className(StellarClass c) {
 
 std::optional<StellarClass> classFromName(std::string_view name);
 
+/// Census categories: the finest unit the Monte Carlo counts. Dwarfs are binned by whole subtypes of the
+/// spectral code (category = floor(code), 0..99), then white dwarfs, evolved stars and unclassified
+/// objects. Classes and user-defined groups (e.g. FGK, M0-M4) are unions of categories.
+inline constexpr std::size_t kDwarfCategories = 100;
+inline constexpr std::size_t kCategoryCount = kDwarfCategories + 3;
+using Category = std::uint8_t;
+
+Category categoryOf(StellarClass stellar_class, double spectral_code);
+StellarClass classOfCategory(Category category);
+
 /// The dwarf letter class (O..Y) of a spectral code; codes beyond Y9.5 stay Y.
 StellarClass dwarfClassOfCode(double spectral_code);
 

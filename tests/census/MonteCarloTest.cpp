@@ -15,10 +15,13 @@ namespace {
 // A toy classifier for exercising the engine (not a physical one): bright is K, faint is M, no colour is
 // L, so each path through the grid is visible in the counts.
 photometry::ClassGrid toyGrid() {
+    using photometry::categoryOf;
     return photometry::ClassGrid(
         photometry::ClassGridAxes{},
-        [](double, double abs_g) { return abs_g < 8.0 ? StellarClass::K : StellarClass::M; },
-        [](double) { return StellarClass::L; });
+        [](double, double abs_g) {
+            return abs_g < 8.0 ? categoryOf(StellarClass::K, 55.0) : categoryOf(StellarClass::M, 63.0);
+        },
+        [](double) { return categoryOf(StellarClass::L, 71.0); });
 }
 
 std::vector<photometry::CatalogRow> toyStars(int n, std::uint64_t seed) {
@@ -61,8 +64,8 @@ TEST_CASE("mean Monte Carlo counts equal the summed membership probabilities") {
     for (std::size_t r = 0; r < 2; ++r) {
         double total = 0.0;
         for (int d = 0; d < tallies.draws; ++d) {
-            for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
-                total += tallies.count(d, r, static_cast<StellarClass>(c));
+            for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+                total += tallies.count(d, r, static_cast<photometry::Category>(c));
             }
         }
         const double mean = total / tallies.draws;
@@ -85,9 +88,9 @@ TEST_CASE("stars too noisy to classify, or without colour, take the documented c
     const auto grid = toyGrid();
     const census::PreparedSample sample(rows, {10.0}, census::MembershipSettings{}, 5.0, 1);
     const auto tallies = census::drawSample(sample, grid, {.draws = 20, .seed = 1, .threads = 1});
-    CHECK(tallies.count(0, 0, StellarClass::L) == 1); // no colour: magnitude-only grid
-    CHECK(tallies.count(0, 0, StellarClass::M) == 1);
+    CHECK(tallies.classCount(0, 0, StellarClass::L) == 1); // no colour: magnitude-only grid
+    CHECK(tallies.classCount(0, 0, StellarClass::M) == 1);
     const census::PreparedSample strict(rows, {10.0}, census::MembershipSettings{}, 5000.0, 1);
     CHECK(census::drawSample(strict, grid, {.draws = 20, .seed = 1, .threads = 1})
-              .count(3, 0, StellarClass::Unclassified) == 2);
+              .classCount(3, 0, StellarClass::Unclassified) == 2);
 }

@@ -17,3 +17,12 @@ TEST_CASE("spectral codes follow the decimal MK subtype scale") {
     CHECK(classFromName("WD") == StellarClass::WhiteDwarf);
     CHECK_FALSE(classFromName("Q").has_value());
 }
+
+TEST_CASE("census categories bin dwarfs by whole subtypes and never leave their class") {
+    CHECK(categoryOf(StellarClass::G, 42.7) == 42);
+    CHECK(classOfCategory(categoryOf(StellarClass::G, 42.7)) == StellarClass::G);
+    CHECK(categoryOf(StellarClass::K, 61.0) == 59); // a code past its letter is clamped into it
+    CHECK(classOfCategory(categoryOf(StellarClass::WhiteDwarf, 0.0)) == StellarClass::WhiteDwarf);
+    CHECK(classOfCategory(categoryOf(StellarClass::Evolved, 0.0)) == StellarClass::Evolved);
+    CHECK(classOfCategory(categoryOf(StellarClass::Unclassified, 0.0)) == StellarClass::Unclassified);
+}
