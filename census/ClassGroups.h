@@ -1,0 +1,25 @@
+#pragma once
+// What the census reports: the MK classes, white dwarfs, evolved and unclassified objects, and groups a
+// user defines as unions of classes and subtype ranges, e.g. "FGK=F,G,K" or "earlyM=M0-M4".
+#include "photometry/StellarClass.h"
+
+#include <bitset>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace starcensus::census {
+
+struct ClassGroup {
+    std::string name;
+    std::bitset<photometry::kCategoryCount> categories;
+};
+
+/// One group per StellarClass, in enum order: O B A F G K M L T Y WD evolved unclassified.
+std::vector<ClassGroup> standardClassGroups();
+
+/// Parses "NAME=ITEM[,ITEM...]" where an ITEM is a class name (G, WD, evolved, unclassified) or a range of
+/// dwarf subtypes "M0-M4" (whole subtypes, both ends included). Throws InputError naming the definition.
+ClassGroup parseClassGroup(std::string_view definition);
+
+} // namespace starcensus::census

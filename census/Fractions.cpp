@@ -1,0 +1,97 @@
+#include "census/Fractions.h"
+
+#include "census/Random.h"
+
+#include <cmath>
+#include <numbers>
+#include <random>
+
+namespace starcensus::census {
+
+namespace {
+
+// Streams for the population deviates sit far from the Monte Carlo's per-block streams.
+constexpr std::uint64_t kPopulationStreamBase = 0x5eed000000000000ULL;
+
+double gammaDeviate(Xoshiro256& random, double shape) {
+    std::gamma_distribution<double> gamma(shape, 1.0);
+    return gamma(random);
+}
+
+double betaDeviate(Xoshiro256& random, double a, double b) {
+    const double x = gammaDeviate(random, a);
+    const double y = gammaDeviate(random, b);
+    return x / (x + y);
+}
+
+} // namespace
+
+double sphereVolumePc3(double radius_pc) {
+    return 4.0 / 3.0 * std::numbers::pi * radius_pc * radius_pc * radius_pc;
+}
+
+std::uint32_t groupCount(const DrawTallies& tallies, int draw, std::size_t radius_index,
+                         const ClassGroup& group) {
+    std::uint32_t total = 0;
+    for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+        if (group.categories.test(c)) {
+            total += tallies.count(draw, radius_index, static_cast<photometry::Category>(c));
+        }
+    }
+    return total;
+}
+
+std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,
+                                              const std::vector<std::int64_t>& hard_cut_members,
+                                              const std::vector<double>& expected_members,
+                                              const std::vector<ClassGroup>& groups,
+                                              const FractionSettings& settings) {
+    ClassGroup everything{"all", {}};
+    everything.categories.set();
+    std::vector<RadiusEstimate> estimates;
+    const auto draws = static_cast<std::size_t>(tallies.draws);
+    const auto deviates = static_cast<std::size_t>(settings.population_deviates_per_draw);
+    for (std::size_t r = 0; r < radii_pc.size(); ++r) {
+        RadiusEstimate estimate;
+        estimate.radius_pc = radii_pc[r];
+        estimate.volume_pc3 = sphereVolumePc3(radii_pc[r]);
+        estimate.expected_members = expected_members[r];
+        estimate.hard_cut_members = hard_cut_members[r];
+        std::vector<double> totals(draws);
+        for (std::size_t d = 0; d < draws; ++d) {
+            totals[d] = groupCount(tallies, static_cast<int>(d), r, everything);
+        }
+        std::vector<double> sorted_totals = totals;
+        estimate.members = summarizeDraws(sorted_totals);
+
+        for (std::size_t g = 0; g < groups.size(); ++g) {
+            Xoshiro256 random(settings.seed, kPopulationStreamBase + r * groups.size() + g);
+            std::vector<double> fraction(draws), count(draws), density(draws);
+            std::vector<double> population_fraction, population_count, population_density;
+            population_fraction.reserve(draws * deviates);
+            population_count.reserve(draws * deviates);
+            population_density.reserve(draws * deviates);
+            for (std::size_t d = 0; d < draws; ++d) {
+                const double n = groupCount(tallies, static_cast<int>(d), r, groups[g]);
+                const double total = totals[d];
+                fraction[d] = total > 0 ? n / total : 0.0;
+                count[d] = n;
+                density[d] = n / estimate.volume_pc3;
+                for (std::size_t k = 0; k < deviates; ++k) {
+                    population_fraction.push_back(betaDeviate(random, n + 0.5, total - n + 0.5));
+                    const double expected_count = gammaDeviate(random, n + 0.5);
+                    population_count.push_back(expected_count);
+                    population_density.push_back(expected_count / estimate.volume_pc3);
+                }
+            }
+            estimate.groups.push_back({groups[g].name,
+                                       {summarizeDraws(fraction), summarizeDraws(population_fraction)},
+                                       {summarizeDraws(count), summarizeDraws(population_count)},
+                                       {summarizeDraws(density), summarizeDraws(population_density)}});
+        }
+        estimates.push_back(std::move(estimate));
+    }
+    return estimates;
+}
+
+} // namespace starcensus::census
