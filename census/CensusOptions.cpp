@@ -1,0 +1,98 @@
+#include "census/CensusOptions.h"
+
+#include "photometry/InputError.h"
+#include "photometry/OptionChecks.h"
+
+#include <algorithm>
+#include <charconv>
+
+namespace starcensus::census {
+
+namespace po = boost::program_options;
+
+po::options_description censusOptions(CensusSettings& settings) {
+    po::options_description options("Census (membership, quality cuts, Monte Carlo)");
+    auto add = options.add_options();
+    add("radius", po::value(&settings.radii_text)->default_value(settings.radii_text),
+        "census radius or radii, comma-separated (pc), e.g. 5,10,20");
+    add("distance-prior", po::value(&settings.prior_name)->default_value(settings.prior_name),
+        "distance prior of the membership posterior: constant-density (p(r) ∝ r^2) or flat-parallax");
+    MembershipSettings& membership = settings.membership;
+    add("prior-outer-distance",
+        po::value(&membership.outer_distance_pc)->default_value(membership.outer_distance_pc),
+        "outer distance where the distance prior is truncated (pc); must exceed every radius");
+    add("parallax-zero-point",
+        po::value(&membership.parallax_zero_point_mas)->default_value(membership.parallax_zero_point_mas),
+        "parallax zero point subtracted from catalogue parallaxes (mas); Gaia DR3: about -0.017 (Lindegren "
+        "et al. "
+        "2021)");
+    add("parallax-error-scale",
+        po::value(&membership.parallax_error_inflation)->default_value(membership.parallax_error_inflation),
+        "factor applied to catalogue parallax errors (>= 1 inflates)");
+    QualitySettings& quality = settings.quality;
+    add("max-ruwe", po::value(&quality.max_ruwe)->default_value(quality.max_ruwe),
+        "remove rows with RUWE above this (0 disables)");
+    add("min-parallax-snr",
+        po::value(&quality.min_parallax_snr_to_classify)->default_value(quality.min_parallax_snr_to_classify),
+        "classify only rows with parallax/error at least this; others count as members, class unclassified");
+    add("max-colour-error",
+        po::value(&quality.max_colour_error_mag)->default_value(quality.max_colour_error_mag),
+        "drop BP-RP when the BP or RP error exceeds this (mag); the row is classified from M_G alone");
+    add("draws", po::value(&settings.draws.draws)->default_value(settings.draws.draws),
+        "Monte Carlo draws over the measurement errors");
+    add("seed", po::value(&settings.draws.seed)->default_value(settings.draws.seed), "random seed");
+    add("threads", po::value(&settings.draws.threads)->default_value(settings.draws.threads),
+        "worker threads (0 = all cores); results do not depend on it");
+    add("group", po::value(&settings.group_definitions)->composing(),
+        "extra class group NAME=ITEM[,ITEM...]; items are classes or subtype ranges, e.g. FGK=F,G,K or "
+        "earlyM=M0-M4 (repeatable)");
+    return options;
+}
+
+std::vector<double> parsePositiveList(const std::string& text, const std::string& option) {
+    std::vector<double> values;
+    std::size_t start = 0;
+    while (start <= text.size()) {
+        const std::size_t comma = std::min(text.find(',', start), text.size());
+        const std::string item = text.substr(start, comma - start);
+        double value = 0.0;
+        const auto [end, error] = std::from_chars(item.data(), item.data() + item.size(), value);
+        if (item.empty() || error != std::errc{} || end != item.data() + item.size() || !(value > 0.0)) {
+            throw InputError("--" + option + ": '" + item + "' in '" + text + "' is not a positive number");
+        }
+        values.push_back(value);
+        start = comma + 1;
+    }
+    return values;
+}
+
+void validate(CensusSettings& settings) {
+    settings.radii_pc = parsePositiveList(settings.radii_text, "radius");
+    std::sort(settings.radii_pc.begin(), settings.radii_pc.end());
+    settings.radii_pc.erase(std::unique(settings.radii_pc.begin(), settings.radii_pc.end()),
+                            settings.radii_pc.end());
+    if (settings.prior_name == "constant-density") {
+        settings.membership.prior = DistancePrior::ConstantDensity;
+    } else if (settings.prior_name == "flat-parallax") {
+        settings.membership.prior = DistancePrior::FlatParallax;
+    } else {
+        throw InputError("--distance-prior: '" + settings.prior_name +
+                         "' is not one of constant-density, flat-parallax");
+    }
+    requireThat(settings.membership.outer_distance_pc > settings.radii_pc.back(), "prior-outer-distance",
+                "must exceed the largest radius (" + std::to_string(settings.radii_pc.back()) + " pc)");
+    requireInRange("parallax-zero-point", settings.membership.parallax_zero_point_mas, -1.0, 1.0, "mas");
+    requireInRange("parallax-error-scale", settings.membership.parallax_error_inflation, 0.1, 10.0, "");
+    requireInRange("max-ruwe", settings.quality.max_ruwe, 0.0, 100.0, "");
+    requireInRange("min-parallax-snr", settings.quality.min_parallax_snr_to_classify, 0.0, 1000.0, "");
+    requireInRange("max-colour-error", settings.quality.max_colour_error_mag, 0.0, 10.0, "mag",
+                   LowerBound::Exclusive);
+    requireInRange("draws", settings.draws.draws, 1, 1e7, "");
+    requireInRange("threads", settings.draws.threads, 0, 1024, "");
+    settings.groups = standardClassGroups();
+    for (const auto& definition : settings.group_definitions) {
+        settings.groups.push_back(parseClassGroup(definition));
+    }
+}
+
+} // namespace starcensus::census

@@ -1,0 +1,39 @@
+#pragma once
+// Command-line / config-file options owned by the census library: membership, quality cuts, the Monte
+// Carlo and the reported classes. Each builder binds options to a settings struct; validate*() rejects
+// values outside their ranges with an InputError naming the option.
+#include "census/ClassGroups.h"
+#include "census/Membership.h"
+#include "census/MonteCarlo.h"
+#include "census/QualityCuts.h"
+
+#include <boost/program_options.hpp>
+
+#include <string>
+#include <vector>
+
+namespace starcensus::census {
+
+/// Settings of one census run that come from options.
+struct CensusSettings {
+    std::string radii_text = "10";               // --radius, comma-separated (pc)
+    std::string prior_name = "constant-density"; // --distance-prior
+    std::vector<std::string> group_definitions;  // --group NAME=ITEMS
+    MembershipSettings membership;
+    QualitySettings quality;
+    DrawSettings draws;
+
+    // Filled by validate():
+    std::vector<double> radii_pc;
+    std::vector<ClassGroup> groups; // the standard classes followed by the user's groups
+};
+
+boost::program_options::options_description censusOptions(CensusSettings& settings);
+
+/// Checks ranges and parses the radius list, prior and groups.
+void validate(CensusSettings& settings);
+
+/// "5,10,20" -> {5, 10, 20}; each must be a positive number; throws InputError naming `option`.
+std::vector<double> parsePositiveList(const std::string& text, const std::string& option);
+
+} // namespace starcensus::census

@@ -1,0 +1,27 @@
+#pragma once
+// fractions.json (schema "starcensus.fractions/1") and fractions.csv: the type fractions, counts and
+// densities per radius, for other tools to read. The layout is documented in README.md.
+#include "census/Fractions.h"
+
+#include <nlohmann/json.hpp>
+
+#include <filesystem>
+#include <string>
+#include <vector>
+
+namespace starcensus::reports {
+
+inline constexpr const char* kFractionsSchema = "starcensus.fractions/1";
+
+nlohmann::json intervalJson(const census::IntervalSummary& interval);
+
+nlohmann::json fractionsJson(const std::vector<census::RadiusEstimate>& estimates,
+                             const nlohmann::json& provenance);
+
+/// One row per radius and group, with median / 68% / 95% columns for each quantity and interval kind.
+std::string fractionsCsv(const std::vector<census::RadiusEstimate>& estimates);
+
+/// Writes pretty-printed JSON through an atomic rename.
+void writeJsonFile(const std::filesystem::path& path, const nlohmann::json& document);
+
+} // namespace starcensus::reports
