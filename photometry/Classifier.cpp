@@ -1,0 +1,231 @@
+#include "photometry/Classifier.h"
+
+#include <algorithm>
+
+namespace starcensus::photometry {
+
+namespace {
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kFirstNearInfraredCode = 60.0; // M0V: brown-dwarf confusion starts in the late M dwarfs
+constexpr double kNearInfraredCodesPerSubtype = 10.0; // sampling of the locus: 0.1 subtype
+constexpr double kNearInfraredCodeStep = 1.0 / kNearInfraredCodesPerSubtype;
+constexpr std::uint16_t bit(ClassificationFlag flag) {
+    return flagBit(flag);
+}
+} // namespace
+
+AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, double parallax_error_mas) {
+    if (!(parallax_mas > 0.0)) {
+        return {kNaN, kNaN};
+    }
+    return {apparent_mag + 5.0 * std::log10(parallax_mas) - 10.0,
+            5.0 / std::log(10.0) * parallax_error_mas / parallax_mas};
+}
+
+Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_dwarfs,
+                       ClassifierSettings settings)
+    : locus_(locus), settings_(settings),
+      white_dwarf_boundary_(locus, white_dwarfs, settings.white_dwarf_boundary),
+      locus_bp_rp_range_mag_(locus.invertibleRange(LocusQuantity::BpRpMag)),
+      locus_abs_g_range_mag_(locus.invertibleRange(LocusQuantity::AbsGMag)) {
+    const double last_code = locus.points().back().spectral_code;
+    for (int step = 0; kFirstNearInfraredCode + step * kNearInfraredCodeStep <= last_code; ++step) {
+        const double code = kFirstNearInfraredCode + step / kNearInfraredCodesPerSubtype;
+        const double j_ks = locus.valueAtCode(LocusQuantity::JKsMag, code);
+        const double abs_j = locus.valueAtCode(LocusQuantity::AbsJMag, code);
+        if (!std::isnan(j_ks) && !std::isnan(abs_j)) {
+            near_infrared_locus_.push_back({code, j_ks, abs_j});
+        }
+    }
+}
+
+const Classifier& Classifier::shipped() {
+    static const Classifier classifier(DwarfLocus::shipped(), WhiteDwarfSequence::shipped());
+    return classifier;
+}
+
+Classification Classifier::classify(const PhotometricInput& input) const {
+    double modulus = input.distance_modulus_mag;
+    double modulus_error = 0.0;
+    std::uint16_t flags = 0;
+    if (std::isnan(modulus)) {
+        const AbsoluteMagnitude zero_point =
+            absoluteMagnitude(0.0, input.parallax_mas, input.parallax_error_mas);
+        modulus = -zero_point.mag;
+        modulus_error = zero_point.error_mag;
+        if (!(input.parallax_mas >= settings_.min_parallax_snr * input.parallax_error_mas)) {
+            flags |= bit(ClassificationFlag::LowParallaxSnr);
+        }
+    }
+    const double abs_j = input.j_mag - modulus;
+    Classification result = classifyAbsolute(input.g_mag - modulus, input.bp_mag - input.rp_mag,
+                                             input.g_mag - input.rp_mag, abs_j, input.j_mag - input.ks_mag);
+    result.abs_g_error_mag = std::isnan(result.abs_g_mag) ? kNaN : modulus_error;
+    result.flags |= flags;
+    return result;
+}
+
+Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag,
+                                            double abs_j_mag, double j_ks_mag) const {
+    Classification result;
+    result.abs_g_mag = abs_g_mag;
+    result.bp_rp_mag = bp_rp_mag;
+    result.g_rp_mag = g_rp_mag;
+    result.j_ks_mag = j_ks_mag;
+    if (std::isnan(abs_g_mag)) {
+        result.flags |= bit(ClassificationFlag::NoAbsoluteMagnitude);
+        classifyNearInfrared(result, abs_j_mag, j_ks_mag);
+        return result;
+    }
+    if (std::isnan(bp_rp_mag)) {
+        classifyWithoutColour(result);
+    } else {
+        classifyWithColour(result);
+    }
+    const bool late = result.spectral_code >= 70.0 || abs_g_mag > settings_.late_type_abs_g_mag ||
+                      (std::isnan(bp_rp_mag) && result.stellar_class == StellarClass::Unclassified);
+    if (late && result.stellar_class != StellarClass::WhiteDwarf &&
+        result.stellar_class != StellarClass::Evolved) {
+        classifyNearInfrared(result, abs_j_mag, j_ks_mag);
+    }
+    return result;
+}
+
+void Classifier::setDwarf(Classification& result, double spectral_code) const {
+    result.spectral_code = spectral_code;
+    result.stellar_class =
+        std::isnan(spectral_code) ? StellarClass::Unclassified : dwarfClassOfCode(spectral_code);
+    result.teff_k = locus_.valueAtCode(LocusQuantity::TeffK, spectral_code);
+    result.mass_msun = locus_.valueAtCode(LocusQuantity::MassMsun, spectral_code);
+}
+
+void Classifier::classifyWithColour(Classification& result) const {
+    const double abs_g = result.abs_g_mag;
+    const double colour = result.bp_rp_mag;
+    const auto [blue_end, red_end] = locus_bp_rp_range_mag_;
+    const double colour_on_locus = std::clamp(colour, blue_end, red_end);
+    const double colour_code = locus_.codeFromBpRp(colour_on_locus);
+    result.locus_offset_mag = abs_g - locus_.valueAtCode(LocusQuantity::AbsGMag, colour_code);
+
+    if (colour <= settings_.white_dwarf_max_bp_rp_mag && abs_g > white_dwarf_boundary_.absGMag(colour)) {
+        result.stellar_class = StellarClass::WhiteDwarf;
+        return;
+    }
+    if (colour < blue_end) {
+        // Bluer than B9V: hot main-sequence stars are brighter than the bluest locus row; between them
+        // and the white-dwarf boundary (hot subdwarfs) nothing on the locus fits.
+        result.flags |= bit(ClassificationFlag::OutsideLocus);
+        if (result.locus_offset_mag > settings_.binary_band_mag) {
+            return;
+        }
+        const double code_from_g = locus_.codeFromAbsG(std::max(abs_g, locus_abs_g_range_mag_[0]));
+        setDwarf(result, std::min(code_from_g, colour_code));
+        return;
+    }
+    const double evolved_offset_mag = colour > settings_.evolved_red_bp_rp_mag
+                                          ? settings_.evolved_offset_red_mag
+                                          : settings_.evolved_offset_mag;
+    if (result.locus_offset_mag < -evolved_offset_mag) {
+        result.stellar_class = StellarClass::Evolved;
+        result.spectral_code = colour_code; // the dwarf type of the same colour
+        return;
+    }
+    double code = colour_code;
+    if (colour > settings_.saturated_bp_rp_mag) {
+        const double code_from_g = locus_.codeFromAbsG(abs_g);
+        if (abs_g > locus_abs_g_range_mag_[1]) {
+            result.flags |= bit(ClassificationFlag::OutsideLocus); // fainter than the last M_G row (L8V)
+            code = locus_.codeFromAbsG(locus_abs_g_range_mag_[1]);
+        } else if (code_from_g > code) {
+            code = code_from_g;
+        }
+        // Compare the magnitude with the locus at the adopted code, not at the saturated colour.
+        result.locus_offset_mag = abs_g - locus_.valueAtCode(LocusQuantity::AbsGMag, code);
+    }
+    if (colour > red_end) {
+        result.flags |= bit(ClassificationFlag::OutsideLocus);
+    }
+    if (result.locus_offset_mag < -settings_.binary_band_mag) {
+        result.flags |= bit(ClassificationFlag::AboveBinaryBand);
+    } else if (result.locus_offset_mag > settings_.subluminous_offset_mag) {
+        result.flags |= bit(ClassificationFlag::BelowLocus);
+    }
+    setDwarf(result, code);
+}
+
+void Classifier::classifyWithoutColour(Classification& result) const {
+    result.flags |= bit(ClassificationFlag::NoColour);
+    const double abs_g = result.abs_g_mag;
+    const auto [bright_end, faint_end] = locus_abs_g_range_mag_;
+    if (abs_g < bright_end || abs_g > faint_end) {
+        result.flags |= bit(ClassificationFlag::OutsideLocus);
+        return;
+    }
+    const double code = locus_.codeFromAbsG(abs_g);
+    const double locus_g_rp = locus_.valueAtCode(LocusQuantity::GRpMag, code);
+    if (result.g_rp_mag < locus_g_rp - settings_.g_rp_tolerance_mag) {
+        result.flags |= bit(ClassificationFlag::OutsideLocus); // too blue for a dwarf of this M_G
+        return;
+    }
+    result.locus_offset_mag = 0.0;
+    setDwarf(result, code);
+}
+
+bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag) const {
+    if (std::isnan(abs_j_mag) || std::isnan(j_ks_mag)) {
+        return false;
+    }
+    double best_distance_squared = std::numeric_limits<double>::infinity();
+    double best_code = kNaN;
+    for (const NearInfraredPoint& point : near_infrared_locus_) {
+        const double colour = (j_ks_mag - point.j_ks_mag) / settings_.nir_colour_scale_mag;
+        const double magnitude = (abs_j_mag - point.abs_j_mag) / settings_.nir_magnitude_scale_mag;
+        const double distance_squared = colour * colour + magnitude * magnitude;
+        if (distance_squared < best_distance_squared) {
+            best_distance_squared = distance_squared;
+            best_code = point.spectral_code;
+        }
+    }
+    if (!(best_distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
+        return false;
+    }
+    result.flags |= bit(ClassificationFlag::NearInfrared);
+    result.flags &= static_cast<std::uint16_t>(~bit(ClassificationFlag::OutsideLocus));
+    setDwarf(result, best_code);
+    return true;
+}
+
+ClassificationGrid::ClassificationGrid(const Classifier& classifier,
+                                       const ClassificationGridSettings& settings)
+    : bp_rp_min_mag_(settings.bp_rp_min_mag), abs_g_min_mag_(settings.abs_g_min_mag),
+      inverse_bp_rp_step_(1.0 / settings.bp_rp_step_mag), inverse_abs_g_step_(1.0 / settings.abs_g_step_mag),
+      inverse_abs_g_only_step_(1.0 / settings.abs_g_only_step_mag),
+      columns_(std::round((settings.bp_rp_max_mag - settings.bp_rp_min_mag) / settings.bp_rp_step_mag)),
+      rows_(std::round((settings.abs_g_max_mag - settings.abs_g_min_mag) / settings.abs_g_step_mag)) {
+    const auto pack = [](const Classification& c) {
+        const unsigned tenths =
+            std::isnan(c.spectral_code) ? 1023u : static_cast<unsigned>(std::lround(10.0 * c.spectral_code));
+        return GridCell{static_cast<std::uint16_t>((static_cast<unsigned>(c.stellar_class) << 10) | tenths)};
+    };
+    const auto rows = static_cast<std::size_t>(rows_);
+    const auto columns = static_cast<std::size_t>(columns_);
+    cells_.reserve(rows * columns);
+    for (std::size_t row = 0; row < rows; ++row) {
+        const double abs_g =
+            settings.abs_g_min_mag + (static_cast<double>(row) + 0.5) * settings.abs_g_step_mag;
+        for (std::size_t column = 0; column < columns; ++column) {
+            const double colour =
+                settings.bp_rp_min_mag + (static_cast<double>(column) + 0.5) * settings.bp_rp_step_mag;
+            cells_.push_back(pack(classifier.classifyAbsolute(abs_g, colour)));
+        }
+    }
+    const auto only_rows = static_cast<std::size_t>(
+        std::round((settings.abs_g_max_mag - settings.abs_g_min_mag) / settings.abs_g_only_step_mag));
+    for (std::size_t row = 0; row < only_rows; ++row) {
+        const double abs_g =
+            settings.abs_g_min_mag + (static_cast<double>(row) + 0.5) * settings.abs_g_only_step_mag;
+        abs_g_only_.push_back(pack(classifier.classifyAbsolute(abs_g, kNaN)));
+    }
+}
+
+} // namespace starcensus::photometry

@@ -1,0 +1,222 @@
+#pragma once
+// Spectral class from the colour-absolute-magnitude diagram: Gaia M_G against BP-RP, measured against
+// the Pecaut & Mamajek dwarf locus (photometry/DwarfLocus.h) and the Montreal white-dwarf cooling
+// sequences (photometry/WhiteDwarfSequence.h), with the 2MASS near infrared (M_J, J-Ks) for brown
+// dwarfs. The exact classifier is Classifier::classifyAbsolute(); ClassificationGrid tabulates it once
+// for the Monte Carlo, where a lookup costs a few nanoseconds.
+//
+// Regions, in the order they are decided (thresholds in ClassifierSettings):
+//  1. No M_G (no G, or no valid distance) and no near infrared: unclassified, NoAbsoluteMagnitude.
+//  2. White dwarf: BP-RP <= white_dwarf_max_bp_rp_mag and M_G fainter than WhiteDwarfBoundary
+//     (midway between the locus and the log g 7.0 DA/DB cooling sequences).
+//  3. Spectral code: from BP-RP on the locus; where BP-RP saturates (redder than
+//     saturated_bp_rp_mag, ~M6.5V) the later of the colour code and the M_G code (M_G keeps falling
+//     through late M and L while BP-RP turns over). Bluer than the locus (BP-RP < -0.12, B9V) the code
+//     comes from M_G and the object is flagged OutsideLocus.
+//  4. Offset = M_G - M_G(locus at the object's colour); negative = brighter than the locus.
+//     offset < -evolved_offset_mag (-evolved_offset_red_mag redder than evolved_red_bp_rp_mag): evolved
+//     (subgiant/giant). Between that and -binary_band_mag: main sequence, flagged AboveBinaryBand. offset >
+//     subluminous_offset_mag: main sequence, flagged BelowLocus (subdwarf candidate). Otherwise main sequence
+//     of the code's letter.
+//  5. Late objects (code L0 or later, M_G fainter than late_type_abs_g_mag, or no optical colour) with
+//     M_J and J-Ks: the nearest point of the M/L/T/Y locus in (J-Ks, M_J), flagged NearInfrared.
+//  6. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
+//     more than g_rp_tolerance_mag bluer than the locus G-RP at that code, unclassified, OutsideLocus.
+#include "photometry/DwarfLocus.h"
+#include "photometry/StellarClass.h"
+#include "photometry/WhiteDwarfSequence.h"
+
+#include <cmath>
+#include <cstdint>
+#include <limits>
+#include <vector>
+
+namespace starcensus::photometry {
+
+/// Bit flags of a classification (combine with |, test with hasFlag()).
+enum class ClassificationFlag : std::uint16_t {
+    NoAbsoluteMagnitude = 1u << 0, // G missing, or parallax missing / not positive
+    NoColour = 1u << 1,            // BP or RP missing: class from M_G alone, lower confidence
+    OutsideLocus = 1u << 2,        // colour or magnitude beyond the tabulated locus
+    AboveBinaryBand = 1u << 3,     // brighter than the binary band but not enough to call evolved
+    BelowLocus = 1u << 4,          // fainter than the locus by more than subluminous_offset_mag
+    NearInfrared = 1u << 5,        // class and code from M_J and J-Ks
+    LowParallaxSnr = 1u << 6,      // parallax / error below min_parallax_snr
+};
+constexpr std::uint16_t flagBit(ClassificationFlag flag) {
+    return static_cast<std::uint16_t>(flag);
+}
+constexpr bool hasFlag(std::uint16_t flags, ClassificationFlag flag) {
+    return (flags & flagBit(flag)) != 0;
+}
+
+/// All numeric thresholds of the classifier. Magnitudes and colours in mag (Gaia DR2/DR3 Vega system).
+struct ClassifierSettings {
+    /// Unresolved binaries sit up to 2.5 log10(2) = 0.75 mag above the locus (equal-mass pair).
+    double binary_band_mag = 0.75;
+    /// More than this above the locus: evolved (subgiants and giants; common practice, no source).
+    double evolved_offset_mag = 1.0;
+    /// Redder than evolved_red_bp_rp_mag (about M0V) the threshold is evolved_offset_red_mag instead:
+    /// stars that red have main-sequence lifetimes longer than the Galaxy's age, so nothing evolved lies
+    /// just above their locus (red giants of that colour are ~8 mag brighter); what does lie 1-2 mag
+    /// above it is higher-order multiples, young stars and blended photometry (CARMENES M dwarfs: 176
+    /// of 2343 would be "evolved" with the 1-mag rule, nearly all known or candidate multiples).
+    double evolved_red_bp_rp_mag = 1.8;
+    double evolved_offset_red_mag = 2.0;
+    /// More than this below the locus (but above the white-dwarf boundary): flag BelowLocus.
+    double subluminous_offset_mag = 1.0;
+    /// Redder than this BP-RP the locus colour changes by <0.15 mag per subtype and turns over
+    /// (M6.5V 4.50 to M9.5V 4.86, peak 5.10 at M8.5V; Pecaut & Mamajek table), so M_G sets the code.
+    double saturated_bp_rp_mag = 4.5;
+    /// White dwarfs are only looked for bluer than this; the reddest Montreal models (3250 K DB) have
+    /// BP-RP 1.78-1.85.
+    double white_dwarf_max_bp_rp_mag = 2.0;
+    /// Objects fainter than this M_G (about M7.5V) use the near infrared when they have it.
+    double late_type_abs_g_mag = 15.0;
+    /// Scales of the near-infrared distance to the locus: d^2 = (dJKs/colour)^2 + (dM_J/magnitude)^2;
+    /// beyond nir_max_distance the object is unclassified (OutsideLocus).
+    double nir_colour_scale_mag = 0.2;
+    double nir_magnitude_scale_mag = 0.5;
+    double nir_max_distance = 3.0;
+    /// Without BP-RP: a G-RP bluer than the locus at the M_G code by more than this is unclassified.
+    double g_rp_tolerance_mag = 0.3;
+    /// Parallax signal-to-noise below which LowParallaxSnr is set.
+    double min_parallax_snr = 5.0;
+    WhiteDwarfBoundarySettings white_dwarf_boundary;
+};
+
+/// Apparent photometry and distance of one object; NaN = missing.
+struct PhotometricInput {
+    double g_mag = std::numeric_limits<double>::quiet_NaN();
+    double bp_mag = std::numeric_limits<double>::quiet_NaN();
+    double rp_mag = std::numeric_limits<double>::quiet_NaN();
+    double j_mag = std::numeric_limits<double>::quiet_NaN();  // 2MASS J
+    double ks_mag = std::numeric_limits<double>::quiet_NaN(); // 2MASS Ks
+    /// Used when not NaN; otherwise the distance modulus comes from the parallax.
+    double distance_modulus_mag = std::numeric_limits<double>::quiet_NaN();
+    double parallax_mas = std::numeric_limits<double>::quiet_NaN();
+    double parallax_error_mas = std::numeric_limits<double>::quiet_NaN();
+};
+
+struct AbsoluteMagnitude {
+    double mag;
+    double error_mag;
+};
+
+/// M = m + 5 log10(parallax_mas) - 10, error 5/ln(10) * parallax_error/parallax (first-order
+/// propagation; ignores the bias of inverting noisy parallaxes). NaN for parallax <= 0 or NaN.
+AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, double parallax_error_mas);
+
+struct Classification {
+    StellarClass stellar_class = StellarClass::Unclassified;
+    double spectral_code = std::numeric_limits<double>::quiet_NaN();    // dwarf-equivalent subtype code
+    double teff_k = std::numeric_limits<double>::quiet_NaN();           // locus Teff at the code
+    double mass_msun = std::numeric_limits<double>::quiet_NaN();        // locus mass at the code
+    double locus_offset_mag = std::numeric_limits<double>::quiet_NaN(); // M_G - locus M_G at the colour
+    double abs_g_mag = std::numeric_limits<double>::quiet_NaN();
+    double abs_g_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double bp_rp_mag = std::numeric_limits<double>::quiet_NaN();
+    double g_rp_mag = std::numeric_limits<double>::quiet_NaN();
+    double j_ks_mag = std::numeric_limits<double>::quiet_NaN();
+    std::uint16_t flags = 0;
+};
+
+class Classifier {
+  public:
+    Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_dwarfs,
+               ClassifierSettings settings = {});
+    /// On the shipped tables with default settings, built once.
+    static const Classifier& shipped();
+
+    const ClassifierSettings& settings() const { return settings_; }
+    const DwarfLocus& locus() const { return locus_; }
+
+    /// From apparent magnitudes and a distance (modulus or parallax).
+    Classification classify(const PhotometricInput& input) const;
+    /// From absolute M_G, colours and near infrared (any may be NaN).
+    Classification classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag = kNaN,
+                                    double abs_j_mag = kNaN, double j_ks_mag = kNaN) const;
+
+  private:
+    static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+    void classifyWithColour(Classification& result) const;
+    void classifyWithoutColour(Classification& result) const;
+    bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag) const;
+    void setDwarf(Classification& result, double spectral_code) const;
+
+    const DwarfLocus& locus_;
+    ClassifierSettings settings_;
+    WhiteDwarfBoundary white_dwarf_boundary_;
+    std::array<double, 2> locus_bp_rp_range_mag_;
+    std::array<double, 2> locus_abs_g_range_mag_;
+    struct NearInfraredPoint {
+        double spectral_code, j_ks_mag, abs_j_mag;
+    };
+    std::vector<NearInfraredPoint> near_infrared_locus_; // M0V onward, 0.1-subtype steps
+};
+
+/// Class and code of one grid cell, packed in 16 bits: class in the top 4 bits, code in tenths of a
+/// subtype in the low 10 (1023 = no code).
+struct GridCell {
+    std::uint16_t packed;
+    StellarClass stellarClass() const { return static_cast<StellarClass>(packed >> 10); }
+    double spectralCode() const {
+        const unsigned tenths = packed & 1023u;
+        return tenths == 1023u ? std::numeric_limits<double>::quiet_NaN() : 0.1 * tenths;
+    }
+};
+
+/// Extents and cell sizes of ClassificationGrid (mag).
+struct ClassificationGridSettings {
+    double bp_rp_min_mag = -1.0;
+    double bp_rp_max_mag = 6.0;
+    double bp_rp_step_mag = 0.02;
+    double abs_g_min_mag = -6.0;
+    double abs_g_max_mag = 24.0;
+    double abs_g_step_mag = 0.02;
+    double abs_g_only_step_mag = 0.01; // the 1-D grid for objects without BP-RP
+};
+
+/// classifyAbsolute() tabulated at cell centres on a (BP-RP, M_G) grid and on an M_G-only grid.
+/// Outside the grid (or NaN M_G) a lookup returns Unclassified with no code.
+class ClassificationGrid {
+  public:
+    explicit ClassificationGrid(const Classifier& classifier,
+                                const ClassificationGridSettings& settings = {});
+
+    /// NaN bp_rp_mag selects the M_G-only grid.
+    GridCell lookup(double bp_rp_mag, double abs_g_mag) const {
+        const double row = (abs_g_mag - abs_g_min_mag_) * inverse_abs_g_step_;
+        if (std::isnan(bp_rp_mag)) {
+            const double only = (abs_g_mag - abs_g_min_mag_) * inverse_abs_g_only_step_;
+            return only >= 0.0 && only < static_cast<double>(abs_g_only_.size())
+                       ? abs_g_only_[static_cast<std::size_t>(only)]
+                       : kOutside;
+        }
+        const double column = (bp_rp_mag - bp_rp_min_mag_) * inverse_bp_rp_step_;
+        if (!(row >= 0.0 && row < rows_ && column >= 0.0 && column < columns_)) {
+            return kOutside;
+        }
+        return cells_[static_cast<std::size_t>(row) * static_cast<std::size_t>(columns_) +
+                      static_cast<std::size_t>(column)];
+    }
+
+    /// Cell sizes (mag).
+    double bpRpStepMag() const { return 1.0 / inverse_bp_rp_step_; }
+    double absGStepMag() const { return 1.0 / inverse_abs_g_step_; }
+
+  private:
+    static constexpr GridCell kOutside{
+        static_cast<std::uint16_t>((static_cast<unsigned>(StellarClass::Unclassified) << 10) | 1023u)};
+    double bp_rp_min_mag_;
+    double abs_g_min_mag_;
+    double inverse_bp_rp_step_;
+    double inverse_abs_g_step_;
+    double inverse_abs_g_only_step_;
+    double columns_;
+    double rows_;
+    std::vector<GridCell> cells_;
+    std::vector<GridCell> abs_g_only_;
+};
+
+} // namespace starcensus::photometry

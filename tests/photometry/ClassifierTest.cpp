@@ -1,0 +1,316 @@
+#include "photometry/Classifier.h"
+
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <cmath>
+#include <fstream>
+#include <map>
+#include <random>
+#include <sstream>
+#include <string>
+#include <vector>
+
+using namespace starcensus::photometry;
+
+namespace {
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+/// One CSV line split at commas outside double quotes.
+std::vector<std::string> splitCsv(const std::string& line) {
+    std::vector<std::string> fields(1);
+    bool quoted = false;
+    for (char c : line) {
+        if (c == '"') {
+            quoted = !quoted;
+        } else if (c == ',' && !quoted) {
+            fields.emplace_back();
+        } else {
+            fields.back() += c;
+        }
+    }
+    return fields;
+}
+
+double toNumber(const std::string& text) {
+    return text.empty() ? kNaN : std::stod(text);
+}
+} // namespace
+
+TEST_CASE("absolute magnitude and its error from the parallax") {
+    // Distance modulus definition: M = m + 5 log10(parallax/mas) - 10; at 100 mas (10 pc) M = m.
+    const AbsoluteMagnitude at_10pc = absoluteMagnitude(10.0, 100.0, 1.0);
+    CHECK(at_10pc.mag == doctest::Approx(10.0));
+    CHECK(at_10pc.error_mag == doctest::Approx(5.0 / std::log(10.0) * 0.01)); // 0.0217 mag
+    CHECK(absoluteMagnitude(10.0, 10.0, 0.1).mag == doctest::Approx(5.0));    // 100 pc
+    CHECK(std::isnan(absoluteMagnitude(10.0, -1.0, 0.1).mag));
+    CHECK(std::isnan(absoluteMagnitude(10.0, kNaN, 0.1).mag));
+
+    PhotometricInput input;
+    // The Sun (M_G 4.67, BP-RP 0.82, from memory as below) at 20 pc: distance modulus 5 log10(2) mag.
+    const double modulus = 5.0 * std::log10(2.0);
+    input.g_mag = 4.67 + modulus;
+    input.bp_mag = 5.0 + modulus;
+    input.rp_mag = 4.18 + modulus;
+    input.parallax_mas = 50.0;
+    input.parallax_error_mas = 20.0; // S/N 2.5
+    const Classification c = Classifier::shipped().classify(input);
+    CHECK(c.abs_g_mag == doctest::Approx(4.67));
+    CHECK(c.abs_g_error_mag == doctest::Approx(5.0 / std::log(10.0) * 0.4));
+    CHECK(hasFlag(c.flags, ClassificationFlag::LowParallaxSnr));
+    input.parallax_mas = -3.0;
+    const Classification bad = Classifier::shipped().classify(input);
+    CHECK(bad.stellar_class == StellarClass::Unclassified);
+    CHECK(hasFlag(bad.flags, ClassificationFlag::NoAbsoluteMagnitude));
+}
+
+TEST_CASE("the Sun classifies as G2V") {
+    // Solar M_G = 4.67 and BP-RP = 0.82, from memory (Casagrande & VandenBerg 2018, MNRAS 479, L102).
+    const Classification sun = Classifier::shipped().classifyAbsolute(4.67, 0.82);
+    CHECK(sun.stellar_class == StellarClass::G);
+    CHECK(std::abs(sun.spectral_code - 42.0) <= 1.0); // tolerance: one subtype
+    CHECK(sun.flags == 0);
+    CHECK(std::abs(sun.locus_offset_mag) < 0.2);
+    CHECK(sun.teff_k == doctest::Approx(5772.0).epsilon(0.02)); // IAU 2015 nominal solar Teff, 5772 K
+    CHECK(sun.mass_msun == doctest::Approx(1.0).epsilon(0.05));
+}
+
+TEST_CASE("every dwarf-locus row with M_G and BP-RP classifies as its own type") {
+    // Rows of Pecaut & Mamajek (2013, Table 5; Mamajek table v2024.05.15). Tolerance: 1 subtype in code
+    // and the same class letter.
+    const Classifier& classifier = Classifier::shipped();
+    int rows = 0;
+    for (const LocusPoint& row : classifier.locus().points()) {
+        if (std::isnan(row.abs_g_mag) || std::isnan(row.bp_rp_mag)) {
+            continue;
+        }
+        ++rows;
+        const Classification c = classifier.classifyAbsolute(row.abs_g_mag, row.bp_rp_mag, row.g_rp_mag);
+        INFO(row.spectral_type, " -> ", className(c.stellar_class), " ", c.spectral_code);
+        CHECK(c.stellar_class == dwarfClassOfCode(row.spectral_code));
+        CHECK(std::abs(c.spectral_code - row.spectral_code) <= 1.0);
+    }
+    CHECK(rows == 63); // B9V to M9.5V
+}
+
+TEST_CASE("Montreal DA and DB models classify as white dwarfs") {
+    // Montreal DA/DB synthetic EDR3 photometry (Bergeron group tables), log g 7.5-9.0, 4000-40000 K
+    // (BP-RP from about -0.5 to 1.6, where Gaia measures white dwarfs).
+    const Classifier& classifier = Classifier::shipped();
+    const auto& white_dwarfs = WhiteDwarfSequence::shipped();
+    int models = 0;
+    for (auto atmosphere : {WhiteDwarfAtmosphere::Hydrogen, WhiteDwarfAtmosphere::Helium}) {
+        for (const WhiteDwarfModel& model : white_dwarfs.models(atmosphere)) {
+            if (model.log_g < 7.5 || model.teff_k < 4000.0 || model.teff_k > 40000.0) {
+                continue;
+            }
+            ++models;
+            const Classification c =
+                classifier.classifyAbsolute(model.abs_g_mag, model.abs_bp_mag - model.abs_rp_mag);
+            INFO("Teff ", model.teff_k, " log g ", model.log_g);
+            CHECK(c.stellar_class == StellarClass::WhiteDwarf);
+        }
+    }
+    CHECK(models > 200);
+    // Sirius B, M_G 11.39, BP-RP -0.28, and EGGR 453, M_G 15.76, BP-RP 1.42 (10 pc sample values quoted
+    // in ../shared/reference/published-figures.md section 3).
+    CHECK(classifier.classifyAbsolute(11.39, -0.28).stellar_class == StellarClass::WhiteDwarf);
+    CHECK(classifier.classifyAbsolute(15.76, 1.42).stellar_class == StellarClass::WhiteDwarf);
+}
+
+TEST_CASE("red-clump giants classify as evolved") {
+    // Ruiz-Dern et al. 2018 (A&A 609, A116): M_G = 0.495 + 1.121 (G-Ks - 2.1), for G-Ks 2.1-2.5; the
+    // BP-RP range 1.1-1.3 of clump giants is from memory.
+    const Classifier& classifier = Classifier::shipped();
+    for (double g_ks = 2.1; g_ks <= 2.5001; g_ks += 0.1) {
+        for (double bp_rp = 1.1; bp_rp <= 1.3001; bp_rp += 0.05) {
+            const Classification c = classifier.classifyAbsolute(0.495 + 1.121 * (g_ks - 2.1), bp_rp);
+            CHECK(c.stellar_class == StellarClass::Evolved);
+            CHECK(c.locus_offset_mag < -4.0); // ~5 mag above K dwarfs of that colour
+        }
+    }
+}
+
+TEST_CASE("the binary band, the evolved threshold and missing colours set flags") {
+    // Offsets from the K0V row of Pecaut & Mamajek (M_G 5.553, BP-RP 0.983); thresholds are the
+    // documented defaults of ClassifierSettings.
+    const Classifier& classifier = Classifier::shipped();
+    const Classification binary = classifier.classifyAbsolute(5.553 - 0.7, 0.983);
+    CHECK(binary.stellar_class == StellarClass::K);
+    CHECK(binary.flags == 0);
+    CHECK(binary.locus_offset_mag == doctest::Approx(-0.7));
+    const Classification between = classifier.classifyAbsolute(5.553 - 0.9, 0.983);
+    CHECK(between.stellar_class == StellarClass::K);
+    CHECK(hasFlag(between.flags, ClassificationFlag::AboveBinaryBand));
+    CHECK(classifier.classifyAbsolute(5.553 - 1.1, 0.983).stellar_class == StellarClass::Evolved);
+    const Classification below = classifier.classifyAbsolute(5.553 + 1.5, 0.983);
+    CHECK(below.stellar_class == StellarClass::K);
+    CHECK(hasFlag(below.flags, ClassificationFlag::BelowLocus));
+    // Redder than BP-RP 1.8 the evolved threshold is 2 mag: 1.5 mag above the M4V row (M_G 11.21,
+    // BP-RP 2.94) is a flagged M dwarf, 3 mag above is evolved.
+    const Classification bright_m = classifier.classifyAbsolute(11.21 - 1.5, 2.94);
+    CHECK(bright_m.stellar_class == StellarClass::M);
+    CHECK(hasFlag(bright_m.flags, ClassificationFlag::AboveBinaryBand));
+    CHECK(classifier.classifyAbsolute(11.21 - 3.0, 2.94).stellar_class == StellarClass::Evolved);
+    // M_G alone: M4V row (M_G 11.21) gives M4 with the lower-confidence flag.
+    const Classification no_colour = classifier.classifyAbsolute(11.21, kNaN);
+    CHECK(no_colour.stellar_class == StellarClass::M);
+    CHECK(no_colour.spectral_code == doctest::Approx(64.0));
+    CHECK(hasFlag(no_colour.flags, ClassificationFlag::NoColour));
+    // ...but a G-RP far bluer than an M4V's (1.24) is not a dwarf.
+    const Classification blue = classifier.classifyAbsolute(11.21, kNaN, 0.2);
+    CHECK(blue.stellar_class == StellarClass::Unclassified);
+    CHECK(hasFlag(blue.flags, ClassificationFlag::OutsideLocus));
+    const Classification nothing = classifier.classifyAbsolute(kNaN, kNaN);
+    CHECK(nothing.stellar_class == StellarClass::Unclassified);
+    CHECK(hasFlag(nothing.flags, ClassificationFlag::NoAbsoluteMagnitude));
+}
+
+TEST_CASE("L and T rows of the dwarf table classify as L and T") {
+    // Rows L0V-T9.5V of Pecaut & Mamajek / Mamajek table v2024.05.15. Near infrared: M_J and J-Ks;
+    // optical: M_G and G-RP (L0V-L8V). Tolerance: the class letter; code within 1.5 subtypes (chosen
+    // here: the J-Ks, M_J locus folds over in the early T dwarfs).
+    const Classifier& classifier = Classifier::shipped();
+    for (const LocusPoint& row : classifier.locus().points()) {
+        if (row.spectral_code < 70.0 || row.spectral_code >= 90.0) {
+            continue;
+        }
+        const StellarClass expected = dwarfClassOfCode(row.spectral_code);
+        INFO(row.spectral_type);
+        if (!std::isnan(row.abs_ks_mag)) {
+            const Classification nir =
+                classifier.classifyAbsolute(kNaN, kNaN, kNaN, row.abs_j_mag, row.abs_j_mag - row.abs_ks_mag);
+            CHECK(nir.stellar_class == expected);
+            CHECK(std::abs(nir.spectral_code - row.spectral_code) <= 1.5);
+            CHECK(hasFlag(nir.flags, ClassificationFlag::NearInfrared));
+        }
+        if (!std::isnan(row.abs_g_mag)) {
+            const Classification optical = classifier.classifyAbsolute(row.abs_g_mag, kNaN, row.g_rp_mag);
+            CHECK(optical.stellar_class == expected);
+            CHECK(std::abs(optical.spectral_code - row.spectral_code) <= 1.0);
+        }
+    }
+}
+
+TEST_CASE("CARMENES M dwarfs classify as M") {
+    // Cifuentes et al. (arXiv:2412.12264) CARMENES input catalogue IX, cif03.full_table.csv: literature
+    // spectral types SpT, Gaia DR3 parallax and G/BP/RP, 2MASS J/Ks.
+    std::ifstream file(STARCENSUS_REFERENCE_DIR "/CARMENES_IX_cif03_full_table.csv");
+    REQUIRE(file);
+    std::string line;
+    std::getline(file, line);
+    const auto header = splitCsv(line);
+    const auto column = [&](const std::string& name) {
+        const auto it = std::find(header.begin(), header.end(), name);
+        REQUIRE(it != header.end());
+        return static_cast<std::size_t>(it - header.begin());
+    };
+    const std::size_t spt = column("SpT"), plx = column("parallax"), plx_error = column("parallax_error"),
+                      g = column("G_mag"), bp = column("BP_mag"), rp = column("RP_mag"), j = column("J_mag"),
+                      ks = column("Ks_mag");
+    const Classifier& classifier = Classifier::shipped();
+    std::map<std::string, std::map<std::string, int>> confusion; // true letter -> assigned class -> count
+    std::vector<double> subtype_errors;
+    int m_dwarfs = 0, m_assigned = 0;
+    while (std::getline(file, line)) {
+        const auto fields = splitCsv(line);
+        if (fields.size() != header.size()) {
+            continue;
+        }
+        PhotometricInput input;
+        input.parallax_mas = toNumber(fields[plx]);
+        input.parallax_error_mas = toNumber(fields[plx_error]);
+        input.g_mag = toNumber(fields[g]);
+        input.bp_mag = toNumber(fields[bp]);
+        input.rp_mag = toNumber(fields[rp]);
+        input.j_mag = toNumber(fields[j]);
+        input.ks_mag = toNumber(fields[ks]);
+        const std::string& type = fields[spt];
+        if (type.empty() || !(input.parallax_mas > 10.0 * input.parallax_error_mas) ||
+            std::isnan(input.bp_mag) || std::isnan(input.rp_mag) || std::isnan(input.g_mag)) {
+            continue;
+        }
+        const Classification c = classifier.classify(input);
+        confusion[type.substr(0, 1)][std::string(className(c.stellar_class))]++;
+        // M dwarfs: "M<subtype>" followed by nothing or luminosity class V.
+        const auto code = parseSpectralType(type);
+        std::size_t end = 1;
+        while (end < type.size() &&
+               (std::isdigit(static_cast<unsigned char>(type[end])) || type[end] == '.')) {
+            ++end;
+        }
+        std::string luminosity = type.substr(end);
+        luminosity.erase(std::remove(luminosity.begin(), luminosity.end(), ' '), luminosity.end());
+        if (type[0] != 'M' || !code || !(luminosity.empty() || luminosity == "V")) {
+            continue;
+        }
+        ++m_dwarfs;
+        if (c.stellar_class == StellarClass::M) {
+            ++m_assigned;
+        }
+        if (!std::isnan(c.spectral_code)) {
+            subtype_errors.push_back(std::abs(c.spectral_code - *code));
+        }
+    }
+    std::ostringstream table;
+    table << "CARMENES (parallax S/N > 10, BP/RP present): true letter -> assigned class counts\n";
+    for (const auto& [truth, assigned] : confusion) {
+        table << "  " << truth << ":";
+        for (const auto& [name, count] : assigned) {
+            table << " " << name << "=" << count;
+        }
+        table << "\n";
+    }
+    std::sort(subtype_errors.begin(), subtype_errors.end());
+    const double median = subtype_errors.empty() ? kNaN : subtype_errors[subtype_errors.size() / 2];
+    const double fraction = static_cast<double>(m_assigned) / std::max(m_dwarfs, 1);
+    table << "M dwarfs (V or no luminosity class): " << m_dwarfs << ", assigned M: " << m_assigned << " ("
+          << 100.0 * fraction << "%), median |subtype error| " << median << "\n";
+    MESSAGE(table.str());
+    CHECK(m_dwarfs > 1000);
+    CHECK(fraction >= 0.90); // requirement of the census design (90% of M dwarfs recovered as M)
+    CHECK(median <= 1.0);    // and a median subtype error of at most one subtype
+}
+
+TEST_CASE("the lookup grid agrees with the exact classifier away from boundaries") {
+    const Classifier& classifier = Classifier::shipped();
+    const ClassificationGrid grid(classifier);
+    std::mt19937_64 generator(20240515);
+    std::uniform_real_distribution<double> colour(-0.9, 5.9), magnitude(-5.0, 23.0);
+    const double dc = grid.bpRpStepMag(), dg = grid.absGStepMag();
+    int compared = 0;
+    for (int i = 0; i < 20000; ++i) {
+        const double bp_rp = colour(generator), abs_g = magnitude(generator);
+        const GridCell cell = grid.lookup(bp_rp, abs_g);
+        // Skip points within one cell of a class boundary: any neighbouring cell of another class.
+        bool near_boundary = false;
+        double neighbour_code_spread = 0.0;
+        for (int a = -1; a <= 1; ++a) {
+            for (int b = -1; b <= 1; ++b) {
+                const GridCell neighbour = grid.lookup(bp_rp + a * dc, abs_g + b * dg);
+                near_boundary |= neighbour.stellarClass() != cell.stellarClass();
+                if (!std::isnan(neighbour.spectralCode()) && !std::isnan(cell.spectralCode())) {
+                    neighbour_code_spread = std::max(
+                        neighbour_code_spread, std::abs(neighbour.spectralCode() - cell.spectralCode()));
+                }
+            }
+        }
+        if (near_boundary) {
+            continue;
+        }
+        ++compared;
+        const Classification exact = classifier.classifyAbsolute(abs_g, bp_rp);
+        CHECK(cell.stellarClass() == exact.stellar_class);
+        CHECK(std::isnan(cell.spectralCode()) == std::isnan(exact.spectral_code));
+        if (!std::isnan(exact.spectral_code)) {
+            // the code varies by at most the neighbouring-cell spread, plus 0.05 rounding to tenths
+            CHECK(std::abs(cell.spectralCode() - exact.spectral_code) <= neighbour_code_spread + 0.051);
+        }
+    }
+    CHECK(compared > 15000);
+    // The M_G-only grid: M4V row (M_G 11.21) of Pecaut & Mamajek.
+    CHECK(grid.lookup(kNaN, 11.21).stellarClass() == StellarClass::M);
+    CHECK(grid.lookup(kNaN, 11.21).spectralCode() == doctest::Approx(64.0).epsilon(0.002));
+    CHECK(grid.lookup(0.5, 99.0).stellarClass() == StellarClass::Unclassified);
+    CHECK(grid.lookup(0.5, kNaN).stellarClass() == StellarClass::Unclassified);
+}
