@@ -1,6 +1,9 @@
 #include "photometry/ClassGrid.h"
 
+#include "photometry/Classifier.h"
+
 #include <cmath>
+#include <limits>
 
 namespace starcensus::photometry {
 
@@ -23,6 +26,16 @@ ClassGrid::ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_col
                        static_cast<std::size_t>(c)] = with_colour(colour, magnitude);
         }
     }
+}
+
+ClassGrid ClassGrid::fromClassifier(const Classifier& classifier, const ClassGridAxes& axes) {
+    const auto category = [](const Classification& result) {
+        return categoryOf(result.stellar_class, result.spectral_code);
+    };
+    const double no_colour = std::numeric_limits<double>::quiet_NaN();
+    return ClassGrid(
+        axes, [&](double bp_rp, double abs_g) { return category(classifier.classifyAbsolute(abs_g, bp_rp)); },
+        [&](double abs_g) { return category(classifier.classifyAbsolute(abs_g, no_colour)); });
 }
 
 } // namespace starcensus::photometry

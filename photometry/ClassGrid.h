@@ -10,7 +10,9 @@
 
 namespace starcensus::photometry {
 
-/// Extent and resolution of the grid (mag). Outside it, lookups clamp to the edge cells.
+class Classifier;
+
+/// Extent and resolution of the grid (mag). Outside it (and for NaN), lookups return `unclassified`.
 struct ClassGridAxes {
     double colour_min_mag = -1.0;
     double colour_max_mag = 6.0;
@@ -28,31 +30,34 @@ class ClassGrid {
     ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_colour,
               const MagnitudeClassifier& magnitude_only);
 
+    /// Classifier::classifyAbsolute() on (BP-RP, M_G), and on M_G alone for the 1-D grid.
+    static ClassGrid fromClassifier(const Classifier& classifier, const ClassGridAxes& axes = {});
+
     Category lookup(float bp_rp_mag, float abs_g_mag) const noexcept {
-        return by_colour_[static_cast<std::size_t>(magnitudeCell(abs_g_mag)) *
-                              static_cast<std::size_t>(colour_cells_) +
-                          static_cast<std::size_t>(colourCell(bp_rp_mag))];
+        const int row = cell(abs_g_mag, magnitude_min_, magnitude_cells_);
+        const int column = cell(bp_rp_mag, colour_min_, colour_cells_);
+        return (row | column) < 0
+                   ? kOutside
+                   : by_colour_[static_cast<std::size_t>(row) * static_cast<std::size_t>(colour_cells_) +
+                                static_cast<std::size_t>(column)];
     }
 
     Category lookupMagnitudeOnly(float abs_g_mag) const noexcept {
-        return by_magnitude_[static_cast<std::size_t>(magnitudeCell(abs_g_mag))];
+        const int row = cell(abs_g_mag, magnitude_min_, magnitude_cells_);
+        return row < 0 ? kOutside : by_magnitude_[static_cast<std::size_t>(row)];
     }
 
     const ClassGridAxes& axes() const { return axes_; }
+    /// Cell size (mag) on both axes.
+    double cellMag() const { return axes_.cell_mag; }
 
   private:
-    int colourCell(float colour) const noexcept { return cell(colour, colour_min_, colour_cells_); }
-    int magnitudeCell(float magnitude) const noexcept {
-        return cell(magnitude, magnitude_min_, magnitude_cells_);
-    }
+    static constexpr Category kOutside = kDwarfCategories + 2; // unclassified
+
+    /// The cell index, or -1 outside the grid or for NaN (the comparison is false for NaN).
     int cell(float value, float minimum, int cells) const noexcept {
         const float position = (value - minimum) * inverse_cell_;
-        // NaN and out-of-range values go to the edge cells (the comparison is false for NaN).
-        if (!(position >= 0.0f)) {
-            return 0;
-        }
-        const int index = static_cast<int>(position);
-        return index < cells ? index : cells - 1;
+        return position >= 0.0f && position < static_cast<float>(cells) ? static_cast<int>(position) : -1;
     }
 
     ClassGridAxes axes_;

@@ -195,37 +195,4 @@ bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, 
     return true;
 }
 
-ClassificationGrid::ClassificationGrid(const Classifier& classifier,
-                                       const ClassificationGridSettings& settings)
-    : bp_rp_min_mag_(settings.bp_rp_min_mag), abs_g_min_mag_(settings.abs_g_min_mag),
-      inverse_bp_rp_step_(1.0 / settings.bp_rp_step_mag), inverse_abs_g_step_(1.0 / settings.abs_g_step_mag),
-      inverse_abs_g_only_step_(1.0 / settings.abs_g_only_step_mag),
-      columns_(std::round((settings.bp_rp_max_mag - settings.bp_rp_min_mag) / settings.bp_rp_step_mag)),
-      rows_(std::round((settings.abs_g_max_mag - settings.abs_g_min_mag) / settings.abs_g_step_mag)) {
-    const auto pack = [](const Classification& c) {
-        const unsigned tenths =
-            std::isnan(c.spectral_code) ? 1023u : static_cast<unsigned>(std::lround(10.0 * c.spectral_code));
-        return GridCell{static_cast<std::uint16_t>((static_cast<unsigned>(c.stellar_class) << 10) | tenths)};
-    };
-    const auto rows = static_cast<std::size_t>(rows_);
-    const auto columns = static_cast<std::size_t>(columns_);
-    cells_.reserve(rows * columns);
-    for (std::size_t row = 0; row < rows; ++row) {
-        const double abs_g =
-            settings.abs_g_min_mag + (static_cast<double>(row) + 0.5) * settings.abs_g_step_mag;
-        for (std::size_t column = 0; column < columns; ++column) {
-            const double colour =
-                settings.bp_rp_min_mag + (static_cast<double>(column) + 0.5) * settings.bp_rp_step_mag;
-            cells_.push_back(pack(classifier.classifyAbsolute(abs_g, colour)));
-        }
-    }
-    const auto only_rows = static_cast<std::size_t>(
-        std::round((settings.abs_g_max_mag - settings.abs_g_min_mag) / settings.abs_g_only_step_mag));
-    for (std::size_t row = 0; row < only_rows; ++row) {
-        const double abs_g =
-            settings.abs_g_min_mag + (static_cast<double>(row) + 0.5) * settings.abs_g_only_step_mag;
-        abs_g_only_.push_back(pack(classifier.classifyAbsolute(abs_g, kNaN)));
-    }
-}
-
 } // namespace starcensus::photometry

@@ -2,8 +2,8 @@
 // Spectral class from the colour-absolute-magnitude diagram: Gaia M_G against BP-RP, measured against
 // the Pecaut & Mamajek dwarf locus (photometry/DwarfLocus.h) and the Montreal white-dwarf cooling
 // sequences (photometry/WhiteDwarfSequence.h), with the 2MASS near infrared (M_J, J-Ks) for brown
-// dwarfs. The exact classifier is Classifier::classifyAbsolute(); ClassificationGrid tabulates it once
-// for the Monte Carlo, where a lookup costs a few nanoseconds.
+// dwarfs. The exact classifier is Classifier::classifyAbsolute(); ClassGrid (photometry/ClassGrid.h)
+// tabulates it once for the Monte Carlo, where a lookup costs a few nanoseconds.
 //
 // Regions, in the order they are decided (thresholds in ClassifierSettings):
 //  1. No M_G (no G, or no valid distance) and no near infrared: unclassified, NoAbsoluteMagnitude.
@@ -153,70 +153,6 @@ class Classifier {
         double spectral_code, j_ks_mag, abs_j_mag;
     };
     std::vector<NearInfraredPoint> near_infrared_locus_; // M0V onward, 0.1-subtype steps
-};
-
-/// Class and code of one grid cell, packed in 16 bits: class in the top 4 bits, code in tenths of a
-/// subtype in the low 10 (1023 = no code).
-struct GridCell {
-    std::uint16_t packed;
-    StellarClass stellarClass() const { return static_cast<StellarClass>(packed >> 10); }
-    double spectralCode() const {
-        const unsigned tenths = packed & 1023u;
-        return tenths == 1023u ? std::numeric_limits<double>::quiet_NaN() : 0.1 * tenths;
-    }
-};
-
-/// Extents and cell sizes of ClassificationGrid (mag).
-struct ClassificationGridSettings {
-    double bp_rp_min_mag = -1.0;
-    double bp_rp_max_mag = 6.0;
-    double bp_rp_step_mag = 0.02;
-    double abs_g_min_mag = -6.0;
-    double abs_g_max_mag = 24.0;
-    double abs_g_step_mag = 0.02;
-    double abs_g_only_step_mag = 0.01; // the 1-D grid for objects without BP-RP
-};
-
-/// classifyAbsolute() tabulated at cell centres on a (BP-RP, M_G) grid and on an M_G-only grid.
-/// Outside the grid (or NaN M_G) a lookup returns Unclassified with no code.
-class ClassificationGrid {
-  public:
-    explicit ClassificationGrid(const Classifier& classifier,
-                                const ClassificationGridSettings& settings = {});
-
-    /// NaN bp_rp_mag selects the M_G-only grid.
-    GridCell lookup(double bp_rp_mag, double abs_g_mag) const {
-        const double row = (abs_g_mag - abs_g_min_mag_) * inverse_abs_g_step_;
-        if (std::isnan(bp_rp_mag)) {
-            const double only = (abs_g_mag - abs_g_min_mag_) * inverse_abs_g_only_step_;
-            return only >= 0.0 && only < static_cast<double>(abs_g_only_.size())
-                       ? abs_g_only_[static_cast<std::size_t>(only)]
-                       : kOutside;
-        }
-        const double column = (bp_rp_mag - bp_rp_min_mag_) * inverse_bp_rp_step_;
-        if (!(row >= 0.0 && row < rows_ && column >= 0.0 && column < columns_)) {
-            return kOutside;
-        }
-        return cells_[static_cast<std::size_t>(row) * static_cast<std::size_t>(columns_) +
-                      static_cast<std::size_t>(column)];
-    }
-
-    /// Cell sizes (mag).
-    double bpRpStepMag() const { return 1.0 / inverse_bp_rp_step_; }
-    double absGStepMag() const { return 1.0 / inverse_abs_g_step_; }
-
-  private:
-    static constexpr GridCell kOutside{
-        static_cast<std::uint16_t>((static_cast<unsigned>(StellarClass::Unclassified) << 10) | 1023u)};
-    double bp_rp_min_mag_;
-    double abs_g_min_mag_;
-    double inverse_bp_rp_step_;
-    double inverse_abs_g_step_;
-    double inverse_abs_g_only_step_;
-    double columns_;
-    double rows_;
-    std::vector<GridCell> cells_;
-    std::vector<GridCell> abs_g_only_;
 };
 
 } // namespace starcensus::photometry

@@ -13,8 +13,8 @@ enum class LowerBound { Inclusive, Exclusive };
 
 /// Throws InputError("--option: VALUE is outside the allowed range [low, high] UNIT") unless low <= value
 /// <= high (low < value with LowerBound::Exclusive). NaN is always rejected.
-inline void requireInRange(const std::string& option, double value, double low, double high, const std::string& unit,
-                           LowerBound lower = LowerBound::Inclusive) {
+inline void requireInRange(const std::string& option, double value, double low, double high,
+                           const std::string& unit, LowerBound lower = LowerBound::Inclusive) {
     const bool above_low = lower == LowerBound::Exclusive ? value > low : value >= low;
     if (std::isnan(value) || !above_low || value > high) {
         std::ostringstream message;
