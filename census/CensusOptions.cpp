@@ -41,8 +41,6 @@ po::options_description censusOptions(CensusSettings& settings) {
     add("draws", po::value(&settings.draws.draws)->default_value(settings.draws.draws),
         "Monte Carlo draws over the measurement errors");
     add("seed", po::value(&settings.draws.seed)->default_value(settings.draws.seed), "random seed");
-    add("threads", po::value(&settings.draws.threads)->default_value(settings.draws.threads),
-        "worker threads (0 = all cores); results do not depend on it");
     add("group", po::value(&settings.group_definitions)->composing(),
         "extra class group NAME=ITEM[,ITEM...]; items are classes or subtype ranges, e.g. FGK=F,G,K or "
         "earlyM=M0-M4 (repeatable)");
@@ -88,7 +86,6 @@ void validate(CensusSettings& settings) {
     requireInRange("max-colour-error", settings.quality.max_colour_error_mag, 0.0, 10.0, "mag",
                    LowerBound::Exclusive);
     requireInRange("draws", settings.draws.draws, 1, 1e7, "");
-    requireInRange("threads", settings.draws.threads, 0, 1024, "");
     settings.groups = standardClassGroups();
     for (const auto& definition : settings.group_definitions) {
         settings.groups.push_back(parseClassGroup(definition));

@@ -1,0 +1,135 @@
+#include "reports/CensusPipeline.h"
+
+#include "census/MonteCarlo.h"
+#include "photometry/ClassGrid.h"
+#include "photometry/Classifier.h"
+#include "photometry/InputError.h"
+#include "reports/FractionsOutput.h"
+#include "reports/SampleOutput.h"
+
+#include <chrono>
+#include <iomanip>
+#include <ostream>
+#include <sstream>
+
+namespace starcensus::reports {
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+double secondsSince(Clock::time_point start) { return std::chrono::duration<double>(Clock::now() - start).count(); }
+
+std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
+                                        const std::vector<double>& radii_pc, const census::MembershipSettings& settings) {
+    std::vector<std::int64_t> counts;
+    for (const double radius : radii_pc) {
+        std::int64_t inside = 0;
+        for (const auto& row : rows) {
+            inside += census::insideByHardCut(row.parallax_mas, radius, settings) ? 1 : 0;
+        }
+        counts.push_back(inside);
+    }
+    return counts;
+}
+
+nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector<std::string>& paths) {
+    const auto& census = settings.census;
+    return {{"software", "starcensus"},
+            {"version", STARCENSUS_VERSION},
+            {"inputs", paths},
+            {"radii_pc", census.radii_pc},
+            {"draws", census.draws.draws},
+            {"seed", census.draws.seed},
+            {"distance_prior", census.prior_name},
+            {"prior_outer_distance_pc", census.membership.outer_distance_pc},
+            {"parallax_zero_point_mas", census.membership.parallax_zero_point_mas},
+            {"parallax_error_scale", census.membership.parallax_error_inflation},
+            {"max_ruwe", census.quality.max_ruwe},
+            {"min_parallax_snr", census.quality.min_parallax_snr_to_classify},
+            {"max_colour_error_mag", census.quality.max_colour_error_mag},
+            {"candidate_sigma", settings.scan.candidate_sigma}};
+}
+
+} // namespace
+
+PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream& log) {
+    const auto& census = settings.census;
+    PipelineResult result;
+
+    auto start = Clock::now();
+    const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
+    photometry::ScanSettings scan_settings = settings.scan;
+    scan_settings.min_parallax_mas = 1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
+    photometry::CatalogScan scan = photometry::scanCatalogs(paths, scan_settings);
+    result.timings.scan_s = secondsSince(start);
+    for (const auto& file : scan.files) {
+        for (const auto& warning : file.warnings) {
+            log << "starcensus: warning: " << warning << '\n';
+        }
+    }
+    result.files = scan.files;
+    result.scan_totals = scan.totals;
+    std::vector<photometry::CatalogRow> rows = std::move(scan.candidates);
+    if (rows.empty()) {
+        throw InputError("no candidates: none of the " + std::to_string(scan.totals.rows_read) + " rows in " +
+                         std::to_string(paths.size()) + " input file(s) can lie within " +
+                         std::to_string(census.radii_pc.back()) + " pc");
+    }
+    result.cuts = census::applyQualityCuts(rows, census.quality);
+    result.candidates_after_cuts = rows.size();
+
+    start = Clock::now();
+    const census::PreparedSample sample(rows, census.radii_pc, census.membership,
+                                        census.quality.min_parallax_snr_to_classify, census.draws.threads);
+    result.timings.posteriors_s = secondsSince(start);
+
+    start = Clock::now();
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
+    const census::DrawTallies tallies = census::drawSample(sample, grid, census.draws);
+    std::vector<double> expected;
+    for (std::size_t r = 0; r < census.radii_pc.size(); ++r) {
+        expected.push_back(sample.expectedCount(r));
+    }
+    result.estimates =
+        census::estimateFractions(tallies, census.radii_pc, hardCutCounts(rows, census.radii_pc, census.membership),
+                                  expected, census.groups, {.seed = census.draws.seed});
+    result.timings.draws_s = secondsSince(start);
+
+    start = Clock::now();
+    std::filesystem::create_directories(settings.output_directory);
+    writeSampleTable(settings.output_directory / "sample.fits", rows, sample, tallies, classifier,
+                     census.quality.min_parallax_snr_to_classify);
+    writeJsonFile(settings.output_directory / "fractions.json",
+                  fractionsJson(result.estimates, runProvenance(settings, paths)));
+    writeTextFileAtomically(settings.output_directory / "fractions.csv", fractionsCsv(result.estimates));
+    result.timings.outputs_s = secondsSince(start);
+    return result;
+}
+
+std::string summarizeRun(const PipelineResult& result) {
+    std::ostringstream text;
+    text << std::fixed << std::setprecision(1);
+    text << "read " << result.scan_totals.rows_read << " rows, " << result.scan_totals.candidates
+         << " candidates, " << result.candidates_after_cuts << " after quality cuts\n";
+    for (const auto& cut : result.cuts) {
+        text << "  cut " << cut.name << ": " << cut.rows_affected << " (" << cut.description << ")\n";
+    }
+    for (const auto& estimate : result.estimates) {
+        text << "radius " << estimate.radius_pc << " pc: expected members " << estimate.expected_members
+             << ", hard parallax cut " << estimate.hard_cut_members << "\n";
+        for (const auto& group : estimate.groups) {
+            if (group.count.this_volume.hi95 <= 0.0) {
+                continue;
+            }
+            const auto& fraction = group.fraction.population;
+            text << "  " << std::left << std::setw(13) << group.name << std::right << " fraction "
+                 << std::setprecision(3) << fraction.median << " [" << fraction.lo68 << ", " << fraction.hi68
+                 << "]  count " << std::setprecision(1) << group.count.this_volume.median << "\n";
+        }
+    }
+    return text.str();
+}
+
+} // namespace starcensus::reports

@@ -1,0 +1,123 @@
+#include "reports/cli/Commands.h"
+
+#include "census/CensusOptions.h"
+#include "photometry/CatalogInspection.h"
+#include "photometry/InputError.h"
+#include "photometry/ReaderOptions.h"
+#include "reports/CensusPipeline.h"
+
+#include <boost/program_options.hpp>
+
+#include <fstream>
+#include <iostream>
+
+namespace starcensus::cli {
+
+namespace po = boost::program_options;
+
+namespace {
+
+struct CommonOptions {
+    std::string config_path;
+    bool help = false;
+};
+
+po::options_description commonOptions(CommonOptions& common) {
+    po::options_description options("General");
+    auto add = options.add_options();
+    add("help,h", po::bool_switch(&common.help), "show this help");
+    add("config", po::value(&common.config_path),
+        "INI file with any of these options (command line wins), e.g. radius = 5,10,20");
+    return options;
+}
+
+/// Parses command line (and config file) into `values`; true if --help was asked for (and printed).
+bool parseOptions(const std::string& command, const std::vector<std::string>& arguments,
+                  const po::options_description& options, const po::positional_options_description& positional,
+                  const CommonOptions& common, po::variables_map& values) {
+    try {
+        po::store(po::command_line_parser(arguments).options(options).positional(positional).run(), values);
+        if (values.count("config") != 0) {
+            const auto path = values["config"].as<std::string>();
+            std::ifstream config(path);
+            if (!config) {
+                throw InputError("--config: cannot read " + path);
+            }
+            po::store(po::parse_config_file(config, options), values);
+        }
+        po::notify(values);
+    } catch (const po::error& error) {
+        throw InputError(std::string(error.what()) + " (starcensus " + command + " --help lists the options)");
+    }
+    if (common.help) {
+        std::cout << "usage: starcensus " << command << " [options]\n\n" << options << '\n';
+        return true;
+    }
+    return false;
+}
+
+} // namespace
+
+int runCommand(const std::vector<std::string>& arguments) {
+    CommonOptions common;
+    census::CensusSettings census_settings;
+    std::vector<std::string> inputs;
+    std::string output_directory = "out/census";
+    po::options_description io("Inputs and outputs");
+    auto add = io.add_options();
+    add("input,i", po::value(&inputs)->composing(), "input catalogs: FITS (also .gz) or CSV files, globs, @list.txt");
+    add("out,o", po::value(&output_directory)->default_value(output_directory), "output directory");
+    po::options_description options;
+    options.add(commonOptions(common)).add(io).add(photometry::catalogReaderOptions()).add(census::censusOptions(census_settings));
+    po::positional_options_description positional;
+    positional.add("input", -1);
+    po::variables_map values;
+    if (parseOptions("run", arguments, options, positional, common, values)) {
+        return 0;
+    }
+    if (inputs.empty()) {
+        throw InputError("--input: no input catalog given");
+    }
+    reports::PipelineSettings settings;
+    settings.inputs = inputs;
+    settings.output_directory = output_directory;
+    settings.scan = photometry::scanSettingsFromOptions(values);
+    census_settings.draws.threads = settings.scan.threads;
+    census::validate(census_settings);
+    settings.census = census_settings;
+    const auto result = reports::runCensusPipeline(settings, std::cerr);
+    std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
+    return 0;
+}
+
+int inspectCommand(const std::vector<std::string>& arguments) {
+    CommonOptions common;
+    std::vector<std::string> inputs;
+    std::string radius_text = "10";
+    po::options_description io("Inputs");
+    auto add = io.add_options();
+    add("input,i", po::value(&inputs)->composing(), "catalogs to inspect: FITS (also .gz) or CSV, globs, @list.txt");
+    add("radius", po::value(&radius_text)->default_value(radius_text),
+        "largest census radius (pc), for the candidate count");
+    po::options_description options;
+    options.add(commonOptions(common)).add(io).add(photometry::catalogReaderOptions());
+    po::positional_options_description positional;
+    positional.add("input", -1);
+    po::variables_map values;
+    if (parseOptions("inspect", arguments, options, positional, common, values)) {
+        return 0;
+    }
+    if (inputs.empty()) {
+        throw InputError("--input: no catalog given");
+    }
+    photometry::ScanSettings settings = photometry::scanSettingsFromOptions(values);
+    const auto radii = census::parsePositiveList(radius_text, "radius");
+    settings.min_parallax_mas = 1000.0 / *std::max_element(radii.begin(), radii.end());
+    const auto inspections = photometry::inspectCatalogs(photometry::expandInputPaths(inputs), settings);
+    std::cout << photometry::formatInspection(inspections);
+    const bool all_read = std::all_of(inspections.begin(), inspections.end(),
+                                      [](const photometry::CatalogInspection& inspection) { return inspection.error.empty(); });
+    return all_read ? 0 : 2;
+}
+
+} // namespace starcensus::cli
