@@ -42,7 +42,8 @@ std::optional<double> parseSpectralType(std::string_view type) {
     if (type.empty()) {
         return std::nullopt;
     }
-    const auto letter = kDwarfLetters.find(static_cast<char>(std::toupper(static_cast<unsigned char>(type[0]))));
+    const auto letter =
+        kDwarfLetters.find(static_cast<char>(std::toupper(static_cast<unsigned char>(type[0]))));
     if (letter == std::string_view::npos) {
         return std::nullopt;
     }

@@ -31,7 +31,9 @@ inline constexpr std::size_t kClassCount = 13;
 inline constexpr std::array<std::string_view, kClassCount> kClassNames = {
     "O", "B", "A", "F", "G", "K", "M", "L", "T", "Y", "WD", "evolved", "unclassified"};
 
-constexpr std::string_view className(StellarClass c) { return kClassNames[static_cast<std::size_t>(c)]; }
+constexpr std::string_view className(StellarClass c) {
+    return kClassNames[static_cast<std::size_t>(c)];
+}
 
 std::optional<StellarClass> classFromName(std::string_view name);
 

@@ -1,0 +1,38 @@
+#include "photometry/Curve.h"
+
+#include <algorithm>
+#include <cmath>
+#include <iterator>
+#include <limits>
+
+namespace starcensus::photometry::detail {
+
+double Curve::at(double at_x) const {
+    constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+    if (x.empty() || !(at_x >= x.front() && at_x <= x.back())) {
+        return kNaN;
+    }
+    const auto upper = std::upper_bound(x.begin(), x.end(), at_x);
+    if (upper == x.end()) {
+        return y.back(); // at_x == x.back()
+    }
+    const auto i = static_cast<std::size_t>(std::distance(x.begin(), upper));
+    const double fraction = (at_x - x[i - 1]) / (x[i] - x[i - 1]);
+    return y[i - 1] + fraction * (y[i] - y[i - 1]);
+}
+
+Curve runningMaximumCurve(const std::vector<double>& x, const std::vector<double>& y) {
+    Curve curve;
+    for (std::size_t i = 0; i < x.size() && i < y.size(); ++i) {
+        if (std::isnan(x[i]) || std::isnan(y[i])) {
+            continue;
+        }
+        if (curve.x.empty() || x[i] > curve.x.back()) {
+            curve.x.push_back(x[i]);
+            curve.y.push_back(y[i]);
+        }
+    }
+    return curve;
+}
+
+} // namespace starcensus::photometry::detail
