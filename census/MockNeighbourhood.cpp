@@ -363,8 +363,7 @@ MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t see
 }
 
 MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t seed) {
-    static const ShippedMockPhotometry shipped;
-    return simulateNeighbourhood(settings, seed, shipped);
+    return simulateNeighbourhood(settings, seed, shippedMockPhotometry());
 }
 
 } // namespace starcensus::census

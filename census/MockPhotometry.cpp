@@ -83,4 +83,9 @@ BandMagnitudes ShippedMockPhotometry::whiteDwarf(double cooling_age_yr, double l
     return {model.abs_g_mag, model.abs_bp_mag, model.abs_rp_mag, kNaN, kNaN, kNaN};
 }
 
+const MockPhotometry& shippedMockPhotometry() {
+    static const ShippedMockPhotometry photometry;
+    return photometry;
+}
+
 } // namespace starcensus::census

@@ -65,4 +65,7 @@ class ShippedMockPhotometry final : public MockPhotometry {
     double late_g_minus_j_mag_; // G - J at the latest type with a tabulated M_G
 };
 
+/// One ShippedMockPhotometry for the process (tables loaded on first use).
+const MockPhotometry& shippedMockPhotometry();
+
 } // namespace starcensus::census
