@@ -1,12 +1,12 @@
+#include "FitsFixture.h"
+
 #include "photometry/ColumnMapping.h"
-#include "photometry/InputError.h"
 
 #include <doctest/doctest.h>
 
 #include <cmath>
 
 using namespace starcensus::photometry;
-using starcensus::InputError;
 
 namespace {
 
@@ -19,12 +19,7 @@ std::vector<ColumnDescription> describe(std::initializer_list<std::array<std::st
 }
 
 std::string mappingError(const std::vector<ColumnDescription>& columns, const MappingRequest& request = {}) {
-    try {
-        resolveColumns(columns, request, "cat.fits [HDU 1]");
-    } catch (const InputError& error) {
-        return error.what();
-    }
-    return "no error";
+    return starcensus::testing::inputErrorOf([&] { resolveColumns(columns, request, "cat.fits [HDU 1]"); });
 }
 
 } // namespace

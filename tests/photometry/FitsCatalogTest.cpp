@@ -1,125 +1,38 @@
 #include "FitsFixture.h"
 #include "ReferenceReader.h"
 
-#include "census/Random.h"
 #include "photometry/CatalogInspection.h"
 #include "photometry/CatalogScan.h"
 #include "photometry/FitsCatalog.h"
-#include "photometry/InputError.h"
 
 #include <doctest/doctest.h>
 
 #include <cmath>
 #include <filesystem>
-#include <functional>
 
 using namespace starcensus::photometry;
 using namespace starcensus::testing;
-using starcensus::InputError;
 
 namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-std::string errorOf(const std::function<void()>& action) {
-    try {
-        action();
-    } catch (const InputError& error) {
-        return error.what();
-    }
-    return "no error";
-}
-
-FixtureColumn doubles(std::string name, std::string tform, std::string unit, std::vector<double> values,
-                      std::string ucd = "") {
-    FixtureColumn column = makeColumn(std::move(name), std::move(tform), std::move(unit), std::move(ucd));
-    column.values = std::move(values);
-    return column;
-}
 
 // A small Gaia-like table with hand-picked values.
 FixtureTable smallGaiaTable() {
     FixtureColumn ids = makeColumn("source_id", "1K");
     ids.integers = {4295806720, 38655544960, 1, 6917528997577384320};
     return {"GAIA",
-            {ids, doubles("ra", "1D", "deg", {10.5, 200.25, 359.0, 0.125}),
-             doubles("dec", "1D", "deg", {-30.0, 45.5, 89.0, -89.5}),
-             doubles("parallax", "1E", "mas", {100.5, 2.25, -0.5, kNaN}),
-             doubles("parallax_error", "1E", "mas", {0.25, 0.5, 0.75, 1.0}),
-             doubles("pmra", "1D", "mas/yr", {-1200.5, 3.0, 0.0, 1.0}),
-             doubles("pmdec", "1D", "mas/yr", {800.25, -4.0, 0.0, 1.0}),
-             doubles("phot_g_mean_mag", "1E", "mag", {9.5, 17.25, 20.75, 12.0}),
-             doubles("phot_bp_mean_mag", "1E", "mag", {10.0, kNaN, 21.5, 12.5}),
-             doubles("phot_rp_mean_mag", "1E", "mag", {9.0, 16.5, kNaN, 11.5}),
-             doubles("phot_g_mean_flux_over_error", "1E", "", {1000.0, 50.0, 4.0, 0.0}),
-             doubles("ruwe", "1E", "", {1.0, 1.5, 0.75, 2.0})}};
-}
-
-// A table of every supported TFORM, scaled and null-bearing columns, unmapped text, logical and vector
-// columns in between, and rows with missing, negative and zero-error parallaxes.
-FixtureTable mixedTable(std::size_t rows, std::uint64_t seed) {
-    starcensus::census::Xoshiro256 random(seed);
-    auto sometimes = [&](double probability, double value) {
-        return random.uniform() < probability ? kNaN : value;
-    };
-    FixtureColumn ids = makeColumn("SRC", "1W", "", "meta.id;meta.main"); // K with TZERO = 2^63
-    FixtureColumn designation = makeColumn("designation", "20A");
-    FixtureColumn flag = doubles("flag", "1L", "", {});
-    FixtureColumn vector = doubles("vec", "3E", "", {});
-    std::vector<double> ra, dec, plx, plx_error, pmra, pmdec, g, bp, rp, snr, bp_error, j, h, ks, ruwe;
-    for (std::size_t i = 0; i < rows; ++i) {
-        ids.integers.emplace_back(static_cast<std::int64_t>(random() >> 2));
-        designation.texts.push_back("star " + std::to_string(i));
-        flag.values.push_back(static_cast<double>(i % 2));
-        for (int k = 0; k < 3; ++k) {
-            vector.values.push_back(random.normal());
-        }
-        ra.push_back(360.0 * random.uniform());
-        dec.push_back(std::asin(2.0 * random.uniform() - 1.0));                   // radians
-        plx.push_back(sometimes(0.05, 0.002 + 0.01 * random.normal()));           // arcsec
-        const double error_micro = std::floor(random.uniform() * 2000.0) - 100.0; // some zero and negative
-        plx_error.push_back(sometimes(0.03, error_micro * 1e-3));
-        pmra.push_back(sometimes(0.05, 0.1 * random.normal())); // arcsec/yr
-        pmdec.push_back(sometimes(0.05, std::round(random.normal() * 3000.0) * 0.01));
-        g.push_back(sometimes(0.02, 8.0 + 13.0 * random.uniform()));
-        bp.push_back(sometimes(0.1, 15.0 + std::round(random.normal() * 3000.0) * 0.001));
-        rp.push_back(sometimes(0.1, 7.0 + 13.0 * random.uniform()));
-        snr.push_back(sometimes(0.02, 3000.0 * random.uniform()));
-        bp_error.push_back(sometimes(0.1, 0.2 * random.uniform()));
-        j.push_back(sometimes(0.3, std::floor(random.uniform() * 250.0) * 0.1));
-        h.push_back(sometimes(0.3, std::floor(random.uniform() * 2.0e7) * 1e-6));
-        ks.push_back(20.0 + std::round(random.normal() * 5000.0) * 0.001);
-        ruwe.push_back(std::floor(random.uniform() * 4.0e9));
-    }
-    FixtureColumn plx_error_column = doubles("PLX_ERR", "1J", "mas", plx_error, "stat.error;pos.parallax");
-    plx_error_column.tscal = 1e-3;
-    plx_error_column.tnull = -1000000;
-    FixtureColumn pmdec_column = doubles("pmdec", "1I", "mas/yr", pmdec);
-    pmdec_column.tscal = 0.01;
-    pmdec_column.tnull = -32768;
-    FixtureColumn bp_column = doubles("phot_bp_mean_mag", "1I", "mag", bp);
-    bp_column.tscal = 0.001;
-    bp_column.tzero = 15.0;
-    bp_column.tnull = -32768;
-    FixtureColumn j_column = doubles("j_m", "1B", "mag", j);
-    j_column.tscal = 0.1;
-    j_column.tnull = 255;
-    FixtureColumn h_column = doubles("h_m", "1K", "mag", h);
-    h_column.tscal = 1e-6;
-    h_column.tnull = -1;
-    FixtureColumn ks_column = doubles("ks_m", "1I", "mag", ks);
-    ks_column.tscal = 0.001;
-    ks_column.tzero = 20.0;
-    return {"MIXED",
-            {ids, designation, doubles("RA", "1D", "deg", ra, "pos.eq.ra;meta.main"),
-             doubles("DEC", "1E", "rad", dec, "pos.eq.dec;meta.main"), flag,
-             doubles("PLX", "1E", "arcsec", plx, "pos.parallax"), plx_error_column, vector,
-             doubles("pmra", "1D", "arcsec/yr", pmra), pmdec_column,
-             doubles("phot_g_mean_mag", "1E", "mag", g), bp_column,
-             doubles("phot_rp_mean_mag", "1D", "mag", rp),
-             doubles("phot_g_mean_flux_over_error", "1E", "", snr),
-             doubles("phot_bp_mean_mag_error", "1E", "mag", bp_error), j_column, h_column, ks_column,
-             doubles("ruwe", "1V", "", ruwe)}};
+            {ids, valueColumn("ra", "1D", "deg", {10.5, 200.25, 359.0, 0.125}),
+             valueColumn("dec", "1D", "deg", {-30.0, 45.5, 89.0, -89.5}),
+             valueColumn("parallax", "1E", "mas", {100.5, 2.25, -0.5, kNaN}),
+             valueColumn("parallax_error", "1E", "mas", {0.25, 0.5, 0.75, 1.0}),
+             valueColumn("pmra", "1D", "mas/yr", {-1200.5, 3.0, 0.0, 1.0}),
+             valueColumn("pmdec", "1D", "mas/yr", {800.25, -4.0, 0.0, 1.0}),
+             valueColumn("phot_g_mean_mag", "1E", "mag", {9.5, 17.25, 20.75, 12.0}),
+             valueColumn("phot_bp_mean_mag", "1E", "mag", {10.0, kNaN, 21.5, 12.5}),
+             valueColumn("phot_rp_mean_mag", "1E", "mag", {9.0, 16.5, kNaN, 11.5}),
+             valueColumn("phot_g_mean_flux_over_error", "1E", "", {1000.0, 50.0, 4.0, 0.0}),
+             valueColumn("ruwe", "1E", "", {1.0, 1.5, 0.75, 2.0})}};
 }
 
 ScanSettings everything() {
@@ -170,15 +83,17 @@ TEST_CASE("known values come back exactly, in canonical units, with the mapping 
     CHECK(scan.candidates[2].parallax_mas == -0.5);
     CHECK(std::isnan(scan.candidates[2].rp_mag));
 
-    const ScanCounts& counts = scan.totals;
-    CHECK(counts.rows_read == 4);
-    CHECK(counts.rows_no_parallax == 1);
-    CHECK(counts.candidates == 3);
-    CHECK(counts.rows_nonpositive_parallax == 1);
-    CHECK(counts.candidates_nonpositive_parallax == 1);
-    CHECK(counts.candidates_missing_bp == 1);
-    CHECK(counts.candidates_missing_rp == 1);
-    CHECK(counts.candidates_missing_j == 3);
+    const ScanCounts expected{.rows_read = 4,
+                              .rows_no_parallax = 1,
+                              .rows_nonpositive_parallax = 1,
+                              .candidates = 3,
+                              .candidates_nonpositive_parallax = 1,
+                              .candidates_missing_bp = 1,
+                              .candidates_missing_rp = 1,
+                              .candidates_missing_j = 3,
+                              .candidates_missing_h = 3,
+                              .candidates_missing_ks = 3};
+    CHECK(scan.totals == expected);
     CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::Parallax)] == 1);
     CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::GError)] == 1); // SNR 0
     CHECK(report.parallax_min_mas == -0.5);
@@ -189,10 +104,11 @@ TEST_CASE("known values come back exactly, in canonical units, with the mapping 
 TEST_CASE("mapping routes: user, UCD and name in one file") {
     TemporaryDirectory directory;
     const std::string path = directory.file("routes.fits");
-    writeFitsTable(path, {"",
-                          {doubles("W_PI", "1D", "mas", {5.0}, "pos.parallax"),
-                           doubles("plx", "1D", "mas", {7.0}), doubles("e_plx", "1D", "mas", {0.5}),
-                           doubles("MY_G", "1D", "mag", {12.0}), doubles("gmag", "1D", "mag", {13.0})}});
+    writeFitsTable(path,
+                   {"",
+                    {valueColumn("W_PI", "1D", "mas", {5.0}, "pos.parallax"),
+                     valueColumn("plx", "1D", "mas", {7.0}), valueColumn("e_plx", "1D", "mas", {0.5}),
+                     valueColumn("MY_G", "1D", "mag", {12.0}), valueColumn("gmag", "1D", "mag", {13.0})}});
     ScanSettings settings = everything();
     settings.user_columns = {{"g", "my_g"}};
     const CatalogScan scan = scanCatalogs({path}, settings);
@@ -211,14 +127,14 @@ TEST_CASE("integer nulls come from TNULL and an unsigned 64-bit source_id from T
     const std::string path = directory.file("nulls.fits");
     FixtureColumn ids = makeColumn("source_id", "1W");
     ids.integers = {std::int64_t{9'000'000'000'000'000'000}, 0, 42};
-    FixtureColumn error = doubles("parallax_error", "1J", "uas", {150.0, kNaN, 250.0});
+    FixtureColumn error = valueColumn("parallax_error", "1J", "uas", {150.0, kNaN, 250.0});
     error.tnull = -99;
-    FixtureColumn j = doubles("j_m", "1I", "mag", {kNaN, 12.5, 13.0});
+    FixtureColumn j = valueColumn("j_m", "1I", "mag", {kNaN, 12.5, 13.0});
     j.tnull = -32768;
     j.tscal = 0.01;
     writeFitsTable(path, {"",
-                          {ids, doubles("parallax", "1D", "uas", {1500.0, 2000.0, 2500.0}), error,
-                           doubles("phot_g_mean_mag", "1D", "mag", {10.0, 11.0, 12.0}), j}});
+                          {ids, valueColumn("parallax", "1D", "uas", {1500.0, 2000.0, 2500.0}), error,
+                           valueColumn("phot_g_mean_mag", "1D", "mag", {10.0, 11.0, 12.0}), j}});
     const CatalogScan scan = scanCatalogs({path}, everything());
     REQUIRE(scan.candidates.size() == 2);
     CHECK(scan.candidates[0].source_id == std::int64_t{9'000'000'000'000'000'000});
@@ -237,10 +153,10 @@ TEST_CASE("integer nulls come from TNULL and an unsigned 64-bit source_id from T
 TEST_CASE("parallaxes in arcsec convert to mas") {
     TemporaryDirectory directory;
     const std::string path = directory.file("arcsec.fits");
-    writeFitsTable(path,
-                   {"",
-                    {doubles("plx", "1D", "arcsec", {0.7687}), doubles("e_plx", "1D", "arcsec", {0.0003}),
-                     doubles("gmag", "1D", "", {11.0}), doubles("RA", "1D", "rad", {M_PI})}});
+    writeFitsTable(
+        path, {"",
+               {valueColumn("plx", "1D", "arcsec", {0.7687}), valueColumn("e_plx", "1D", "arcsec", {0.0003}),
+                valueColumn("gmag", "1D", "", {11.0}), valueColumn("RA", "1D", "rad", {M_PI})}});
     const CatalogScan scan = scanCatalogs({path}, everything());
     REQUIRE(scan.candidates.size() == 1);
     CHECK(scan.candidates[0].parallax_mas == doctest::Approx(768.7).epsilon(1e-15));
@@ -251,7 +167,7 @@ TEST_CASE("parallaxes in arcsec convert to mas") {
 TEST_CASE("the fast block scan equals the column-by-column reference, also from a .gz copy") {
     TemporaryDirectory directory;
     const std::string path = directory.file("mixed.fits");
-    writeFitsTable(path, mixedTable(3000, 7));
+    writeFitsTable(path, mixedTypeTable(3000, 7));
     const std::string gz_path = directory.file("mixed.fits.gz");
     gzipFile(path, gz_path);
 
@@ -294,7 +210,7 @@ TEST_CASE("a parallel scan of several files equals the sequential scan, in file 
     std::vector<std::string> paths;
     for (std::uint64_t seed = 1; seed <= 5; ++seed) {
         paths.push_back(directory.file("part" + std::to_string(seed) + ".fits"));
-        writeFitsTable(paths.back(), mixedTable(400 + 100 * seed, seed));
+        writeFitsTable(paths.back(), mixedTypeTable(400 + 100 * seed, seed));
     }
     ScanSettings settings;
     settings.min_parallax_mas = 2.0;
@@ -328,9 +244,10 @@ TEST_CASE("the table is chosen by HDU index or EXTNAME") {
     const CatalogScan by_name = scanHdu("second");
     CHECK(by_name.files[0].hdu_index == 2);
     CHECK(by_name.files[0].hdu_name == "SECOND");
-    CHECK(errorOf([&] { scanHdu("0"); }) == path + ": --hdu 0 is an image, not a binary table");
-    CHECK(errorOf([&] { scanHdu("7"); }) == path + ": --hdu 7: the file has 3 HDUs (0 to 2)");
-    CHECK(errorOf([&] { scanHdu("THIRD"); }) == path + ": --hdu THIRD: no binary table with EXTNAME THIRD");
+    CHECK(inputErrorOf([&] { scanHdu("0"); }) == path + ": --hdu 0 is an image, not a binary table");
+    CHECK(inputErrorOf([&] { scanHdu("7"); }) == path + ": --hdu 7: the file has 3 HDUs (0 to 2)");
+    CHECK(inputErrorOf([&] { scanHdu("THIRD"); }) ==
+          path + ": --hdu THIRD: no binary table with EXTNAME THIRD");
 
     const std::vector<HduSummary> hdus = listHdus(path);
     REQUIRE(hdus.size() == 3);
@@ -346,7 +263,7 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
     TemporaryDirectory directory;
     const ScanSettings settings = everything();
     auto scanError = [&](const std::string& path) {
-        return errorOf([&] { scanCatalogs({path}, settings); });
+        return inputErrorOf([&] { scanCatalogs({path}, settings); });
     };
 
     const std::string missing = directory.file("missing.fits");
@@ -357,7 +274,7 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
     CHECK(scanError(text).starts_with(text + ": cannot open as FITS: cfitsio status "));
 
     const std::string truncated = directory.file("truncated.fits");
-    writeFitsTable(truncated, mixedTable(2000, 3));
+    writeFitsTable(truncated, mixedTypeTable(2000, 3));
     std::filesystem::resize_file(truncated, std::filesystem::file_size(truncated) - 3 * 2880);
     const std::string truncated_error = scanError(truncated);
     CHECK(truncated_error.starts_with(truncated + " [HDU 1 MIXED]: cannot read rows"));
@@ -366,67 +283,69 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
 
     const std::string no_parallax = directory.file("noplx.fits");
     writeFitsTable(no_parallax,
-                   {"", {doubles("e_plx", "1D", "mas", {1.0}), doubles("gmag", "1D", "mag", {1.0})}});
+                   {"", {valueColumn("e_plx", "1D", "mas", {1.0}), valueColumn("gmag", "1D", "mag", {1.0})}});
     CHECK(scanError(no_parallax).starts_with(no_parallax + " [HDU 1]: no column for parallax"));
 
     const std::string as_text = directory.file("textplx.fits");
     FixtureColumn text_parallax = makeColumn("parallax", "8A", "mas");
     text_parallax.texts = {"12.5"};
     writeFitsTable(as_text, {"",
-                             {text_parallax, doubles("parallax_error", "1D", "mas", {1.0}),
-                              doubles("gmag", "1D", "mag", {1.0})}});
+                             {text_parallax, valueColumn("parallax_error", "1D", "mas", {1.0}),
+                              valueColumn("gmag", "1D", "mag", {1.0})}});
     CHECK(scanError(as_text) == as_text + " [HDU 1]: column parallax (parallax) is not numeric (TFORM 8A)");
 
     const std::string vector_parallax = directory.file("vecplx.fits");
-    writeFitsTable(vector_parallax,
-                   {"",
-                    {doubles("parallax", "2D", "mas", {1.0, 2.0}),
-                     doubles("parallax_error", "1D", "mas", {1.0}), doubles("gmag", "1D", "mag", {1.0})}});
+    writeFitsTable(vector_parallax, {"",
+                                     {valueColumn("parallax", "2D", "mas", {1.0, 2.0}),
+                                      valueColumn("parallax_error", "1D", "mas", {1.0}),
+                                      valueColumn("gmag", "1D", "mag", {1.0})}});
     CHECK(scanError(vector_parallax).find("column parallax (parallax) has TFORM 2D; only scalar numeric") !=
           std::string::npos);
 
     const std::string degrees = directory.file("degplx.fits");
-    writeFitsTable(degrees,
-                   {"",
-                    {doubles("parallax", "1D", "deg", {1.0}), doubles("parallax_error", "1D", "mas", {1.0}),
-                     doubles("gmag", "1D", "mag", {1.0})}});
+    writeFitsTable(degrees, {"",
+                             {valueColumn("parallax", "1D", "deg", {1.0}),
+                              valueColumn("parallax_error", "1D", "mas", {1.0}),
+                              valueColumn("gmag", "1D", "mag", {1.0})}});
     CHECK(scanError(degrees).starts_with(
         degrees + " [HDU 1]: column parallax (parallax) has unit 'deg'; accepted: mas"));
 
     const std::string no_unit = directory.file("nounit.fits");
-    writeFitsTable(no_unit,
-                   {"",
-                    {doubles("parallax", "1D", "", {1.0}), doubles("parallax_error", "1D", "mas", {1.0}),
-                     doubles("gmag", "1D", "mag", {1.0})}});
+    writeFitsTable(no_unit, {"",
+                             {valueColumn("parallax", "1D", "", {1.0}),
+                              valueColumn("parallax_error", "1D", "mas", {1.0}),
+                              valueColumn("gmag", "1D", "mag", {1.0})}});
     CHECK(scanError(no_unit).starts_with(no_unit +
                                          " [HDU 1]: column parallax (parallax) has no unit; state it with "
                                          "TUNIT1 or --unit parallax=UNIT"));
 
     const std::string ambiguous = directory.file("ambiguous.fits");
-    writeFitsTable(ambiguous,
-                   {"",
-                    {doubles("parallax", "1D", "mas", {1.0}), doubles("parallax_error", "1D", "mas", {1.0}),
-                     doubles("gmag", "1D", "mag", {1.0}), doubles("G_MAG", "1D", "mag", {1.0})}});
+    writeFitsTable(
+        ambiguous,
+        {"",
+         {valueColumn("parallax", "1D", "mas", {1.0}), valueColumn("parallax_error", "1D", "mas", {1.0}),
+          valueColumn("gmag", "1D", "mag", {1.0}), valueColumn("G_MAG", "1D", "mag", {1.0})}});
     CHECK(scanError(ambiguous) == ambiguous +
                                       " [HDU 1]: field g is ambiguous: columns gmag (name gmag), G_MAG (name "
                                       "G_MAG) all match; choose one with --column g=COLUMN");
 
     // The first failing file in input order is the one reported.
-    CHECK(errorOf([&] { scanCatalogs({no_parallax, missing}, settings); }).starts_with(no_parallax));
+    CHECK(inputErrorOf([&] { scanCatalogs({no_parallax, missing}, settings); }).starts_with(no_parallax));
 }
 
 TEST_CASE("empty tables, missing and negative parallaxes and all-null photometry are counted, not thrown") {
     TemporaryDirectory directory;
     const std::string empty = directory.file("empty.fits");
-    writeFitsTable(empty, {"EMPTY",
-                           {doubles("parallax", "1D", "mas", {}), doubles("parallax_error", "1D", "mas", {}),
-                            doubles("gmag", "1D", "mag", {})}});
+    writeFitsTable(empty,
+                   {"EMPTY",
+                    {valueColumn("parallax", "1D", "mas", {}), valueColumn("parallax_error", "1D", "mas", {}),
+                     valueColumn("gmag", "1D", "mag", {})}});
     const std::string odd = directory.file("odd.fits");
     writeFitsTable(odd, {"",
-                         {doubles("parallax", "1D", "mas", {kNaN, -3.0, 0.0, 4.0, -50.0, 2.0}),
-                          doubles("parallax_error", "1D", "mas", {1.0, 1.5, 1.0, kNaN, 1.0, -1.0}),
-                          doubles("gmag", "1D", "mag", {10.0, 11.0, 12.0, 13.0, 14.0, 15.0}),
-                          doubles("bpmag", "1D", "mag", {kNaN, kNaN, kNaN, kNaN, kNaN, kNaN})}});
+                         {valueColumn("parallax", "1D", "mas", {kNaN, -3.0, 0.0, 4.0, -50.0, 2.0}),
+                          valueColumn("parallax_error", "1D", "mas", {1.0, 1.5, 1.0, kNaN, 1.0, -1.0}),
+                          valueColumn("gmag", "1D", "mag", {10.0, 11.0, 12.0, 13.0, 14.0, 15.0}),
+                          valueColumn("bpmag", "1D", "mag", {kNaN, kNaN, kNaN, kNaN, kNaN, kNaN})}});
     ScanSettings settings;
     settings.min_parallax_mas = 1.0;
     const CatalogScan scan = scanCatalogs({empty, odd}, settings);
@@ -436,15 +355,19 @@ TEST_CASE("empty tables, missing and negative parallaxes and all-null photometry
 
     // -3 + 3 * 1.5 = 1.5 > 1 is kept; 0 + 3 = 3 is kept; -50 fails; NaN parallax and NaN / negative errors
     // are skipped.
-    const ScanCounts& counts = scan.totals;
-    CHECK(counts.rows_read == 6);
-    CHECK(counts.rows_no_parallax == 1);
-    CHECK(counts.rows_unusable_parallax_error == 2);
-    CHECK(counts.rows_nonpositive_parallax == 3);
-    CHECK(counts.rows_below_parallax_limit == 1);
-    CHECK(counts.candidates == 2);
-    CHECK(counts.candidates_nonpositive_parallax == 2);
-    CHECK(counts.candidates_missing_bp == 2);
+    const ScanCounts expected{.rows_read = 6,
+                              .rows_no_parallax = 1,
+                              .rows_unusable_parallax_error = 2,
+                              .rows_below_parallax_limit = 1,
+                              .rows_nonpositive_parallax = 3,
+                              .candidates = 2,
+                              .candidates_nonpositive_parallax = 2,
+                              .candidates_missing_bp = 2,
+                              .candidates_missing_rp = 2,
+                              .candidates_missing_j = 2,
+                              .candidates_missing_h = 2,
+                              .candidates_missing_ks = 2};
+    CHECK(scan.totals == expected);
     REQUIRE(scan.candidates.size() == 2);
     CHECK(scan.candidates[0].parallax_mas == -3.0);
     CHECK(scan.candidates[1].parallax_mas == 0.0);

@@ -3,15 +3,21 @@
 #include <fitsio.h>
 #include <zlib.h>
 
+#include "census/Random.h"
+#include "photometry/InputError.h"
+
 #include <algorithm>
 #include <cmath>
 #include <fstream>
+#include <limits>
 #include <random>
 #include <stdexcept>
 
 namespace starcensus::testing {
 
 namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 void check(int status, const std::string& what) {
     if (status != 0) {
@@ -131,6 +137,79 @@ FixtureColumn makeColumn(std::string name, std::string tform, std::string unit, 
     return column;
 }
 
+FixtureColumn valueColumn(std::string name, std::string tform, std::string unit, std::vector<double> values,
+                          std::string ucd) {
+    FixtureColumn column = makeColumn(std::move(name), std::move(tform), std::move(unit), std::move(ucd));
+    column.values = std::move(values);
+    return column;
+}
+
+FixtureTable mixedTypeTable(std::size_t rows, std::uint64_t seed) {
+    starcensus::census::Xoshiro256 random(seed);
+    auto sometimes = [&](double probability, double value) {
+        return random.uniform() < probability ? kNaN : value;
+    };
+    FixtureColumn ids = makeColumn("SRC", "1W", "", "meta.id;meta.main"); // K with TZERO = 2^63
+    FixtureColumn designation = makeColumn("designation", "20A");
+    FixtureColumn flag = valueColumn("flag", "1L", "", {});
+    FixtureColumn vector = valueColumn("vec", "3E", "", {});
+    std::vector<double> ra, dec, plx, plx_error, pmra, pmdec, g, bp, rp, snr, bp_error, j, h, ks, ruwe;
+    for (std::size_t i = 0; i < rows; ++i) {
+        ids.integers.emplace_back(static_cast<std::int64_t>(random() >> 2));
+        designation.texts.push_back("star " + std::to_string(i));
+        flag.values.push_back(static_cast<double>(i % 2));
+        for (int k = 0; k < 3; ++k) {
+            vector.values.push_back(random.normal());
+        }
+        ra.push_back(360.0 * random.uniform());
+        dec.push_back(std::asin(2.0 * random.uniform() - 1.0));                   // radians
+        plx.push_back(sometimes(0.05, 0.002 + 0.01 * random.normal()));           // arcsec
+        const double error_micro = std::floor(random.uniform() * 2000.0) - 100.0; // some zero and negative
+        plx_error.push_back(sometimes(0.03, error_micro * 1e-3));
+        pmra.push_back(sometimes(0.05, 0.1 * random.normal())); // arcsec/yr
+        pmdec.push_back(sometimes(0.05, std::round(random.normal() * 3000.0) * 0.01));
+        g.push_back(sometimes(0.02, 8.0 + 13.0 * random.uniform()));
+        bp.push_back(sometimes(0.1, 15.0 + std::round(random.normal() * 3000.0) * 0.001));
+        rp.push_back(sometimes(0.1, 7.0 + 13.0 * random.uniform()));
+        snr.push_back(sometimes(0.02, 3000.0 * random.uniform()));
+        bp_error.push_back(sometimes(0.1, 0.2 * random.uniform()));
+        j.push_back(sometimes(0.3, std::floor(random.uniform() * 250.0) * 0.1));
+        h.push_back(sometimes(0.3, std::floor(random.uniform() * 2.0e7) * 1e-6));
+        ks.push_back(20.0 + std::round(random.normal() * 5000.0) * 0.001);
+        ruwe.push_back(std::floor(random.uniform() * 4.0e9));
+    }
+    FixtureColumn plx_error_column =
+        valueColumn("PLX_ERR", "1J", "mas", plx_error, "stat.error;pos.parallax");
+    plx_error_column.tscal = 1e-3;
+    plx_error_column.tnull = -1000000;
+    FixtureColumn pmdec_column = valueColumn("pmdec", "1I", "mas/yr", pmdec);
+    pmdec_column.tscal = 0.01;
+    pmdec_column.tnull = -32768;
+    FixtureColumn bp_column = valueColumn("phot_bp_mean_mag", "1I", "mag", bp);
+    bp_column.tscal = 0.001;
+    bp_column.tzero = 15.0;
+    bp_column.tnull = -32768;
+    FixtureColumn j_column = valueColumn("j_m", "1B", "mag", j);
+    j_column.tscal = 0.1;
+    j_column.tnull = 255;
+    FixtureColumn h_column = valueColumn("h_m", "1K", "mag", h);
+    h_column.tscal = 1e-6;
+    h_column.tnull = -1;
+    FixtureColumn ks_column = valueColumn("ks_m", "1I", "mag", ks);
+    ks_column.tscal = 0.001;
+    ks_column.tzero = 20.0;
+    return {"MIXED",
+            {ids, designation, valueColumn("RA", "1D", "deg", ra, "pos.eq.ra;meta.main"),
+             valueColumn("DEC", "1E", "rad", dec, "pos.eq.dec;meta.main"), flag,
+             valueColumn("PLX", "1E", "arcsec", plx, "pos.parallax"), plx_error_column, vector,
+             valueColumn("pmra", "1D", "arcsec/yr", pmra), pmdec_column,
+             valueColumn("phot_g_mean_mag", "1E", "mag", g), bp_column,
+             valueColumn("phot_rp_mean_mag", "1D", "mag", rp),
+             valueColumn("phot_g_mean_flux_over_error", "1E", "", snr),
+             valueColumn("phot_bp_mean_mag_error", "1E", "mag", bp_error), j_column, h_column, ks_column,
+             valueColumn("ruwe", "1V", "", ruwe)}};
+}
+
 std::size_t FixtureColumn::rows() const {
     return std::max({values.size(), integers.size(), texts.size()});
 }
@@ -174,6 +253,15 @@ void gzipFile(const std::string& source, const std::string& target) {
         gzclose(output) != Z_OK) {
         throw std::runtime_error("fixture: cannot gzip " + source);
     }
+}
+
+std::string inputErrorOf(const std::function<void()>& action) {
+    try {
+        action();
+    } catch (const InputError& error) {
+        return error.what();
+    }
+    return "no error";
 }
 
 void writeText(const std::string& path, const std::string& text) {

@@ -3,6 +3,7 @@
 // columns, TFORMs, TUNITs, TUCDs, TNULLs and TSCAL/TZERO, so reader tests run on files made for them.
 #include <cstdint>
 #include <filesystem>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -43,10 +44,20 @@ struct FixtureColumn {
 /// A column with no data yet; fill one of its value lists.
 FixtureColumn makeColumn(std::string name, std::string tform, std::string unit = "", std::string ucd = "");
 
+/// A column of floating-point values (NaN = null).
+FixtureColumn valueColumn(std::string name, std::string tform, std::string unit, std::vector<double> values,
+                          std::string ucd = "");
+
 struct FixtureTable {
     std::string extname;
     std::vector<FixtureColumn> columns;
 };
+
+/// A Gaia-like table (EXTNAME MIXED) of every supported TFORM (B, I, J, K, E, D, and unsigned 32- and
+/// 64-bit through TZERO), scaled and TNULL-bearing columns, unmapped text, logical and vector columns in
+/// between, and rows with missing, negative and zero-error parallaxes; reproducible from `seed`.
+/// Parallaxes are in arcsec (UCD-mapped), declinations in rad, pmra in arcsec/yr.
+FixtureTable mixedTypeTable(std::size_t rows, std::uint64_t seed);
 
 /// Writes a FITS file: an empty primary HDU, then one binary table per entry (overwrites `path`).
 void writeFitsTables(const std::string& path, const std::vector<FixtureTable>& tables);
@@ -55,6 +66,9 @@ void writeFitsTable(const std::string& path, const FixtureTable& table);
 
 /// Gzip-compresses `source` into `target` with zlib.
 void gzipFile(const std::string& source, const std::string& target);
+
+/// The message of the InputError `action` throws, or "no error".
+std::string inputErrorOf(const std::function<void()>& action);
 
 /// Writes text to a file (CSV fixtures, path lists).
 void writeText(const std::string& path, const std::string& text);
