@@ -38,7 +38,7 @@ void formatHdus(std::ostringstream& out, const std::vector<HduSummary>& hdus) {
         out << "    " << std::setw(3) << hdu.index << "  " << std::left << std::setw(13) << hdu.type
             << std::setw(16) << (hdu.name.empty() ? "-" : hdu.name) << std::right;
         if (hdu.type == "image") {
-            out << "data " << hdu.image_shape << "\n";
+            out << (hdu.image_shape == "none" ? "no data" : "data " + hdu.image_shape) << "\n";
         } else {
             out << hdu.rows << " rows, " << hdu.columns << " columns\n";
         }
@@ -46,7 +46,7 @@ void formatHdus(std::ostringstream& out, const std::vector<HduSummary>& hdus) {
 }
 
 void formatMapping(std::ostringstream& out, const FileScanReport& scan) {
-    out << "  " << std::left << std::setw(16) << "field" << std::setw(30) << "column" << std::setw(6)
+    out << "  " << std::left << std::setw(16) << "field" << std::setw(30) << "column" << std::setw(7)
         << "route" << std::setw(34) << "unit (from)"
         << "nulls\n";
     std::string unmapped;
@@ -60,7 +60,7 @@ void formatMapping(std::ostringstream& out, const FileScanReport& scan) {
                                                      : (resolved->unit.empty() ? "-" : resolved->unit) +
                                                            " (" + resolved->unit_source + ")";
         out << "  " << std::setw(16) << kCatalogFieldNames[i] << std::setw(30) << resolved->column_name
-            << std::setw(6) << routeName(resolved->route) << std::setw(34) << unit << scan.null_counts[i]
+            << std::setw(7) << routeName(resolved->route) << std::setw(34) << unit << scan.null_counts[i]
             << "\n";
     }
     out << std::right;

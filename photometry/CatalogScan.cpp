@@ -177,8 +177,13 @@ CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettin
             std::rethrow_exception(errors[index]);
         }
         scan.totals += results[index].report.counts;
-        scan.candidates.insert(scan.candidates.end(), results[index].candidates.begin(),
-                               results[index].candidates.end());
+        std::vector<CatalogRow>& rows = results[index].candidates;
+        if (scan.candidates.empty()) {
+            scan.candidates = std::move(rows); // no copy for the first (often only) file
+        } else {
+            scan.candidates.insert(scan.candidates.end(), rows.begin(), rows.end());
+            std::vector<CatalogRow>().swap(rows);
+        }
         scan.files.push_back(std::move(results[index].report));
     }
     return scan;

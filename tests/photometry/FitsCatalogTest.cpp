@@ -393,7 +393,7 @@ TEST_CASE("inspect reports HDUs, mapping routes, units, null counts and the para
     const std::string text = formatInspection(inspections);
     CHECK(text.find("    1  binary table GAIA            4 rows, 12 columns") != std::string::npos);
     CHECK(text.find(
-              "  parallax        parallax                      name  mas (TUNIT4)                      1") !=
+              "  parallax        parallax                      name   mas (TUNIT4)                      1") !=
           std::string::npos);
     CHECK(text.find("flux/error -> mag error") != std::string::npos);
     CHECK(text.find("  unmapped: g_error") == std::string::npos);
