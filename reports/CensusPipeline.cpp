@@ -1,6 +1,7 @@
 #include "reports/CensusPipeline.h"
 
 #include "census/MonteCarlo.h"
+#include "photometry/AtomicOutput.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 #include "photometry/InputError.h"
@@ -18,10 +19,13 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
-double secondsSince(Clock::time_point start) { return std::chrono::duration<double>(Clock::now() - start).count(); }
+double secondsSince(Clock::time_point start) {
+    return std::chrono::duration<double>(Clock::now() - start).count();
+}
 
 std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
-                                        const std::vector<double>& radii_pc, const census::MembershipSettings& settings) {
+                                        const std::vector<double>& radii_pc,
+                                        const census::MembershipSettings& settings) {
     std::vector<std::int64_t> counts;
     for (const double radius : radii_pc) {
         std::int64_t inside = 0;
@@ -60,7 +64,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     auto start = Clock::now();
     const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
     photometry::ScanSettings scan_settings = settings.scan;
-    scan_settings.min_parallax_mas = 1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
+    scan_settings.min_parallax_mas =
+        1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
     photometry::CatalogScan scan = photometry::scanCatalogs(paths, scan_settings);
     result.timings.scan_s = secondsSince(start);
     for (const auto& file : scan.files) {
@@ -92,9 +97,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     for (std::size_t r = 0; r < census.radii_pc.size(); ++r) {
         expected.push_back(sample.expectedCount(r));
     }
-    result.estimates =
-        census::estimateFractions(tallies, census.radii_pc, hardCutCounts(rows, census.radii_pc, census.membership),
-                                  expected, census.groups, {.seed = census.draws.seed});
+    result.estimates = census::estimateFractions(tallies, census.radii_pc,
+                                                 hardCutCounts(rows, census.radii_pc, census.membership),
+                                                 expected, census.groups, {.seed = census.draws.seed});
     result.timings.draws_s = secondsSince(start);
 
     start = Clock::now();

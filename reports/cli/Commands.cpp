@@ -1,6 +1,8 @@
 #include "reports/cli/Commands.h"
 
 #include "census/CensusOptions.h"
+#include "census/MockOptions.h"
+#include "census/MockOutput.h"
 #include "photometry/CatalogInspection.h"
 #include "photometry/InputError.h"
 #include "photometry/ReaderOptions.h"
@@ -8,8 +10,12 @@
 
 #include <boost/program_options.hpp>
 
+#include <algorithm>
+#include <filesystem>
 #include <fstream>
+#include <iomanip>
 #include <iostream>
+#include <sstream>
 
 namespace starcensus::cli {
 
@@ -33,8 +39,9 @@ po::options_description commonOptions(CommonOptions& common) {
 
 /// Parses command line (and config file) into `values`; true if --help was asked for (and printed).
 bool parseOptions(const std::string& command, const std::vector<std::string>& arguments,
-                  const po::options_description& options, const po::positional_options_description& positional,
-                  const CommonOptions& common, po::variables_map& values) {
+                  const po::options_description& options,
+                  const po::positional_options_description& positional, const CommonOptions& common,
+                  po::variables_map& values) {
     try {
         po::store(po::command_line_parser(arguments).options(options).positional(positional).run(), values);
         if (values.count("config") != 0) {
@@ -47,7 +54,8 @@ bool parseOptions(const std::string& command, const std::vector<std::string>& ar
         }
         po::notify(values);
     } catch (const po::error& error) {
-        throw InputError(std::string(error.what()) + " (starcensus " + command + " --help lists the options)");
+        throw InputError(std::string(error.what()) + " (starcensus " + command +
+                         " --help lists the options)");
     }
     if (common.help) {
         std::cout << "usage: starcensus " << command << " [options]\n\n" << options << '\n';
@@ -56,7 +64,101 @@ bool parseOptions(const std::string& command, const std::vector<std::string>& ar
     return false;
 }
 
+std::string mockSummary(const census::MockResult& mock, const std::vector<double>& radii_pc) {
+    std::ostringstream text;
+    text << "simulated " << mock.truth.size() << " objects within " << mock.settings.radius_max_pc << " pc ("
+         << mock.catalog.size() << " catalogued), seed " << mock.seed << '\n';
+    for (const auto& counts : census::countWithinRadii(mock.truth, radii_pc)) {
+        text << "  truth within " << counts.radius_pc << " pc:";
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            if (counts.all[c] > 0) {
+                text << ' ' << photometry::kClassNames[c] << ' ' << counts.all[c];
+            }
+        }
+        text << '\n';
+    }
+    return text.str();
+}
+
+/// Simulates and writes the mock catalog and its truth.
+census::MockResult simulateToFiles(const census::MockRequest& request,
+                                   const std::filesystem::path& catalog_path,
+                                   const std::filesystem::path& truth_path,
+                                   const std::vector<double>& truth_radii) {
+    census::validateMockSettings(request.settings);
+    census::MockResult mock = census::simulateNeighbourhood(request.settings, request.seed);
+    if (catalog_path.has_parent_path()) {
+        std::filesystem::create_directories(catalog_path.parent_path());
+    }
+    if (truth_path.has_parent_path()) {
+        std::filesystem::create_directories(truth_path.parent_path());
+    }
+    census::writeMockCatalog(catalog_path, mock);
+    census::writeMockTruth(truth_path, mock, truth_radii);
+    return mock;
+}
+
 } // namespace
+
+int simulateCommand(const std::vector<std::string>& arguments) {
+    CommonOptions common;
+    census::MockRequest request;
+    std::string catalog_path = "mock.fits";
+    std::string truth_path = "truth.json";
+    std::string radii_text = "5,10,20,25";
+    po::options_description io("Outputs");
+    auto add = io.add_options();
+    add("out,o", po::value(&catalog_path)->default_value(catalog_path), "mock catalog (FITS binary table)");
+    add("truth", po::value(&truth_path)->default_value(truth_path), "truth file (JSON)");
+    add("truth-radii", po::value(&radii_text)->default_value(radii_text),
+        "radii (pc) at which the truth file counts objects per class, comma-separated");
+    po::options_description options;
+    options.add(commonOptions(common)).add(io).add(census::mockOptionsDescription(request));
+    po::variables_map values;
+    if (parseOptions("simulate", arguments, options, {}, common, values)) {
+        return 0;
+    }
+    const auto radii = census::parsePositiveList(radii_text, "truth-radii");
+    const auto mock = simulateToFiles(request, catalog_path, truth_path, radii);
+    std::cout << mockSummary(mock, radii) << "wrote " << catalog_path << " and " << truth_path << '\n';
+    return 0;
+}
+
+int demoCommand(const std::vector<std::string>& arguments) {
+    CommonOptions common;
+    std::string output_directory = "out/demo";
+    census::MockRequest request; // a 25 pc sphere at 0.1 systems per pc^3 (MockSettings defaults)
+    census::CensusSettings census_settings;
+    census_settings.radii_text = "5,10,15,20";
+    census_settings.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4", "lateM=M5-M9"};
+    po::options_description io("Demo");
+    auto add = io.add_options();
+    add("out,o", po::value(&output_directory)->default_value(output_directory), "output directory");
+    add("seed", po::value(&request.seed)->default_value(request.seed),
+        "seed of the mock and of the Monte Carlo");
+    add("draws", po::value(&census_settings.draws.draws)->default_value(census_settings.draws.draws),
+        "Monte Carlo draws");
+    po::options_description options;
+    options.add(commonOptions(common)).add(io);
+    po::variables_map values;
+    if (parseOptions("demo", arguments, options, {}, common, values)) {
+        return 0;
+    }
+    census_settings.draws.seed = request.seed;
+    census::validate(census_settings);
+    const std::filesystem::path directory = output_directory;
+    const auto mock =
+        simulateToFiles(request, directory / "mock.fits", directory / "truth.json", census_settings.radii_pc);
+    std::cout << mockSummary(mock, census_settings.radii_pc);
+
+    reports::PipelineSettings settings;
+    settings.inputs = {(directory / "mock.fits").string()};
+    settings.output_directory = directory;
+    settings.census = census_settings;
+    const auto result = reports::runCensusPipeline(settings, std::cerr);
+    std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
+    return 0;
+}
 
 int runCommand(const std::vector<std::string>& arguments) {
     CommonOptions common;
@@ -65,10 +167,14 @@ int runCommand(const std::vector<std::string>& arguments) {
     std::string output_directory = "out/census";
     po::options_description io("Inputs and outputs");
     auto add = io.add_options();
-    add("input,i", po::value(&inputs)->composing(), "input catalogs: FITS (also .gz) or CSV files, globs, @list.txt");
+    add("input,i", po::value(&inputs)->composing(),
+        "input catalogs: FITS (also .gz) or CSV files, globs, @list.txt");
     add("out,o", po::value(&output_directory)->default_value(output_directory), "output directory");
     po::options_description options;
-    options.add(commonOptions(common)).add(io).add(photometry::catalogReaderOptions()).add(census::censusOptions(census_settings));
+    options.add(commonOptions(common))
+        .add(io)
+        .add(photometry::catalogReaderOptions())
+        .add(census::censusOptions(census_settings));
     po::positional_options_description positional;
     positional.add("input", -1);
     po::variables_map values;
@@ -96,7 +202,8 @@ int inspectCommand(const std::vector<std::string>& arguments) {
     std::string radius_text = "10";
     po::options_description io("Inputs");
     auto add = io.add_options();
-    add("input,i", po::value(&inputs)->composing(), "catalogs to inspect: FITS (also .gz) or CSV, globs, @list.txt");
+    add("input,i", po::value(&inputs)->composing(),
+        "catalogs to inspect: FITS (also .gz) or CSV, globs, @list.txt");
     add("radius", po::value(&radius_text)->default_value(radius_text),
         "largest census radius (pc), for the candidate count");
     po::options_description options;
@@ -115,8 +222,9 @@ int inspectCommand(const std::vector<std::string>& arguments) {
     settings.min_parallax_mas = 1000.0 / *std::max_element(radii.begin(), radii.end());
     const auto inspections = photometry::inspectCatalogs(photometry::expandInputPaths(inputs), settings);
     std::cout << photometry::formatInspection(inspections);
-    const bool all_read = std::all_of(inspections.begin(), inspections.end(),
-                                      [](const photometry::CatalogInspection& inspection) { return inspection.error.empty(); });
+    const bool all_read =
+        std::all_of(inspections.begin(), inspections.end(),
+                    [](const photometry::CatalogInspection& inspection) { return inspection.error.empty(); });
     return all_read ? 0 : 2;
 }
 

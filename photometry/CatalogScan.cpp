@@ -1,0 +1,192 @@
+#include "photometry/CatalogScan.h"
+
+#include "photometry/CatalogScanDetail.h"
+#include "photometry/CsvCatalog.h"
+#include "photometry/FitsCatalog.h"
+
+#include <fitsio.h>
+
+#include <atomic>
+#include <cmath>
+#include <exception>
+#include <thread>
+
+namespace starcensus::photometry {
+
+ScanCounts& ScanCounts::operator+=(const ScanCounts& other) {
+    rows_read += other.rows_read;
+    rows_no_parallax += other.rows_no_parallax;
+    rows_unusable_parallax_error += other.rows_unusable_parallax_error;
+    rows_below_parallax_limit += other.rows_below_parallax_limit;
+    rows_nonpositive_parallax += other.rows_nonpositive_parallax;
+    candidates += other.candidates;
+    candidates_nonpositive_parallax += other.candidates_nonpositive_parallax;
+    candidates_missing_g += other.candidates_missing_g;
+    candidates_missing_bp += other.candidates_missing_bp;
+    candidates_missing_rp += other.candidates_missing_rp;
+    candidates_missing_j += other.candidates_missing_j;
+    candidates_missing_h += other.candidates_missing_h;
+    candidates_missing_ks += other.candidates_missing_ks;
+    return *this;
+}
+
+namespace detail {
+
+double CatalogRow::*rowMember(CatalogField field) {
+    static constexpr std::array<double CatalogRow::*, kCatalogFieldCount> members = {
+        nullptr,
+        &CatalogRow::ra_deg,
+        &CatalogRow::dec_deg,
+        &CatalogRow::parallax_mas,
+        &CatalogRow::parallax_error_mas,
+        &CatalogRow::pmra_mas_per_yr,
+        &CatalogRow::pmdec_mas_per_yr,
+        &CatalogRow::g_mag,
+        &CatalogRow::bp_mag,
+        &CatalogRow::rp_mag,
+        &CatalogRow::g_error_mag,
+        &CatalogRow::bp_error_mag,
+        &CatalogRow::rp_error_mag,
+        &CatalogRow::j_mag,
+        &CatalogRow::h_mag,
+        &CatalogRow::ks_mag,
+        &CatalogRow::ruwe,
+    };
+    return members[static_cast<std::size_t>(field)];
+}
+
+ScanAccumulator::ScanAccumulator(FileScanResult& result, const ScanSettings& settings)
+    : result_(result), min_parallax_mas_(settings.min_parallax_mas),
+      candidate_sigma_(settings.candidate_sigma), keep_candidates_(settings.keep_candidates) {
+    for (const auto& resolved : result.report.mapping.fields) {
+        if (!resolved) {
+            continue;
+        }
+        if (resolved->field == CatalogField::SourceId) {
+            source_id_mapped_ = true;
+        } else {
+            mapped_doubles_.push_back(
+                {static_cast<std::size_t>(resolved->field), rowMember(resolved->field)});
+        }
+    }
+}
+
+void ScanAccumulator::add(const CatalogRow& row) {
+    FileScanReport& report = result_.report;
+    ScanCounts& counts = report.counts;
+    ++counts.rows_read;
+    if (source_id_mapped_ && row.source_id == kMissingSourceId) {
+        ++report.null_counts[static_cast<std::size_t>(CatalogField::SourceId)];
+    }
+    for (const auto& mapped : mapped_doubles_) {
+        if (std::isnan(row.*mapped.member)) {
+            ++report.null_counts[mapped.index];
+        }
+    }
+    const double parallax = row.parallax_mas;
+    if (!std::isfinite(parallax)) {
+        ++counts.rows_no_parallax;
+        return;
+    }
+    // fmin/fmax ignore the NaN the range starts from.
+    report.parallax_min_mas = std::fmin(report.parallax_min_mas, parallax);
+    report.parallax_max_mas = std::fmax(report.parallax_max_mas, parallax);
+    const double error = row.parallax_error_mas;
+    if (!std::isfinite(error) || error <= 0.0) {
+        ++counts.rows_unusable_parallax_error;
+        return;
+    }
+    const bool nonpositive = parallax <= 0.0;
+    counts.rows_nonpositive_parallax += nonpositive ? 1 : 0;
+    if (!(parallax + candidate_sigma_ * error > min_parallax_mas_)) {
+        ++counts.rows_below_parallax_limit;
+        return;
+    }
+    ++counts.candidates;
+    counts.candidates_nonpositive_parallax += nonpositive ? 1 : 0;
+    counts.candidates_missing_g += std::isnan(row.g_mag) ? 1 : 0;
+    counts.candidates_missing_bp += std::isnan(row.bp_mag) ? 1 : 0;
+    counts.candidates_missing_rp += std::isnan(row.rp_mag) ? 1 : 0;
+    counts.candidates_missing_j += std::isnan(row.j_mag) ? 1 : 0;
+    counts.candidates_missing_h += std::isnan(row.h_mag) ? 1 : 0;
+    counts.candidates_missing_ks += std::isnan(row.ks_mag) ? 1 : 0;
+    if (keep_candidates_) {
+        result_.candidates.push_back(row);
+    }
+}
+
+void ScanAccumulator::finish(const std::string& where) {
+    FileScanReport& report = result_.report;
+    if (report.counts.rows_read == 0) {
+        report.warnings.push_back(where + ": the table has zero rows; no candidates");
+        return;
+    }
+    for (const auto& resolved : report.mapping.fields) {
+        if (resolved &&
+            report.null_counts[static_cast<std::size_t>(resolved->field)] == report.counts.rows_read) {
+            report.warnings.push_back(where + ": column " + resolved->column_name + " (" +
+                                      std::string(fieldName(resolved->field)) + ") is null in every row");
+        }
+    }
+}
+
+} // namespace detail
+
+CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings) {
+    std::vector<detail::FileScanResult> results(paths.size());
+    std::vector<std::exception_ptr> errors(paths.size());
+    auto scanOne = [&](std::size_t index) {
+        try {
+            const auto file_index = static_cast<std::uint32_t>(index);
+            results[index] = isCsvPath(paths[index])
+                                 ? detail::scanCsvFile(paths[index], file_index, settings)
+                                 : detail::scanFitsFile(paths[index], file_index, settings);
+        } catch (...) {
+            errors[index] = std::current_exception();
+        }
+    };
+
+    unsigned threads =
+        settings.threads != 0 ? settings.threads : std::max(1U, std::thread::hardware_concurrency());
+    if (fits_is_reentrant() == 0) {
+        threads = 1; // a cfitsio built without --enable-reentrant must not be used from two threads
+    }
+    threads = std::min<unsigned>(threads, static_cast<unsigned>(paths.size()));
+    if (threads <= 1) {
+        for (std::size_t index = 0; index < paths.size(); ++index) {
+            scanOne(index);
+        }
+    } else {
+        std::atomic<std::size_t> next{0};
+        std::vector<std::thread> workers;
+        for (unsigned t = 0; t < threads; ++t) {
+            workers.emplace_back([&] {
+                for (std::size_t index = next++; index < paths.size(); index = next++) {
+                    scanOne(index);
+                }
+            });
+        }
+        for (auto& worker : workers) {
+            worker.join();
+        }
+    }
+
+    CatalogScan scan;
+    for (std::size_t index = 0; index < paths.size(); ++index) {
+        if (errors[index]) {
+            std::rethrow_exception(errors[index]);
+        }
+        scan.totals += results[index].report.counts;
+        std::vector<CatalogRow>& rows = results[index].candidates;
+        if (scan.candidates.empty()) {
+            scan.candidates = std::move(rows); // no copy for the first (often only) file
+        } else {
+            scan.candidates.insert(scan.candidates.end(), rows.begin(), rows.end());
+            std::vector<CatalogRow>().swap(rows);
+        }
+        scan.files.push_back(std::move(results[index].report));
+    }
+    return scan;
+}
+
+} // namespace starcensus::photometry

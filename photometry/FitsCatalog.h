@@ -1,0 +1,32 @@
+#pragma once
+// FITS binary-table input, read through cfitsio (which also opens .gz and other compressed files).
+// The scan reads raw rows in large blocks and decodes only the mapped fields from their big-endian bytes
+// (TFORM B, I, J, K, E, D with repeat 1; TSCALn/TZEROn and integer TNULLn honoured; NaN is null in
+// floating-point columns). Compressed files are inflated by cfitsio into memory before reading.
+#include "photometry/CatalogScanDetail.h"
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+namespace starcensus::photometry {
+
+/// One header-data unit of a FITS file.
+struct HduSummary {
+    int index = 0;           // 0-based (0 = primary), as accepted by ScanSettings::hdu
+    std::string type;        // "image", "binary table" or "ASCII table"
+    std::string name;        // EXTNAME, "" if none
+    std::int64_t rows = 0;   // tables: NAXIS2; images: 0
+    int columns = 0;         // tables: TFIELDS; images: 0
+    std::string image_shape; // images: "2048x4096", "none" without data; tables: ""
+};
+
+/// Every HDU of a FITS file; throws InputError naming the file if it cannot be read.
+std::vector<HduSummary> listHdus(const std::string& path);
+
+namespace detail {
+/// Scans one FITS file (see CatalogScan.h); rows get `file_index`.
+FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings);
+} // namespace detail
+
+} // namespace starcensus::photometry
