@@ -5,43 +5,52 @@
 
 #include <algorithm>
 #include <charconv>
+#include <cstdio>
 
 namespace starcensus::census {
 
 namespace po = boost::program_options;
 
+namespace {
+
+/// A numeric option whose default is shown as written (%g), not with binary round-off.
+po::typed_value<double>* number(double& target, const char* value_name) {
+    char text[32];
+    std::snprintf(text, sizeof text, "%g", target);
+    return po::value(&target)->default_value(target, text)->value_name(value_name);
+}
+
+} // namespace
+
 po::options_description censusOptions(CensusSettings& settings) {
     po::options_description options("Census (membership, quality cuts, Monte Carlo)");
     auto add = options.add_options();
-    add("radius", po::value(&settings.radii_text)->default_value(settings.radii_text),
+    add("radius",
+        po::value(&settings.radii_text)->default_value(settings.radii_text)->value_name("PC[,PC...]"),
         "census radius or radii, comma-separated (pc), e.g. 5,10,20");
-    add("distance-prior", po::value(&settings.prior_name)->default_value(settings.prior_name),
+    add("distance-prior",
+        po::value(&settings.prior_name)->default_value(settings.prior_name)->value_name("NAME"),
         "distance prior of the membership posterior: constant-density (p(r) ∝ r^2) or flat-parallax");
     MembershipSettings& membership = settings.membership;
-    add("prior-outer-distance",
-        po::value(&membership.outer_distance_pc)->default_value(membership.outer_distance_pc),
+    add("prior-outer-distance", number(membership.outer_distance_pc, "PC"),
         "outer distance where the distance prior is truncated (pc); must exceed every radius");
-    add("parallax-zero-point",
-        po::value(&membership.parallax_zero_point_mas)->default_value(membership.parallax_zero_point_mas),
+    add("parallax-zero-point", number(membership.parallax_zero_point_mas, "MAS"),
         "parallax zero point subtracted from catalogue parallaxes (mas); Gaia DR3: about -0.017 (Lindegren "
         "et al. "
         "2021)");
-    add("parallax-error-scale",
-        po::value(&membership.parallax_error_inflation)->default_value(membership.parallax_error_inflation),
+    add("parallax-error-scale", number(membership.parallax_error_inflation, "FACTOR"),
         "factor applied to catalogue parallax errors (>= 1 inflates)");
     QualitySettings& quality = settings.quality;
-    add("max-ruwe", po::value(&quality.max_ruwe)->default_value(quality.max_ruwe),
-        "remove rows with RUWE above this (0 disables)");
-    add("min-parallax-snr",
-        po::value(&quality.min_parallax_snr_to_classify)->default_value(quality.min_parallax_snr_to_classify),
+    add("max-ruwe", number(quality.max_ruwe, "RUWE"), "remove rows with RUWE above this (0 disables)");
+    add("min-parallax-snr", number(quality.min_parallax_snr_to_classify, "SNR"),
         "classify only rows with parallax/error at least this; others count as members, class unclassified");
-    add("max-colour-error",
-        po::value(&quality.max_colour_error_mag)->default_value(quality.max_colour_error_mag),
+    add("max-colour-error", number(quality.max_colour_error_mag, "MAG"),
         "drop BP-RP when the BP or RP error exceeds this (mag); the row is classified from M_G alone");
-    add("draws", po::value(&settings.draws.draws)->default_value(settings.draws.draws),
+    add("draws", po::value(&settings.draws.draws)->default_value(settings.draws.draws)->value_name("N"),
         "Monte Carlo draws over the measurement errors");
-    add("seed", po::value(&settings.draws.seed)->default_value(settings.draws.seed), "random seed");
-    add("group", po::value(&settings.group_definitions)->composing(),
+    add("seed", po::value(&settings.draws.seed)->default_value(settings.draws.seed)->value_name("N"),
+        "random seed");
+    add("group", po::value(&settings.group_definitions)->composing()->value_name("NAME=ITEMS"),
         "extra class group NAME=ITEM[,ITEM...]; items are classes or subtype ranges, e.g. FGK=F,G,K or "
         "earlyM=M0-M4 (repeatable)");
     return options;

@@ -74,7 +74,8 @@ po::options_description catalogReaderOptions() {
         "candidate-sigma", po::value<double>()->default_value(3.0)->value_name("K"),
         "keep rows with parallax + K * parallax_error above the volume's parallax limit "
         "(standard errors; 0 to 10)")("threads", po::value<int>()->default_value(0)->value_name("N"),
-                                      "input files read at once (0 = one per core; 0 to 1024)")(
+                                      "worker threads for reading files and for the Monte Carlo (0 = one per "
+                                      "core; 0 to 1024); results do not depend on it")(
         "read-block-mb", po::value<int>()->default_value(8)->value_name("MIB"),
         "table bytes read per block, in MiB (1 to 1024)");
     return options;
