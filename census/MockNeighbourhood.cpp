@@ -275,6 +275,11 @@ bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::Catalo
             continue;
         }
         const bool has_companion = !companion.compact_remnant;
+        if (has_companion && companion.abs.g < primary.abs.g) {
+            // The truth names the component that dominates the G light, the one a photometric census
+            // can classify (a white dwarf with a brighter M dwarf companion is seen as an M dwarf).
+            std::swap(primary, companion);
+        }
         const BandMagnitudes abs = has_companion ? combine(primary.abs, companion.abs) : primary.abs;
         const double modulus = 5.0 * std::log10(distance_pc) - 5.0;
 

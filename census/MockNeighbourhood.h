@@ -16,7 +16,8 @@
 //    al. 2001, Rev. Mod. Phys. 73, 719; from memory), clamped to the settings' range; Teff -> code ->
 //    dwarf locus (L/T/Y).
 //  - Unresolved binaries: companion mass q * M1 with q uniform in [mass_min / M1, 1]; same age and
-//    distance; fluxes added per band. The object keeps the primary's class in the truth.
+//    distance; fluxes added per band. The object keeps the class of the component that is brighter in
+//    G (the one a photometric census can classify); the other is its companion.
 //  - Measurement errors from MockErrors.h, Gaussian in flux for the Gaia bands and in magnitude for
 //    2MASS; an object is catalogued if its measured G is at most the survey limit.
 #include "census/InitialMassFunction.h"
@@ -95,8 +96,9 @@ inline constexpr std::array<const char*, 4> kMockStageNames = {"main_sequence", 
 /// The truth of one simulated object (an unresolved system), catalogued or not.
 struct ObjectTruth {
     std::int64_t source_id = photometry::kMissingSourceId; // also the catalog row's source_id
-    photometry::StellarClass true_class = photometry::StellarClass::Unclassified; // the primary's
-    MockStage stage = MockStage::MainSequence;                                    // the primary's
+    photometry::StellarClass true_class =
+        photometry::StellarClass::Unclassified;  // the G-brighter component's
+    MockStage stage = MockStage::MainSequence;   // the G-brighter component's
     double spectral_code = photometry::kMissing; // dwarf code; NaN for giants and white dwarfs
     double distance_pc = photometry::kMissing;
     double mass_msun = photometry::kMissing; // present-day primary mass
