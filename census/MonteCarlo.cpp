@@ -56,7 +56,7 @@ float finiteOrZero(double value) {
 
 PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
                                const MembershipSettings& membership, double min_parallax_snr_to_classify,
-                               unsigned threads)
+                               unsigned threads, const photometry::Classifier* classifier)
     : radii_pc_(std::move(radii_pc)) {
     const std::size_t n = rows.size();
     g_mag_.resize(n);
@@ -65,6 +65,9 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     colour_error_mag_.resize(n);
     probability_within_.resize(n * radii_pc_.size());
     modulus_quantiles_.resize(n * kQuantiles);
+    if (classifier != nullptr) {
+        colourless_categories_.resize(n * kQuantiles);
+    }
     forEachBlock(n, resolveThreads(threads), [&](std::size_t, std::size_t begin, std::size_t end, unsigned) {
         for (std::size_t s = begin; s < end; ++s) {
             const photometry::CatalogRow& row = rows[s];
@@ -84,6 +87,19 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
             std::copy(posterior.distanceModulusQuantiles().begin(),
                       posterior.distanceModulusQuantiles().end(),
                       modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
+            if (classifier != nullptr && std::isnan(colour_mag_[s]) && std::isfinite(g_mag_[s])) {
+                for (std::size_t k = 0; k < kQuantiles; ++k) {
+                    const photometry::PhotometricInput input{.g_mag = row.g_mag,
+                                                             .rp_mag = row.rp_mag,
+                                                             .j_mag = row.j_mag,
+                                                             .ks_mag = row.ks_mag,
+                                                             .distance_modulus_mag =
+                                                                 posterior.distanceModulusQuantiles()[k]};
+                    const auto result = classifier->classify(input);
+                    colourless_categories_[s * kQuantiles + k] =
+                        photometry::categoryOf(result.stellar_class, result.spectral_code);
+                }
+            }
         }
     });
 }
@@ -151,6 +167,10 @@ class SampleDrawer {
             const float colour_error = sample_.colour_error_mag_[s];
             const bool has_colour = std::isfinite(colour);
             const bool has_magnitude = std::isfinite(g);
+            const photometry::Category* colourless =
+                sample_.colourless_categories_.empty()
+                    ? nullptr
+                    : &sample_.colourless_categories_[s * PreparedSample::kQuantiles];
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
             const auto draws = static_cast<std::size_t>(settings_.draws);
             for (int d = 0; d < settings_.draws; ++d) {
@@ -170,6 +190,8 @@ class SampleDrawer {
                     const float drawn_colour =
                         colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
                     assigned = classes_.lookup(drawn_colour, abs_g);
+                } else if (has_magnitude && colourless != nullptr) {
+                    assigned = colourless[static_cast<int>(position + 0.5f)];
                 } else if (has_magnitude) {
                     assigned = classes_.lookupMagnitudeOnly(abs_g);
                 }

@@ -9,6 +9,7 @@
 #include "census/Membership.h"
 #include "photometry/CatalogRow.h"
 #include "photometry/ClassGrid.h"
+#include "photometry/Classifier.h"
 #include "photometry/StellarClass.h"
 
 #include <cstdint>
@@ -31,9 +32,13 @@ class PreparedSample {
 
     /// Stars without G, or with parallax_mas / parallax_error_mas below min_parallax_snr_to_classify, are
     /// counted as members by their probabilities but always get the class `unclassified`.
+    /// Stars without BP-RP are classified from M_G, G-RP and the near infrared, which the (BP-RP, M_G)
+    /// grid cannot see: with a classifier, their category is tabulated once at every distance quantile
+    /// (exact classifier; their small G noise is neglected beside the distance spread). Without one, the
+    /// grid's M_G-only table is used.
     PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
                    const MembershipSettings& membership, double min_parallax_snr_to_classify,
-                   unsigned threads);
+                   unsigned threads, const photometry::Classifier* classifier = nullptr);
 
     std::size_t size() const { return g_mag_.size(); }
     const std::vector<double>& radii() const { return radii_pc_; }
@@ -53,6 +58,8 @@ class PreparedSample {
     std::vector<float> colour_error_mag_;
     std::vector<float> probability_within_; // [star][radius]
     std::vector<float> modulus_quantiles_;  // [star][kQuantiles], distance modulus (mag)
+    // [star][kQuantiles]: category at each quantile for stars without BP-RP; empty without a classifier
+    std::vector<photometry::Category> colourless_categories_;
 };
 
 /// Member counts per radius, census category and draw, and per-star class frequencies.

@@ -78,7 +78,7 @@ Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, 
         return result;
     }
     if (std::isnan(bp_rp_mag)) {
-        classifyWithoutColour(result);
+        classifyWithoutColour(result, abs_j_mag);
     } else {
         classifyWithColour(result);
     }
@@ -153,10 +153,24 @@ void Classifier::classifyWithColour(Classification& result) const {
     setDwarf(result, code);
 }
 
-void Classifier::classifyWithoutColour(Classification& result) const {
+void Classifier::classifyWithoutColour(Classification& result, double abs_j_mag) const {
     result.flags |= bit(ClassificationFlag::NoColour);
     const double abs_g = result.abs_g_mag;
     const auto [bright_end, faint_end] = locus_abs_g_range_mag_;
+    const bool red = result.g_rp_mag > settings_.t_dwarf_min_g_rp_mag ||
+                     abs_g - abs_j_mag > settings_.t_dwarf_min_g_j_mag; // false for NaN colours
+    if (abs_g > faint_end && red) {
+        // Fainter in M_G than the last tabulated dwarf (L8V) and red: a T dwarf (or later). The subtype
+        // comes from M_J where the locus is monotonic in it (T5V onward), else it stays unknown.
+        result.flags |= bit(ClassificationFlag::OutsideLocus);
+        const double code = locus_.codeAtValue(LocusQuantity::AbsJMag, abs_j_mag);
+        if (code >= 85.0) {
+            setDwarf(result, code);
+        } else {
+            result.stellar_class = StellarClass::T;
+        }
+        return;
+    }
     if (abs_g < bright_end || abs_g > faint_end) {
         result.flags |= bit(ClassificationFlag::OutsideLocus);
         return;

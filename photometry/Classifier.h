@@ -22,6 +22,7 @@
 //     M_J and J-Ks: the nearest point of the M/L/T/Y locus in (J-Ks, M_J), flagged NearInfrared.
 //  6. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
 //     more than g_rp_tolerance_mag bluer than the locus G-RP at that code, unclassified, OutsideLocus.
+//     Fainter than the locus's faintest M_G (L8V) and red in G-RP or G-J: T dwarf (OutsideLocus).
 #include "photometry/DwarfLocus.h"
 #include "photometry/StellarClass.h"
 #include "photometry/WhiteDwarfSequence.h"
@@ -80,6 +81,11 @@ struct ClassifierSettings {
     double nir_max_distance = 3.0;
     /// Without BP-RP: a G-RP bluer than the locus at the M_G code by more than this is unclassified.
     double g_rp_tolerance_mag = 0.3;
+    /// Without BP-RP and fainter than the locus's faintest M_G (L8V, 20.0): a T dwarf if G-RP or G-J is
+    /// redder than these. The locus has G-RP 1.87 and G-J 5.35 at L8V; the coolest Montreal white dwarfs
+    /// (1500 K) have G-RP of -0.5 to 0 and warmer ones G-J below ~1.5, so the cuts sit well apart.
+    double t_dwarf_min_g_rp_mag = 1.2;
+    double t_dwarf_min_g_j_mag = 3.0;
     /// Parallax signal-to-noise below which LowParallaxSnr is set.
     double min_parallax_snr = 5.0;
     WhiteDwarfBoundarySettings white_dwarf_boundary;
@@ -140,7 +146,7 @@ class Classifier {
   private:
     static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
     void classifyWithColour(Classification& result) const;
-    void classifyWithoutColour(Classification& result) const;
+    void classifyWithoutColour(Classification& result, double abs_j_mag) const;
     bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag) const;
     void setDwarf(Classification& result, double spectral_code) const;
 

@@ -85,12 +85,13 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     result.candidates_after_cuts = rows.size();
 
     start = Clock::now();
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
     const census::PreparedSample sample(rows, census.radii_pc, census.membership,
-                                        census.quality.min_parallax_snr_to_classify, census.draws.threads);
+                                        census.quality.min_parallax_snr_to_classify, census.draws.threads,
+                                        &classifier);
     result.timings.posteriors_s = secondsSince(start);
 
     start = Clock::now();
-    const photometry::Classifier& classifier = photometry::Classifier::shipped();
     const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     const census::DrawTallies tallies = census::drawSample(sample, grid, census.draws);
     std::vector<double> expected;

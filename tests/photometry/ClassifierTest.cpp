@@ -312,3 +312,16 @@ TEST_CASE("the lookup grid agrees with the exact classifier away from boundaries
     CHECK(classOfCategory(grid.lookup(0.5f, 99.0f)) == StellarClass::Unclassified);
     CHECK(classOfCategory(grid.lookup(0.5f, static_cast<float>(kNaN))) == StellarClass::Unclassified);
 }
+
+TEST_CASE("objects without BP-RP fainter than the L8V locus are T dwarfs when red, not when blue") {
+    const Classifier& classifier = Classifier::shipped();
+    // T7V of Pecaut & Mamajek: M_J 15.83; its M_G is not tabulated, so 21.0 stands for "fainter than L8V
+    // (20.0)". G-J = 5.2 (red).
+    const Classification t_dwarf = classifier.classifyAbsolute(21.0, kNaN, kNaN, 15.83, kNaN);
+    CHECK(t_dwarf.stellar_class == StellarClass::T);
+    CHECK(t_dwarf.spectral_code == doctest::Approx(87.0).epsilon(0.01));
+    // An early T without a usable M_J subtype still counts as T.
+    CHECK(classifier.classifyAbsolute(20.6, kNaN, kNaN, 14.5, kNaN).stellar_class == StellarClass::T);
+    // The coolest Montreal DA model at log g 9.0 (1500 K): M_G 21.281, G-RP 21.281 - 21.785 = -0.504.
+    CHECK(classifier.classifyAbsolute(21.281, kNaN, -0.504).stellar_class != StellarClass::T);
+}
