@@ -42,6 +42,8 @@ po::options_description censusOptions(CensusSettings& settings) {
         "factor applied to catalogue parallax errors (>= 1 inflates)");
     QualitySettings& quality = settings.quality;
     add("max-ruwe", number(quality.max_ruwe, "RUWE"), "remove rows with RUWE above this (0 disables)");
+    add("inflate-errors-above-ruwe", number(quality.inflate_errors_above_ruwe, "RUWE"),
+        "multiply the parallax error by RUWE for rows with RUWE above this (0 disables)");
     add("min-parallax-snr", number(quality.min_parallax_snr_to_classify, "SNR"),
         "classify only rows with parallax/error at least this; others count as members, class unclassified");
     add("max-colour-error", number(quality.max_colour_error_mag, "MAG"),
@@ -91,6 +93,7 @@ void validate(CensusSettings& settings) {
     requireInRange("parallax-zero-point", settings.membership.parallax_zero_point_mas, -1.0, 1.0, "mas");
     requireInRange("parallax-error-scale", settings.membership.parallax_error_inflation, 0.1, 10.0, "");
     requireInRange("max-ruwe", settings.quality.max_ruwe, 0.0, 100.0, "");
+    requireInRange("inflate-errors-above-ruwe", settings.quality.inflate_errors_above_ruwe, 0.0, 100.0, "");
     requireInRange("min-parallax-snr", settings.quality.min_parallax_snr_to_classify, 0.0, 1000.0, "");
     requireInRange("max-colour-error", settings.quality.max_colour_error_mag, 0.0, 10.0, "mag",
                    LowerBound::Exclusive);

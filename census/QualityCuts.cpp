@@ -33,6 +33,20 @@ std::vector<CutOutcome> applyQualityCuts(std::vector<photometry::CatalogRow>& ro
     outcomes.push_back({"ruwe", describe("removed: RUWE > ", settings.max_ruwe),
                         static_cast<std::int64_t>(before - rows.size())});
 
+    std::int64_t inflated = 0;
+    if (settings.inflate_errors_above_ruwe > 0.0) {
+        for (auto& row : rows) {
+            if (row.ruwe > settings.inflate_errors_above_ruwe) {
+                row.parallax_error_mas *= row.ruwe;
+                ++inflated;
+            }
+        }
+    }
+    outcomes.push_back(
+        {"ruwe_error_inflation",
+         describe("parallax error multiplied by RUWE: RUWE > ", settings.inflate_errors_above_ruwe),
+         inflated});
+
     std::int64_t noisy_colours = 0;
     for (auto& row : rows) {
         if (std::isfinite(row.bp_mag) && std::isfinite(row.rp_mag) &&

@@ -80,6 +80,31 @@ std::string mockSummary(const census::MockResult& mock, const std::vector<double
     return text.str();
 }
 
+/// Recovered counts beside the mock's truth, per radius and class.
+std::string truthComparison(const census::MockResult& mock, const reports::PipelineResult& result) {
+    std::vector<double> radii;
+    for (const auto& estimate : result.estimates) {
+        radii.push_back(estimate.radius_pc);
+    }
+    const auto truth = census::countWithinRadii(mock.truth, radii);
+    std::ostringstream text;
+    text << std::fixed << std::setprecision(1);
+    for (std::size_t r = 0; r < radii.size(); ++r) {
+        text << "within " << radii[r] << " pc   truth: all / catalogued   recovered: count [68%]\n";
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            const auto& count = result.estimates[r].groups[c].count.this_volume;
+            if (truth[r].all[c] == 0 && count.hi95 <= 0.0) {
+                continue;
+            }
+            text << "  " << std::left << std::setw(13) << photometry::kClassNames[c] << std::right
+                 << std::setw(6) << truth[r].all[c] << " / " << std::setw(5) << truth[r].catalogued[c]
+                 << "   " << std::setw(7) << count.median << " [" << count.lo68 << ", " << count.hi68
+                 << "]\n";
+        }
+    }
+    return text.str();
+}
+
 /// Simulates and writes the mock catalog and its truth.
 census::MockResult simulateToFiles(const census::MockRequest& request,
                                    const std::filesystem::path& catalog_path,
@@ -156,7 +181,8 @@ int demoCommand(const std::vector<std::string>& arguments) {
     settings.output_directory = directory;
     settings.census = census_settings;
     const auto result = reports::runCensusPipeline(settings, std::cerr);
-    std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
+    std::cout << reports::summarizeRun(result) << truthComparison(mock, result) << "outputs in "
+              << output_directory << "/\n";
     return 0;
 }
 
