@@ -195,8 +195,8 @@ TEST_CASE("L and T rows of the dwarf table classify as L and T") {
 
 TEST_CASE("CARMENES M dwarfs classify as M") {
     // Cifuentes et al. (arXiv:2412.12264) CARMENES input catalogue IX, cif03.full_table.csv: literature
-    // spectral types SpT, Gaia DR3 parallax and G/BP/RP, 2MASS J/Ks.
-    std::ifstream file(STARCENSUS_REFERENCE_DIR "/CARMENES_IX_cif03_full_table.csv");
+    // spectral types SpT, Gaia DR3 parallax and G/BP/RP, 2MASS J/Ks (columns copied to tests/reference/).
+    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/carmenes_ix_photometry.csv");
     REQUIRE(file);
     std::string line;
     std::getline(file, line);
