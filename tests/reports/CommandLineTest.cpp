@@ -1,0 +1,87 @@
+// The executable on bad input: one line on stderr naming the file, column or option, exit status 2,
+// and no output file left behind.
+#include "tests/support/ReferencePython.h"
+
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <array>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <string>
+#include <sys/wait.h>
+
+namespace {
+
+struct Outcome {
+    int exit_code;
+    std::string stderr_text;
+};
+
+Outcome runStarcensus(const std::string& arguments, const std::filesystem::path& directory) {
+    const std::filesystem::path stderr_path = directory / "stderr.txt";
+    const std::string command = "cd '" + directory.string() + "' && '" + STARCENSUS_EXECUTABLE + "' " +
+                                arguments + " > /dev/null 2> '" + stderr_path.string() + "'";
+    const int status = std::system(command.c_str());
+    std::ifstream stream(stderr_path);
+    std::string text((std::istreambuf_iterator<char>(stream)), std::istreambuf_iterator<char>());
+    std::filesystem::remove(stderr_path);
+    return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, text};
+}
+
+std::size_t lineCount(const std::string& text) {
+    return static_cast<std::size_t>(std::count(text.begin(), text.end(), '\n'));
+}
+
+bool directoryHasFiles(const std::filesystem::path& directory) {
+    return std::filesystem::exists(directory) && !std::filesystem::is_empty(directory);
+}
+
+} // namespace
+
+TEST_CASE("bad input stops the run with one line naming the culprit and writes nothing") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli");
+    const auto& dir = scratch.path();
+    {
+        std::ofstream not_fits(dir / "notes.fits");
+        not_fits << "this is not a FITS file\n";
+    }
+    struct Case {
+        const char* arguments;
+        const char* expected; // part of the message
+    };
+    const std::array<Case, 6> cases = {{
+        {"run missing.fits --out out", "missing.fits"},
+        {"run notes.fits --out out", "notes.fits"},
+        {"run notes.fits --radius -5 --out out", "--radius"},
+        {"run notes.fits --draws 0 --out out", "--draws"},
+        {"run notes.fits --no-such-option 1 --out out", "no-such-option"},
+        {"inspect", "--input"},
+    }};
+    for (const auto& test : cases) {
+        const Outcome outcome = runStarcensus(test.arguments, dir);
+        CAPTURE(test.arguments);
+        CAPTURE(outcome.stderr_text);
+        CHECK(outcome.exit_code == 2);
+        CHECK(lineCount(outcome.stderr_text) == 1);
+        CHECK(outcome.stderr_text.find(test.expected) != std::string::npos);
+        CHECK(outcome.stderr_text.rfind("starcensus: error: ", 0) == 0);
+        CHECK_FALSE(directoryHasFiles(dir / "out"));
+    }
+}
+
+TEST_CASE("a mock run end to end: simulate, inspect and run exit 0 and write complete outputs") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-run");
+    const auto& dir = scratch.path();
+    REQUIRE(runStarcensus("simulate --out mock.fits --truth truth.json --radius-max 12 --seed 3", dir)
+                .exit_code == 0);
+    CHECK(runStarcensus("inspect mock.fits", dir).exit_code == 0);
+    REQUIRE(runStarcensus("run mock.fits --radius 5,10 --draws 50 --out out", dir).exit_code == 0);
+    for (const char* name : {"sample.fits", "fractions.json", "fractions.csv"}) {
+        CHECK(std::filesystem::is_regular_file(dir / "out" / name));
+    }
+    for (const auto& entry : std::filesystem::directory_iterator(dir / "out")) {
+        CHECK(entry.path().string().find(".partial-") == std::string::npos); // no temporary left behind
+    }
+}
