@@ -1,7 +1,9 @@
 #include "census/ClassGroups.h"
 
+#include "photometry/DwarfLocus.h"
 #include "photometry/InputError.h"
 
+#include <charconv>
 #include <cmath>
 
 namespace starcensus::census {
@@ -18,8 +20,55 @@ std::string_view trim(std::string_view text) {
     return text;
 }
 
+bool parseRange(std::string_view text, double& low, double& high) {
+    const auto dash = text.find('-', 1);
+    if (dash == std::string_view::npos) {
+        return false;
+    }
+    const auto parse = [](std::string_view number, double& value) {
+        const auto [end, error] = std::from_chars(number.data(), number.data() + number.size(), value);
+        return error == std::errc{} && end == number.data() + number.size();
+    };
+    return parse(text.substr(0, dash), low) && parse(text.substr(dash + 1), high) && low < high;
+}
+
+/// "teff:3000-4000" (K) or "mass:0.1-0.5" (Msun): the dwarf subtypes whose locus value at the middle of
+/// the subtype lies in the range. False if the item is not of this form.
+bool addLocusRange(ClassGroup& group, std::string_view item, std::string_view definition) {
+    const auto colon = item.find(':');
+    if (colon == std::string_view::npos) {
+        return false;
+    }
+    const std::string_view quantity_name = item.substr(0, colon);
+    photometry::LocusQuantity quantity;
+    if (quantity_name == "teff") {
+        quantity = photometry::LocusQuantity::TeffK;
+    } else if (quantity_name == "mass") {
+        quantity = photometry::LocusQuantity::MassMsun;
+    } else {
+        return false;
+    }
+    double low = 0.0;
+    double high = 0.0;
+    if (!parseRange(item.substr(colon + 1), low, high)) {
+        throw InputError("class group '" + std::string(definition) + "': '" + std::string(item) +
+                         "' needs a range LOW-HIGH, e.g. teff:3000-4000 (K) or mass:0.1-0.5 (Msun)");
+    }
+    const auto& locus = photometry::DwarfLocus::shipped();
+    for (std::size_t c = 0; c < photometry::kDwarfCategories; ++c) {
+        const double value = locus.valueAtCode(quantity, static_cast<double>(c) + 0.5);
+        if (value >= low && value <= high) {
+            group.categories.set(c);
+        }
+    }
+    return true;
+}
+
 void addItem(ClassGroup& group, std::string_view item, std::string_view definition) {
     using photometry::Category;
+    if (addLocusRange(group, item, definition)) {
+        return;
+    }
     if (const auto whole_class = photometry::classFromName(item)) {
         for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
             if (photometry::classOfCategory(static_cast<Category>(c)) == *whole_class) {

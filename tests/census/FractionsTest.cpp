@@ -40,6 +40,19 @@ TEST_CASE("class groups parse classes and subtype ranges") {
     CHECK(early_m.categories.test(64));
     CHECK_FALSE(early_m.categories.test(65));
     CHECK(census::standardClassGroups().size() == photometry::kClassCount);
+    // Pecaut & Mamajek locus Teff (data/ table): F9.5V 5990 K, G9V 5380 K, K0V 5290 K, K1V 5170 K. At
+    // mid-subtype F9 (5990 K) to G9 (5335 K) lie inside 5300-6000 K, K0 (5230 K) does not.
+    const auto sunlike = census::parseClassGroup("sunlike=teff:5300-6000");
+    CHECK(sunlike.categories.test(39));
+    CHECK(sunlike.categories.test(42));
+    CHECK(sunlike.categories.test(49));
+    CHECK_FALSE(sunlike.categories.test(50));
+    CHECK_FALSE(sunlike.categories.test(60));
+    const auto low_mass = census::parseClassGroup("lowmass=mass:0.08-0.3");
+    CHECK(low_mass.categories.test(64));       // M4V 0.24 Msun in the locus
+    CHECK_FALSE(low_mass.categories.test(60)); // M0V 0.585 Msun
+    CHECK_THROWS_WITH_AS(census::parseClassGroup("x=teff:hot"), doctest::Contains("needs a range LOW-HIGH"),
+                         InputError);
     CHECK_THROWS_WITH_AS(census::parseClassGroup("bad=Q7"),
                          doctest::Contains("class group 'bad=Q7': 'Q7' is neither a class"), InputError);
     CHECK_THROWS_AS(census::parseClassGroup("noequals"), InputError);
