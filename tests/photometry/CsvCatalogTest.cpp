@@ -19,7 +19,7 @@ std::string scanError(const std::string& path, const ScanSettings& settings) {
 } // namespace
 
 TEST_CASE("CSV rows round-trip, with Gaia names implying mas and missing fields as NaN") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("stars.CSV");
     writeText(path, "# a comment before the header\n"
                     "source_id, ra, dec, parallax, parallax_error, phot_g_mean_mag, phot_bp_mean_mag, j_m\n"
@@ -56,7 +56,7 @@ TEST_CASE("CSV rows round-trip, with Gaia names implying mas and missing fields 
 }
 
 TEST_CASE("CSV parallaxes under other names need --unit, which converts") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("plx.csv");
     writeText(path, "plx,e_plx,gmag\n0.1,0.001,10\n");
     ScanSettings settings;
@@ -74,7 +74,7 @@ TEST_CASE("CSV parallaxes under other names need --unit, which converts") {
 }
 
 TEST_CASE("bad CSV input names file, line and column") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const ScanSettings settings;
     const std::string text_value = directory.file("text.csv");
     writeText(text_value, "parallax,parallax_error,gmag\n1,0.1,10\n2,abc,11\n");

@@ -44,7 +44,7 @@ ScanSettings everything() {
 } // namespace
 
 TEST_CASE("known values come back exactly, in canonical units, with the mapping recorded") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("gaia.fits");
     writeFitsTable(path, smallGaiaTable());
     ScanSettings settings;
@@ -102,7 +102,7 @@ TEST_CASE("known values come back exactly, in canonical units, with the mapping 
 }
 
 TEST_CASE("mapping routes: user, UCD and name in one file") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("routes.fits");
     writeFitsTable(path,
                    {"",
@@ -123,7 +123,7 @@ TEST_CASE("mapping routes: user, UCD and name in one file") {
 }
 
 TEST_CASE("integer nulls come from TNULL and an unsigned 64-bit source_id from TZERO") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("nulls.fits");
     FixtureColumn ids = makeColumn("source_id", "1W");
     ids.integers = {std::int64_t{9'000'000'000'000'000'000}, 0, 42};
@@ -151,7 +151,7 @@ TEST_CASE("integer nulls come from TNULL and an unsigned 64-bit source_id from T
 }
 
 TEST_CASE("parallaxes in arcsec convert to mas") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("arcsec.fits");
     writeFitsTable(
         path, {"",
@@ -165,7 +165,7 @@ TEST_CASE("parallaxes in arcsec convert to mas") {
 }
 
 TEST_CASE("the fast block scan equals the column-by-column reference, also from a .gz copy") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("mixed.fits");
     writeFitsTable(path, mixedTypeTable(3000, 7));
     const std::string gz_path = directory.file("mixed.fits.gz");
@@ -206,7 +206,7 @@ TEST_CASE("the fast block scan equals the column-by-column reference, also from 
 }
 
 TEST_CASE("a parallel scan of several files equals the sequential scan, in file order") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     std::vector<std::string> paths;
     for (std::uint64_t seed = 1; seed <= 5; ++seed) {
         paths.push_back(directory.file("part" + std::to_string(seed) + ".fits"));
@@ -228,7 +228,7 @@ TEST_CASE("a parallel scan of several files equals the sequential scan, in file 
 }
 
 TEST_CASE("the table is chosen by HDU index or EXTNAME") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("two.fits");
     FixtureTable second = smallGaiaTable();
     second.extname = "SECOND";
@@ -260,7 +260,7 @@ TEST_CASE("the table is chosen by HDU index or EXTNAME") {
 }
 
 TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cause") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const ScanSettings settings = everything();
     auto scanError = [&](const std::string& path) {
         return inputErrorOf([&] { scanCatalogs({path}, settings); });
@@ -334,7 +334,7 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
 }
 
 TEST_CASE("empty tables, missing and negative parallaxes and all-null photometry are counted, not thrown") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string empty = directory.file("empty.fits");
     writeFitsTable(empty,
                    {"EMPTY",
@@ -378,7 +378,7 @@ TEST_CASE("empty tables, missing and negative parallaxes and all-null photometry
 }
 
 TEST_CASE("inspect reports HDUs, mapping routes, units, null counts and the parallax range") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     const std::string path = directory.file("gaia.fits");
     writeFitsTable(path, smallGaiaTable());
     const std::string missing = directory.file("none.fits");

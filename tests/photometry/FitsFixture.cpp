@@ -214,17 +214,6 @@ std::size_t FixtureColumn::rows() const {
     return std::max({values.size(), integers.size(), texts.size()});
 }
 
-TemporaryDirectory::TemporaryDirectory() {
-    std::random_device entropy;
-    path_ = std::filesystem::temp_directory_path() / ("starcensus-test-" + std::to_string(entropy()));
-    std::filesystem::create_directories(path_);
-}
-
-TemporaryDirectory::~TemporaryDirectory() {
-    std::error_code ignored;
-    std::filesystem::remove_all(path_, ignored);
-}
-
 void writeFitsTables(const std::string& path, const std::vector<FixtureTable>& tables) {
     int status = 0;
     fitsfile* file = nullptr;

@@ -8,21 +8,9 @@
 #include <string>
 #include <vector>
 
+#include "tests/support/ReferencePython.h"
+
 namespace starcensus::testing {
-
-/// A fresh directory under the system temporary directory, removed with everything in it.
-class TemporaryDirectory {
-  public:
-    TemporaryDirectory();
-    ~TemporaryDirectory();
-    TemporaryDirectory(const TemporaryDirectory&) = delete;
-    TemporaryDirectory& operator=(const TemporaryDirectory&) = delete;
-
-    std::string file(const std::string& name) const { return (path_ / name).string(); }
-
-  private:
-    std::filesystem::path path_;
-};
 
 /// One column. Exactly one of values, integers, texts is filled (one entry per row).
 struct FixtureColumn {

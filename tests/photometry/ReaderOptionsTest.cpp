@@ -83,7 +83,7 @@ TEST_CASE("bad reader option values are rejected with the value and the allowed 
 }
 
 TEST_CASE("input paths expand globs and @lists, and name what is missing") {
-    TemporaryDirectory directory;
+    const ScratchDirectory directory("starcensus-reader");
     auto listOf = [](const std::string& path) { return std::string("@").append(path); };
     for (const auto* name : {"b.fits", "a.fits", "c.csv"}) {
         writeText(directory.file(name), "");

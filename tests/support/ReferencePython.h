@@ -30,11 +30,13 @@ inline std::string runReferencePython(const std::string& script, const std::stri
     return output;
 }
 
-/// A fresh directory under the system temporary directory, removed when the object goes.
+/// A fresh directory under the system temporary directory, removed when the object goes; unique per
+/// process and object, so several may exist at once.
 class ScratchDirectory {
   public:
     explicit ScratchDirectory(const std::string& name)
-        : path_(std::filesystem::temp_directory_path() / (name + "-" + std::to_string(::getpid()))) {
+        : path_(std::filesystem::temp_directory_path() /
+                (name + "-" + std::to_string(::getpid()) + "-" + std::to_string(nextSerial()))) {
         std::filesystem::remove_all(path_);
         std::filesystem::create_directories(path_);
     }
@@ -45,8 +47,13 @@ class ScratchDirectory {
     ScratchDirectory(const ScratchDirectory&) = delete;
     ScratchDirectory& operator=(const ScratchDirectory&) = delete;
     const std::filesystem::path& path() const { return path_; }
+    std::string file(const std::string& name) const { return (path_ / name).string(); }
 
   private:
+    static int nextSerial() {
+        static int serial = 0;
+        return ++serial;
+    }
     std::filesystem::path path_;
 };
 
