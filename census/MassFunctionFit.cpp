@@ -29,15 +29,8 @@ double binProbability(double lo, double hi, double abs_g, double scatter) {
     return 0.5 * (std::erfc((lo - abs_g) / scale) - std::erfc((hi - abs_g) / scale));
 }
 
-// The parameter box inside which the IMF is well defined (validateImfSettings accepts all of it).
 bool insideBounds(ImfFamily family, const Eigen::Vector3d& theta) {
-    if (!(theta[0] > 0.0)) {
-        return false;
-    }
-    if (family == ImfFamily::Chabrier2003) {
-        return theta[1] > 1e-3 && theta[1] < 2.0 && theta[2] > 0.05 && theta[2] < 3.0;
-    }
-    return theta[1] > -3.0 && theta[1] < 5.0 && theta[2] > -3.0 && theta[2] < 5.0;
+    return parametersValid(family, {theta.data(), kParameters});
 }
 
 // Expected counts mu(theta) = density * K * shares and the Poisson log-likelihood of the counts.
@@ -223,6 +216,17 @@ void validateMassFunctionFitSettings(const MassFunctionFitSettings& settings) {
     requireThat(settings.fit_abs_g_min_mag < settings.fit_abs_g_max_mag, "lf-fit-min",
                 "must be below --lf-fit-max");
     validateImfSettings(settings.start);
+}
+
+// The box inside which the IMF is well defined (validateImfSettings accepts all of it).
+bool parametersValid(ImfFamily family, std::span<const double> v) {
+    if (v.size() != kParameters || !(v[0] > 0.0)) {
+        return false;
+    }
+    if (family == ImfFamily::Chabrier2003) {
+        return v[1] > 1e-3 && v[1] < 2.0 && v[2] > 0.05 && v[2] < 3.0;
+    }
+    return v[1] > -3.0 && v[1] < 5.0 && v[2] > -3.0 && v[2] < 5.0;
 }
 
 std::string fitModelName(ImfFamily family) {

@@ -112,6 +112,9 @@ struct MassFunctionFitResult {
 /// "chabrier2003" or "kroupa2001".
 std::string fitModelName(ImfFamily family);
 
+/// Whether a parameter vector (density first) lies inside the box where the fit's IMF is defined.
+bool parametersValid(ImfFamily family, std::span<const double> values);
+
 /// The IMF with a parameter vector (density first, ignored) applied to `base`.
 ImfSettings imfWithParameters(ImfFamily family, const ImfSettings& base, std::span<const double> values);
 
