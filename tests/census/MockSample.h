@@ -33,15 +33,7 @@ inline std::vector<SampleStar> classifiedStars(const MockResult& mock, const Pre
         if (!(row.parallax_mas > 0.0)) {
             continue;
         }
-        photometry::PhotometricInput input;
-        input.g_mag = row.g_mag;
-        input.bp_mag = row.bp_mag;
-        input.rp_mag = row.rp_mag;
-        input.j_mag = row.j_mag;
-        input.ks_mag = row.ks_mag;
-        input.parallax_mas = row.parallax_mas;
-        input.parallax_error_mas = row.parallax_error_mas;
-        const photometry::Classification result = classifier.classify(input);
+        const photometry::Classification result = classifier.classify(photometry::photometricInput(row));
         stars.push_back({result.abs_g_mag, 1000.0 / row.parallax_mas,
                          sample.probabilityWithin(s, radius_index),
                          photometry::categoryOf(result.stellar_class, result.spectral_code)});
