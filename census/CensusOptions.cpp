@@ -22,6 +22,10 @@ po::typed_value<double>* number(double& target, const char* value_name) {
 
 } // namespace
 
+po::typed_value<double>* numberOption(double& target, const char* value_name) {
+    return number(target, value_name);
+}
+
 po::options_description censusOptions(CensusSettings& settings) {
     po::options_description options("Census (membership, quality cuts, Monte Carlo)");
     auto add = options.add_options();

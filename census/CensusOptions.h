@@ -30,6 +30,9 @@ struct CensusSettings {
 
 boost::program_options::options_description censusOptions(CensusSettings& settings);
 
+/// A numeric option whose default is shown as written (%g), not with binary round-off.
+boost::program_options::typed_value<double>* numberOption(double& target, const char* value_name);
+
 /// Checks ranges and parses the radius list, prior and groups.
 void validate(CensusSettings& settings);
 

@@ -14,6 +14,18 @@ constexpr std::uint16_t bit(ClassificationFlag flag) {
 }
 } // namespace
 
+PhotometricInput photometricInput(const CatalogRow& row) {
+    PhotometricInput input;
+    input.g_mag = row.g_mag;
+    input.bp_mag = row.bp_mag;
+    input.rp_mag = row.rp_mag;
+    input.j_mag = row.j_mag;
+    input.ks_mag = row.ks_mag;
+    input.parallax_mas = row.parallax_mas;
+    input.parallax_error_mas = row.parallax_error_mas;
+    return input;
+}
+
 AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, double parallax_error_mas) {
     if (!(parallax_mas > 0.0)) {
         return {kNaN, kNaN};

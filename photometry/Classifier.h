@@ -23,6 +23,7 @@
 //  6. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
 //     more than g_rp_tolerance_mag bluer than the locus G-RP at that code, unclassified, OutsideLocus.
 //     Fainter than the locus's faintest M_G (L8V) and red in G-RP or G-J: T dwarf (OutsideLocus).
+#include "photometry/CatalogRow.h"
 #include "photometry/DwarfLocus.h"
 #include "photometry/StellarClass.h"
 #include "photometry/WhiteDwarfSequence.h"
@@ -103,6 +104,9 @@ struct PhotometricInput {
     double parallax_mas = std::numeric_limits<double>::quiet_NaN();
     double parallax_error_mas = std::numeric_limits<double>::quiet_NaN();
 };
+
+/// The photometry and parallax of a catalogue row (distance from the parallax).
+PhotometricInput photometricInput(const CatalogRow& row);
 
 struct AbsoluteMagnitude {
     double mag;

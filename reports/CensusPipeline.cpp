@@ -6,6 +6,7 @@
 #include "photometry/Classifier.h"
 #include "photometry/InputError.h"
 #include "reports/FractionsOutput.h"
+#include "reports/LuminosityOutput.h"
 #include "reports/SampleOutput.h"
 
 #include <chrono>
@@ -104,11 +105,22 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     result.timings.draws_s = secondsSince(start);
 
     start = Clock::now();
+    // Completeness, luminosity function, mass-function fits and the corrected fractions.
+    const LuminosityAnalysis luminosity =
+        analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
+    for (const auto& fit : luminosity.fits) {
+        if (!fit.converged) {
+            log << "starcensus: warning: " << census::fitModelName(fit.family) << " fit: " << fit.message
+                << '\n';
+        }
+    }
     std::filesystem::create_directories(settings.output_directory);
     writeSampleTable(settings.output_directory / "sample.fits", rows, sample, tallies, classifier,
                      census.quality.min_parallax_snr_to_classify);
-    writeJsonFile(settings.output_directory / "fractions.json",
-                  fractionsJson(result.estimates, runProvenance(settings, paths)));
+    nlohmann::json fractions = fractionsJson(result.estimates, runProvenance(settings, paths));
+    addCompletenessToFractions(fractions, luminosity);
+    writeJsonFile(settings.output_directory / "fractions.json", fractions);
+    writeLuminosityOutputs(settings.output_directory, luminosity);
     writeTextFileAtomically(settings.output_directory / "fractions.csv", fractionsCsv(result.estimates));
     result.timings.outputs_s = secondsSince(start);
     return result;

@@ -1,10 +1,12 @@
 #pragma once
 // `starcensus run`: catalogs in, census out. Reads and selects the candidates, applies the quality cuts,
 // computes membership posteriors, runs the Monte Carlo over measurement errors, summarises fractions per
-// radius and writes sample.fits, fractions.json and fractions.csv into the output directory. Every file
+// radius and writes sample.fits, fractions.json and fractions.csv, and the completeness and
+// luminosity-function files (reports/LuminosityOutput.h) into the output directory. Every file
 // is complete before it appears under its name; nothing is written if any step fails before output.
 #include "census/CensusOptions.h"
 #include "census/Fractions.h"
+#include "census/LuminosityOptions.h"
 #include "census/QualityCuts.h"
 #include "photometry/CatalogScan.h"
 
@@ -21,7 +23,8 @@ struct PipelineSettings {
     std::vector<std::string> inputs; // paths, globs or @lists
     std::filesystem::path output_directory;
     photometry::ScanSettings scan;
-    census::CensusSettings census; // validated
+    census::CensusSettings census;            // validated
+    census::LuminosityRunSettings luminosity; // validated
 };
 
 struct PipelineTimings {

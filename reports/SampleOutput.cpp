@@ -124,15 +124,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
     const std::size_t radii = sample.radii().size();
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
-        photometry::PhotometricInput input;
-        input.g_mag = row.g_mag;
-        input.bp_mag = row.bp_mag;
-        input.rp_mag = row.rp_mag;
-        input.j_mag = row.j_mag;
-        input.ks_mag = row.ks_mag;
-        input.parallax_mas = row.parallax_mas;
-        input.parallax_error_mas = row.parallax_error_mas;
-        photometry::Classification result = classifier.classify(input);
+        photometry::Classification result = classifier.classify(photometry::photometricInput(row));
         if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
             result.stellar_class = photometry::StellarClass::Unclassified;
             result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);

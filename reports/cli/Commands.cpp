@@ -1,6 +1,7 @@
 #include "reports/cli/Commands.h"
 
 #include "census/CensusOptions.h"
+#include "census/LuminosityOptions.h"
 #include "census/MockOptions.h"
 #include "census/MockOutput.h"
 #include "photometry/CatalogInspection.h"
@@ -189,6 +190,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
 int runCommand(const std::vector<std::string>& arguments) {
     CommonOptions common;
     census::CensusSettings census_settings;
+    census::LuminosityRunSettings luminosity_settings;
     std::vector<std::string> inputs;
     std::string output_directory = "out/census";
     po::options_description io("Inputs and outputs");
@@ -200,7 +202,8 @@ int runCommand(const std::vector<std::string>& arguments) {
     options.add(commonOptions(common))
         .add(io)
         .add(photometry::catalogReaderOptions())
-        .add(census::censusOptions(census_settings));
+        .add(census::censusOptions(census_settings))
+        .add(census::luminosityOptions(luminosity_settings));
     po::positional_options_description positional;
     positional.add("input", -1);
     po::variables_map values;
@@ -217,6 +220,8 @@ int runCommand(const std::vector<std::string>& arguments) {
     census_settings.draws.threads = settings.scan.threads;
     census::validate(census_settings);
     settings.census = census_settings;
+    census::validate(luminosity_settings);
+    settings.luminosity = luminosity_settings;
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     return 0;

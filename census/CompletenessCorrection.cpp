@@ -1,0 +1,149 @@
+#include "census/CompletenessCorrection.h"
+
+#include "census/Fractions.h"
+#include "census/Random.h"
+
+#include <Eigen/Dense>
+
+#include <cmath>
+#include <limits>
+#include <random>
+
+namespace starcensus::census {
+
+namespace {
+
+// Streams of the parameter and Poisson deviates, far from the Monte Carlo's per-block streams.
+constexpr std::uint64_t kCorrectionStreamBase = 0xc0de000000000000ULL;
+constexpr int kMaxParameterTries = 100;
+
+// Per unit density and per category, the expected systems inside R that lie beyond the limits
+// (missing) and all of them (full), for one set of mass-cell shares.
+struct CategoryCounts {
+    std::vector<double> missing = std::vector<double>(photometry::kCategoryCount, 0.0);
+    std::vector<double> full = std::vector<double>(photometry::kCategoryCount, 0.0);
+};
+
+CategoryCounts categoryCounts(const LuminosityModel& model, const std::vector<double>& shares,
+                              double radius_pc, const MagnitudeLimits& limits) {
+    CategoryCounts counts;
+    const double volume = sphereVolumePc3(radius_pc);
+    for (const LuminosityModel::Element& element : model.elements()) {
+        const double systems = shares[element.cell] * element.weight;
+        counts.full[element.category] += systems * volume;
+        counts.missing[element.category] +=
+            systems * (volume - effectiveVolumePc3(element.abs_g_mag, radius_pc, limits));
+    }
+    return counts;
+}
+
+// Parameters drawn from N(values, covariance), redrawn while outside the fit's box (the best fit itself
+// after too many tries).
+std::vector<double> drawParameters(const MassFunctionFitResult& fit, const Eigen::MatrixXd& cholesky_factor,
+                                   Xoshiro256& random) {
+    const auto n = static_cast<Eigen::Index>(fit.values.size());
+    const Eigen::Map<const Eigen::VectorXd> best(fit.values.data(), n);
+    for (int attempt = 0; attempt < kMaxParameterTries; ++attempt) {
+        Eigen::VectorXd z(n);
+        for (Eigen::Index k = 0; k < n; ++k) {
+            z[k] = random.normal();
+        }
+        const Eigen::VectorXd theta = best + cholesky_factor * z;
+        if (parametersValid(fit.family, {theta.data(), fit.values.size()})) {
+            return {theta.data(), theta.data() + n};
+        }
+    }
+    return fit.values;
+}
+
+} // namespace
+
+std::vector<CorrectedRadius>
+correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& radii_pc,
+                       const std::vector<ClassGroup>& groups, const LuminosityModel& model,
+                       const MassFunctionFitResult& fit, const MagnitudeLimits& limits, std::uint64_t seed) {
+    if (!fit.converged) {
+        return {};
+    }
+    const auto n = static_cast<Eigen::Index>(fit.values.size());
+    Eigen::MatrixXd covariance(n, n);
+    for (Eigen::Index a = 0; a < n; ++a) {
+        for (Eigen::Index b = 0; b < n; ++b) {
+            covariance(a, b) = fit.covariance[static_cast<std::size_t>(a)][static_cast<std::size_t>(b)];
+        }
+    }
+    const Eigen::MatrixXd factor = Eigen::LLT<Eigen::MatrixXd>(covariance).matrixL();
+    const auto draws = static_cast<std::size_t>(tallies.draws);
+    const std::size_t radii = radii_pc.size();
+    ClassGroup everything{"all", {}};
+    everything.categories.set();
+
+    // [radius][group][draw] corrected counts and missing numbers, [radius][draw] corrected totals.
+    std::vector<std::vector<std::vector<double>>> counts(radii,
+                                                         std::vector<std::vector<double>>(groups.size()));
+    auto missing = counts;
+    std::vector<std::vector<double>> totals(radii);
+    for (std::size_t d = 0; d < draws; ++d) {
+        Xoshiro256 random(seed, kCorrectionStreamBase + d);
+        const std::vector<double> theta = drawParameters(fit, factor, random);
+        const std::vector<double> shares =
+            model.cellShares(InitialMassFunction(imfWithParameters(fit.family, fit.imf, theta)));
+        for (std::size_t r = 0; r < radii; ++r) {
+            const CategoryCounts expected = categoryCounts(model, shares, radii_pc[r], limits);
+            std::vector<double> unseen(photometry::kCategoryCount, 0.0);
+            double unseen_total = 0.0;
+            for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
+                const double mean = theta[0] * expected.missing[k];
+                if (mean > 0.0) {
+                    unseen[k] = static_cast<double>(std::poisson_distribution<std::int64_t>(mean)(random));
+                    unseen_total += unseen[k];
+                }
+            }
+            const int draw = static_cast<int>(d);
+            totals[r].push_back(groupCount(tallies, draw, r, everything) + unseen_total);
+            for (std::size_t g = 0; g < groups.size(); ++g) {
+                double group_unseen = 0.0;
+                for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
+                    group_unseen += groups[g].categories.test(k) ? unseen[k] : 0.0;
+                }
+                missing[r][g].push_back(group_unseen);
+                counts[r][g].push_back(groupCount(tallies, draw, r, groups[g]) + group_unseen);
+            }
+        }
+    }
+
+    const std::vector<double> best_shares = model.cellShares(InitialMassFunction(fit.imf));
+    std::vector<CorrectedRadius> result;
+    for (std::size_t r = 0; r < radii; ++r) {
+        const CategoryCounts best = categoryCounts(model, best_shares, radii_pc[r], limits);
+        CorrectedRadius corrected;
+        corrected.radius_pc = radii_pc[r];
+        for (std::size_t g = 0; g < groups.size(); ++g) {
+            double full = 0.0;
+            double unseen = 0.0;
+            for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
+                if (groups[g].categories.test(k)) {
+                    full += best.full[k];
+                    unseen += best.missing[k];
+                }
+            }
+            CorrectedGroup group;
+            group.name = groups[g].name;
+            group.completeness = full > 0.0 ? 1.0 - unseen / full : std::numeric_limits<double>::quiet_NaN();
+            group.corrected = unseen > 0.0;
+            std::vector<double> fraction(draws);
+            for (std::size_t d = 0; d < draws; ++d) {
+                fraction[d] = totals[r][d] > 0.0 ? counts[r][g][d] / totals[r][d] : 0.0;
+            }
+            group.fraction = summarizeDraws(fraction);
+            group.count = summarizeDraws(counts[r][g]);
+            group.missing = summarizeDraws(missing[r][g]);
+            corrected.groups.push_back(std::move(group));
+        }
+        corrected.total = summarizeDraws(totals[r]);
+        result.push_back(std::move(corrected));
+    }
+    return result;
+}
+
+} // namespace starcensus::census
