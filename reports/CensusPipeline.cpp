@@ -119,6 +119,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                      census.quality.min_parallax_snr_to_classify);
     nlohmann::json fractions = fractionsJson(result.estimates, runProvenance(settings, paths));
     addCompletenessToFractions(fractions, luminosity);
+    result.corrected = luminosity.corrected;
     writeJsonFile(settings.output_directory / "fractions.json", fractions);
     writeLuminosityOutputs(settings.output_directory, luminosity);
     writeTextFileAtomically(settings.output_directory / "fractions.csv", fractionsCsv(result.estimates));

@@ -5,6 +5,7 @@
 // luminosity-function files (reports/LuminosityOutput.h) into the output directory. Every file
 // is complete before it appears under its name; nothing is written if any step fails before output.
 #include "census/CensusOptions.h"
+#include "census/CompletenessCorrection.h"
 #include "census/Fractions.h"
 #include "census/LuminosityOptions.h"
 #include "census/QualityCuts.h"
@@ -39,6 +40,7 @@ struct PipelineResult {
     photometry::ScanCounts scan_totals;
     std::vector<census::CutOutcome> cuts;
     std::vector<census::RadiusEstimate> estimates;
+    std::vector<census::CorrectedRadius> corrected; // completeness-corrected counts; empty without a fit
     std::size_t candidates_after_cuts = 0;
     PipelineTimings timings;
 };

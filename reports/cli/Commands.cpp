@@ -91,7 +91,9 @@ std::string truthComparison(const census::MockResult& mock, const reports::Pipel
     std::ostringstream text;
     text << std::fixed << std::setprecision(1);
     for (std::size_t r = 0; r < radii.size(); ++r) {
-        text << "within " << radii[r] << " pc   truth: all / catalogued   recovered: count [68%]\n";
+        const bool corrected = r < result.corrected.size();
+        text << "within " << radii[r] << " pc   truth: all / catalogued   recovered: count [68%]"
+             << (corrected ? "   completeness-corrected [68%]" : "") << "\n";
         for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
             const auto& count = result.estimates[r].groups[c].count.this_volume;
             if (truth[r].all[c] == 0 && count.hi95 <= 0.0) {
@@ -99,8 +101,13 @@ std::string truthComparison(const census::MockResult& mock, const reports::Pipel
             }
             text << "  " << std::left << std::setw(13) << photometry::kClassNames[c] << std::right
                  << std::setw(6) << truth[r].all[c] << " / " << std::setw(5) << truth[r].catalogued[c]
-                 << "   " << std::setw(7) << count.median << " [" << count.lo68 << ", " << count.hi68
-                 << "]\n";
+                 << "   " << std::setw(7) << count.median << " [" << count.lo68 << ", " << count.hi68 << "]";
+            if (corrected && result.corrected[r].groups[c].corrected) {
+                const auto& fixed = result.corrected[r].groups[c].count;
+                text << "   " << std::setw(7) << fixed.median << " [" << fixed.lo68 << ", " << fixed.hi68
+                     << "]";
+            }
+            text << "\n";
         }
     }
     return text.str();
