@@ -53,11 +53,21 @@ std::vector<LonLat> clipAtLongitude(const std::vector<LonLat>& polygon, double e
     return clipped;
 }
 
+/// Projects a polygon, subdividing each edge into steps of at most 1 deg in l and b first: an edge along
+/// the cut at l = 180 deg is the curved rim of the map, which a chord between its ends would cut off.
 std::vector<ProjectedPoint> project(const std::vector<LonLat>& polygon) {
+    constexpr double kMaxStepDeg = 1.0;
     std::vector<ProjectedPoint> points;
-    points.reserve(polygon.size());
-    for (const auto& vertex : polygon) {
-        points.push_back(hammerAitoff(vertex.l_deg, vertex.b_deg));
+    for (std::size_t i = 0; i < polygon.size(); ++i) {
+        const LonLat& from = polygon[i];
+        const LonLat& to = polygon[(i + 1) % polygon.size()];
+        const double span = std::max(std::abs(to.l_deg - from.l_deg), std::abs(to.b_deg - from.b_deg));
+        const int steps = std::max(1, static_cast<int>(std::ceil(span / kMaxStepDeg)));
+        for (int step = 0; step < steps; ++step) {
+            const double t = static_cast<double>(step) / steps;
+            points.push_back(hammerAitoff(from.l_deg + t * (to.l_deg - from.l_deg),
+                                          from.b_deg + t * (to.b_deg - from.b_deg)));
+        }
     }
     return points;
 }
