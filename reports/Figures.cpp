@@ -372,8 +372,8 @@ FigureOutput luminosityFunctionFigure(const ReportInputs& inputs, const std::fil
         y_min = -5.0;
         y_max = -1.0;
     }
-    y_min = std::floor(y_min - 0.2);
-    y_max = std::ceil(y_max + 0.2);
+    y_min -= 0.3;
+    y_max += 0.3;
     std::array<double, 2> complete = {kNaN, kNaN};
     if (inputs.luminosity_function_fit && inputs.luminosity_function_fit->contains("complete_abs_g_range")) {
         complete = inputs.luminosity_function_fit->at("complete_abs_g_range").get<std::array<double, 2>>();
@@ -391,6 +391,7 @@ FigureOutput luminosityFunctionFigure(const ReportInputs& inputs, const std::fil
         frame(x_min - 0.5, x_max + 0.5, y_min, y_max, "bcnst", "bcnstlv", "M#dG#u (mag)",
               "Φ (pc#u−3#d mag#u−1#d)", "Luminosity function");
         std::vector<LegendEntry> legend;
+        bool with_model = false;
         for (const auto& population : populations) {
             const SeriesStyle style =
                 styles.count(population) != 0 ? styles.at(population) : classStyle(population);
@@ -420,10 +421,13 @@ FigureOutput luminosityFunctionFigure(const ReportInputs& inputs, const std::fil
             }
             drawGlyphs(x, y, style, 0.8);
             drawLine(model_x, model_y, style.colour, 2, 2.0);
-            legend.push_back({population, style});
-            if (!model_x.empty()) {
-                legend.push_back({population + " model", {style.colour, ""}, false, 2});
-            }
+            std::string label = population;
+            std::replace(label.begin(), label.end(), '_', ' ');
+            legend.push_back({label, style});
+            with_model = with_model || !model_x.empty();
+        }
+        if (with_model) {
+            legend.push_back({"fitted model", {kBlack, ""}, false, 2});
         }
         for (const double edge : complete) {
             if (std::isfinite(edge)) {

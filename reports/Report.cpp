@@ -25,7 +25,11 @@ std::string number(double value, int significant = 3) {
         return "–";
     }
     std::ostringstream text;
-    text << std::setprecision(significant) << value;
+    if (std::abs(value) >= std::pow(10.0, significant)) {
+        text << std::fixed << std::setprecision(0) << value; // 1599, not 1.6e+03
+    } else {
+        text << std::setprecision(significant) << value;
+    }
     return text.str();
 }
 
