@@ -154,7 +154,6 @@ class PlotStream {
         }
         plscmap0(red.data(), green.data(), blue.data(), static_cast<PLINT>(kPalette.size()));
         plinit();
-        plfontld(1);
         plschr(0.0, 0.95);
     }
     ~PlotStream() {
@@ -606,7 +605,7 @@ FigureOutput fractionsByClassFigure(const ReportInputs& inputs, const std::files
     return renderFigure(
         directory, "fractions_by_class", "Fractions per class at each radius", caption, size, [&] {
             plvpor(0.1, 0.82, 0.25, 0.9);
-            plwind(-0.5, static_cast<double>(names.size()) - 0.5, log_floor, 0.05);
+            plwind(-0.5, static_cast<double>(std::max<std::size_t>(names.size(), 1)) - 0.5, log_floor, 0.05);
             plcol0(kBlack);
             plbox("bc", 0.0, 0, "bcnstlv", 0.0, 0);
             plmtex("l", 4.5, 0.5, 0.5, "fraction of members");
