@@ -117,7 +117,16 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     std::filesystem::create_directories(settings.output_directory);
     writeSampleTable(settings.output_directory / "sample.fits", rows, sample, tallies, classifier,
                      census.quality.min_parallax_snr_to_classify);
-    nlohmann::json fractions = fractionsJson(result.estimates, runProvenance(settings, paths));
+    nlohmann::json provenance = runProvenance(settings, paths);
+    // What each quality cut removed or changed, for the report's table.
+    provenance["candidates_before_cuts"] = result.scan_totals.candidates;
+    provenance["candidates_after_cuts"] = result.candidates_after_cuts;
+    provenance["quality_cuts"] = nlohmann::json::array();
+    for (const auto& cut : result.cuts) {
+        provenance["quality_cuts"].push_back(
+            {{"name", cut.name}, {"description", cut.description}, {"rows_affected", cut.rows_affected}});
+    }
+    nlohmann::json fractions = fractionsJson(result.estimates, provenance);
     addCompletenessToFractions(fractions, luminosity);
     result.corrected = luminosity.corrected;
     writeJsonFile(settings.output_directory / "fractions.json", fractions);

@@ -8,6 +8,7 @@
 #include "photometry/InputError.h"
 #include "photometry/ReaderOptions.h"
 #include "reports/CensusPipeline.h"
+#include "reports/Report.h"
 
 #include <boost/program_options.hpp>
 
@@ -17,6 +18,7 @@
 #include <iomanip>
 #include <iostream>
 #include <sstream>
+#include <unistd.h>
 
 namespace starcensus::cli {
 
@@ -131,6 +133,14 @@ census::MockResult simulateToFiles(const census::MockRequest& request,
     return mock;
 }
 
+/// Writes report.html and figures/ for a finished run; progress lines only when stderr is a terminal.
+void writeReportFor(const std::filesystem::path& directory) {
+    const bool terminal = ::isatty(STDERR_FILENO) != 0;
+    const auto report = reports::writeCensusReport(directory, {}, terminal ? &std::cerr : nullptr);
+    std::cout << "report: " << report.html.string() << " (" << report.figures.size() << " figures in "
+              << (directory / "figures").string() << "/)\n";
+}
+
 } // namespace
 
 int simulateCommand(const std::vector<std::string>& arguments) {
@@ -191,6 +201,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << truthComparison(mock, result) << "outputs in "
               << output_directory << "/\n";
+    writeReportFor(output_directory);
     return 0;
 }
 
@@ -231,6 +242,32 @@ int runCommand(const std::vector<std::string>& arguments) {
     settings.luminosity = luminosity_settings;
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
+    writeReportFor(output_directory);
+    return 0;
+}
+
+int reportCommand(const std::vector<std::string>& arguments) {
+    CommonOptions common;
+    std::string directory;
+    po::options_description io("Report");
+    io.add_options()(
+        "dir", po::value(&directory)->value_name("DIR"),
+        "run directory (holds sample.fits and fractions.json); report.html and figures/ go there");
+    po::options_description options;
+    options.add(commonOptions(common)).add(io);
+    po::positional_options_description positional;
+    positional.add("dir", 1);
+    po::variables_map values;
+    if (parseOptions("report", arguments, options, positional, common, values)) {
+        return 0;
+    }
+    if (directory.empty()) {
+        throw InputError("report: no run directory given (starcensus report DIR)");
+    }
+    if (!std::filesystem::is_directory(directory)) {
+        throw InputError(directory + ": not a directory");
+    }
+    writeReportFor(directory);
     return 0;
 }
 

@@ -10,5 +10,6 @@ int runCommand(const std::vector<std::string>& arguments);
 int simulateCommand(const std::vector<std::string>& arguments);
 int inspectCommand(const std::vector<std::string>& arguments);
 int demoCommand(const std::vector<std::string>& arguments);
+int reportCommand(const std::vector<std::string>& arguments);
 
 } // namespace starcensus::cli

@@ -19,6 +19,7 @@ commands:
   simulate   write a mock solar-neighbourhood catalog (FITS) and its truth (JSON)
   inspect    show how input catalogs are read: HDUs, column mapping and why, units, nulls
   demo       simulate a mock neighbourhood and run the census on it (out/demo/)
+  report     write report.html and figures/ (SVG, PDF, PNG) for a run directory
 
 'starcensus COMMAND --help' lists a command's options with units and defaults.
 )";
@@ -49,6 +50,9 @@ int main(int argc, char** argv) {
         }
         if (command == "demo") {
             return starcensus::cli::demoCommand(rest);
+        }
+        if (command == "report") {
+            return starcensus::cli::reportCommand(rest);
         }
         std::cerr << "starcensus: error: unknown command '" << command << "'\n" << kUsage;
         return 2;

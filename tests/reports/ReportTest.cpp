@@ -1,0 +1,178 @@
+#include "reports/Report.h"
+#include "photometry/InputError.h"
+#include "tests/reports/ReportFixture.h"
+
+#include <doctest/doctest.h>
+#include <nlohmann/json.hpp>
+
+#include <fstream>
+#include <sstream>
+
+using namespace starcensus;
+using namespace starcensus::reports;
+
+namespace {
+
+std::string readFile(const std::filesystem::path& path) {
+    std::ifstream file(path, std::ios::binary);
+    std::ostringstream text;
+    text << file.rdbuf();
+    return text.str();
+}
+
+void writeFile(const std::filesystem::path& path, const std::string& text) {
+    std::ofstream(path, std::ios::binary) << text;
+}
+
+std::vector<std::string> idsOf(const std::vector<FigureOutput>& figures) {
+    std::vector<std::string> ids;
+    for (const auto& figure : figures) {
+        ids.push_back(figure.id);
+    }
+    return ids;
+}
+
+/// The files another part of starcensus writes, in the formats of README.md, with made-up numbers.
+void writeOptionalInputs(const std::filesystem::path& directory) {
+    writeFile(directory / "lumfunc.csv",
+              "population,abs_g_lo,abs_g_hi,n_weighted,phi_per_pc3_per_mag,phi_lo68,phi_hi68,"
+              "model_phi_per_pc3_per_mag\n"
+              "main_sequence,4,6,10,0.0012,0.0009,0.0016,0.0011\n"
+              "main_sequence,6,8,25,0.0030,0.0025,0.0036,0.0031\n"
+              "main_sequence,8,10,60,0.0071,0.0063,0.0080,0.0069\n"
+              "main_sequence,10,12,120,0.0140,0.0128,0.0153,\n"
+              "white_dwarf,10,12,5,0.0006,0.0004,0.0009,\n"
+              "white_dwarf,12,14,12,0.0014,0.0010,0.0018,\n");
+    writeFile(directory / "lumfunc_fit.json", R"({"schema": "starcensus.lumfunc_fit/1", "fits": [
+        {"model": "kroupa2001", "converged": true, "iterations": 12, "message": "ok",
+         "parameters": {"alpha1": 1.31}, "errors": {"alpha1": 0.07}, "covariance": [[0.0049]],
+         "log_likelihood": -42.5, "goodness_of_fit": {"chi2": 3.1, "dof": 2}}],
+        "complete_abs_g_range": [4.0, 12.0]})");
+    writeFile(directory / "completeness.json",
+              R"({"schema": "starcensus.completeness/1", "faint_limit_g": 19.5,
+        "bright_limit_g": 3.0, "faint_limit_source": "estimated", "radii": [{"radius_pc": 10,
+        "complete_abs_g_range": [3.0, 19.5], "classes": {"M": {"v_over_vmax": 0.49, "v_over_vmax_expected": 0.5,
+        "v_over_vmax_sigma": 0.02, "completeness_radius_pc": 10, "complete": true}}}]})");
+    writeFile(directory / "provenance.json",
+              R"({"version": "0.1.0", "seed": 3, "inputs": [{"path": "mock.fits",
+        "sha256": "0123abcd"}]})");
+}
+
+} // namespace
+
+TEST_CASE("fractions.json records each quality cut and what it did") {
+    const auto fractions = nlohmann::json::parse(readFile(testing::demoRunDirectory() / "fractions.json"));
+    const auto& provenance = fractions.at("provenance");
+    REQUIRE(provenance.contains("quality_cuts"));
+    REQUIRE(provenance.at("quality_cuts").size() >= 1);
+    for (const auto& cut : provenance.at("quality_cuts")) {
+        CHECK_FALSE(cut.at("name").get<std::string>().empty());
+        CHECK_FALSE(cut.at("description").get<std::string>().empty());
+        CHECK(cut.at("rows_affected").get<std::int64_t>() >= 0);
+    }
+    CHECK(provenance.at("candidates_after_cuts").get<std::int64_t>() <=
+          provenance.at("candidates_before_cuts").get<std::int64_t>());
+}
+
+TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one self-contained HTML file") {
+    const testing::ScratchDirectory scratch("starcensus-report-basic");
+    const auto directory = testing::copyOfDemoRun(scratch, "run");
+    const auto report = writeCensusReport(directory);
+
+    // Without lumfunc.csv the luminosity function is left out, with a note; the rest is always drawn.
+    const std::vector<std::string> expected = {"cmd", "cumulative_counts", "fractions_by_class",
+                                               "fractions_vs_radius", "sky_map"};
+    CHECK(idsOf(report.figures) == expected);
+    CHECK(report.notes.size() == 4); // lumfunc.csv, lumfunc_fit.json, completeness.json, provenance.json
+    const std::string html = readFile(report.html);
+    for (const auto& figure : report.figures) {
+        CAPTURE(figure.id);
+        CHECK(html.find("<figure id=\"fig-" + figure.id + "\"") != std::string::npos);
+        CHECK(readFile(figure.svg).find("<svg") != std::string::npos);
+        CHECK(readFile(figure.pdf).rfind("%PDF-", 0) == 0);
+        // Each PNG drawn by PLplot has ink: axes, labels and data cover well over 1% of the page.
+        const auto image = testing::readPng(figure.png);
+        CHECK(image.width >= 600);
+        CHECK(image.inkFraction(0, 0, image.width, image.height) > 0.02);
+    }
+    CHECK(html.find("lumfunc.csv is absent") != std::string::npos);
+    // Self-contained: nothing to fetch, nothing to run.
+    CHECK(html.find("<script") == std::string::npos);
+    CHECK(html.find("<link") == std::string::npos);
+    CHECK(html.find("src=\"http") == std::string::npos);
+    CHECK(html.find("url(") == std::string::npos);
+    // Tables: fractions per radius, quality cuts with counts, provenance, sky uniformity.
+    CHECK(html.find("<h3>Within 10 pc</h3>") != std::string::npos);
+    CHECK(html.find("<h2>Quality cuts</h2>\n<p>") != std::string::npos);
+    CHECK(html.find("Sky uniformity") != std::string::npos);
+    CHECK(html.find("<code>seed</code>") != std::string::npos);
+    // The mock is isotropic (census/MockNeighbourhood.h: Poisson positions in a sphere).
+    CHECK_FALSE(report.uniformity.uniformity_rejected);
+    CHECK(report.uniformity.objects > 100);
+}
+
+TEST_CASE("the report uses lumfunc.csv, lumfunc_fit.json, completeness.json and provenance.json") {
+    const testing::ScratchDirectory scratch("starcensus-report-full");
+    const auto directory = testing::copyOfDemoRun(scratch, "run");
+    writeOptionalInputs(directory);
+    const auto report = writeCensusReport(directory);
+    const std::vector<std::string> expected = {
+        "cmd",    "luminosity_function", "cumulative_counts", "fractions_by_class", "fractions_vs_radius",
+        "sky_map"};
+    CHECK(idsOf(report.figures) == expected);
+    CHECK(idsOf(report.figures) == reportFigureIds());
+    CHECK(report.notes.empty());
+    const std::string html = readFile(report.html);
+    // The faint limit of completeness.json: M_G = 19.5 - 5 log10(10 / 10) = 19.5 at the largest radius.
+    CHECK(html.find("G = 19.5 at 10 pc (M_G = 19.5; source: completeness.json (estimated))") !=
+          std::string::npos);
+    CHECK(html.find("alpha1 = 1.31 ± 0.07") != std::string::npos);
+    CHECK(html.find("the complete M_G range of the fit (4 to 12 mag)") != std::string::npos);
+    CHECK(html.find("<h3>provenance.json</h3>") != std::string::npos);
+    CHECK(html.find("0123abcd") != std::string::npos);
+}
+
+TEST_CASE("report inputs: lumfunc.csv parsing and bad input named in one line") {
+    const auto bins = parseLuminosityFunctionCsv("population,abs_g_lo,abs_g_hi,n_weighted,phi_per_pc3_per_"
+                                                 "mag,phi_lo68,phi_hi68,model_phi_per_pc3_per_mag\n"
+                                                 "evolved,0,2,3,1e-4,5e-5,2e-4,\n",
+                                                 "lumfunc.csv");
+    REQUIRE(bins.size() == 1);
+    CHECK(bins[0].population == "evolved");
+    CHECK(bins[0].abs_g_hi == 2.0);
+    CHECK(bins[0].phi_per_pc3_per_mag == doctest::Approx(1e-4));
+    CHECK(std::isnan(bins[0].model_phi_per_pc3_per_mag));
+    CHECK_THROWS_WITH_AS(parseLuminosityFunctionCsv("population,abs_g_lo\n", "x/lumfunc.csv"),
+                         "x/lumfunc.csv: no column abs_g_hi", InputError);
+    CHECK_THROWS_WITH_AS(parseLuminosityFunctionCsv(
+                             "population,abs_g_lo,abs_g_hi,n_weighted,phi_per_pc3_per_mag,phi_lo68,phi_hi68,"
+                             "model_phi_per_pc3_per_mag\nmain_sequence,4,six,1,1,1,1,1\n",
+                             "lumfunc.csv"),
+                         "lumfunc.csv: line 2, column abs_g_hi: not a number: six", InputError);
+
+    const testing::ScratchDirectory scratch("starcensus-report-bad");
+    CHECK_THROWS_WITH_AS(readReportInputs(scratch.path()), doctest::Contains("sample.fits: no such file"),
+                         InputError);
+    const auto directory = testing::copyOfDemoRun(scratch, "run");
+    writeFile(directory / "sample.fits", "not a FITS file");
+    CHECK_THROWS_WITH_AS(readReportInputs(directory),
+                         doctest::Contains("sample.fits: cannot open the sample table"), InputError);
+    const auto other = testing::copyOfDemoRun(scratch, "other");
+    writeFile(other / "completeness.json", "{ not json");
+    CHECK_THROWS_WITH_AS(readReportInputs(other), doctest::Contains("completeness.json: not valid JSON"),
+                         InputError);
+    std::filesystem::remove(other / "completeness.json");
+    std::filesystem::remove(other / "fractions.json");
+    CHECK_THROWS_WITH_AS(readReportInputs(other), doctest::Contains("fractions.json: no such file"),
+                         InputError);
+}
+
+TEST_CASE("base64 and HTML escaping") {
+    // RFC 4648 Sect. 10 test vectors.
+    CHECK(base64Encode("") == "");
+    CHECK(base64Encode("f") == "Zg==");
+    CHECK(base64Encode("fo") == "Zm8=");
+    CHECK(base64Encode("foo") == "Zm9v");
+    CHECK(base64Encode("foobar") == "Zm9vYmFy");
+    CHECK(escapeHtml("a<b & \"c\">") == "a&lt;b &amp; &quot;c&quot;&gt;");
+}
