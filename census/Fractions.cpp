@@ -41,6 +41,26 @@ std::uint32_t groupCount(const DrawTallies& tallies, int draw, std::size_t radiu
     return total;
 }
 
+PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,
+                                      const std::vector<ClassGroup>& groups, std::size_t group_index,
+                                      const FractionSettings& settings) {
+    const ClassGroup everything{"all", std::bitset<photometry::kCategoryCount>().set()};
+    const auto deviates = static_cast<std::size_t>(settings.population_deviates_per_draw);
+    Xoshiro256 random(settings.seed, kPopulationStreamBase + radius_index * groups.size() + group_index);
+    PopulationDeviates result;
+    result.fraction.reserve(static_cast<std::size_t>(tallies.draws) * deviates);
+    result.count.reserve(static_cast<std::size_t>(tallies.draws) * deviates);
+    for (int d = 0; d < tallies.draws; ++d) {
+        const double n = groupCount(tallies, d, radius_index, groups[group_index]);
+        const double total = groupCount(tallies, d, radius_index, everything);
+        for (std::size_t k = 0; k < deviates; ++k) {
+            result.fraction.push_back(betaDeviate(random, n + 0.5, total - n + 0.5));
+            result.count.push_back(gammaDeviate(random, n + 0.5));
+        }
+    }
+    return result;
+}
+
 std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                                               const std::vector<std::int64_t>& hard_cut_members,
                                               const std::vector<double>& expected_members,
@@ -50,7 +70,6 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
     everything.categories.set();
     std::vector<RadiusEstimate> estimates;
     const auto draws = static_cast<std::size_t>(tallies.draws);
-    const auto deviates = static_cast<std::size_t>(settings.population_deviates_per_draw);
     for (std::size_t r = 0; r < radii_pc.size(); ++r) {
         RadiusEstimate estimate;
         estimate.radius_pc = radii_pc[r];
@@ -65,28 +84,21 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         estimate.members = summarizeDraws(sorted_totals);
 
         for (std::size_t g = 0; g < groups.size(); ++g) {
-            Xoshiro256 random(settings.seed, kPopulationStreamBase + r * groups.size() + g);
             std::vector<double> fraction(draws), count(draws), density(draws);
-            std::vector<double> population_fraction, population_count, population_density;
-            population_fraction.reserve(draws * deviates);
-            population_count.reserve(draws * deviates);
-            population_density.reserve(draws * deviates);
             for (std::size_t d = 0; d < draws; ++d) {
                 const double n = groupCount(tallies, static_cast<int>(d), r, groups[g]);
-                const double total = totals[d];
-                fraction[d] = total > 0 ? n / total : 0.0;
+                fraction[d] = totals[d] > 0 ? n / totals[d] : 0.0;
                 count[d] = n;
                 density[d] = n / estimate.volume_pc3;
-                for (std::size_t k = 0; k < deviates; ++k) {
-                    population_fraction.push_back(betaDeviate(random, n + 0.5, total - n + 0.5));
-                    const double expected_count = gammaDeviate(random, n + 0.5);
-                    population_count.push_back(expected_count);
-                    population_density.push_back(expected_count / estimate.volume_pc3);
-                }
+            }
+            PopulationDeviates population = populationDeviates(tallies, r, groups, g, settings);
+            std::vector<double> population_density = population.count;
+            for (double& value : population_density) {
+                value /= estimate.volume_pc3;
             }
             estimate.groups.push_back({groups[g].name,
-                                       {summarizeDraws(fraction), summarizeDraws(population_fraction)},
-                                       {summarizeDraws(count), summarizeDraws(population_count)},
+                                       {summarizeDraws(fraction), summarizeDraws(population.fraction)},
+                                       {summarizeDraws(count), summarizeDraws(population.count)},
                                        {summarizeDraws(density), summarizeDraws(population_density)}});
         }
         estimates.push_back(std::move(estimate));

@@ -45,6 +45,19 @@ struct FractionSettings {
 
 double sphereVolumePc3(double radius_pc);
 
+/// The population deviates of one group at one radius, `population_deviates_per_draw` per Monte Carlo draw
+/// (draw-major): the underlying fraction, Beta(n + 1/2, N - n + 1/2), and the expected count,
+/// Gamma(n + 1/2), for the draw's group count n and member total N. The stream depends on (radius, group),
+/// so every caller sees the same deviates for a seed.
+struct PopulationDeviates {
+    std::vector<double> fraction;
+    std::vector<double> count;
+};
+
+PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,
+                                      const std::vector<ClassGroup>& groups, std::size_t group_index,
+                                      const FractionSettings& settings);
+
 /// Summaries for every radius of the tallies and every group.
 std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                                               const std::vector<std::int64_t>& hard_cut_members,
