@@ -2,6 +2,7 @@
 
 #include "census/Random.h"
 
+#include <array>
 #include <cmath>
 #include <numbers>
 #include <random>
@@ -18,10 +19,19 @@ double gammaDeviate(Xoshiro256& random, double shape) {
     return gamma(random);
 }
 
-double betaDeviate(Xoshiro256& random, double a, double b) {
-    const double x = gammaDeviate(random, a);
-    const double y = gammaDeviate(random, b);
-    return x / (x + y);
+/// The prior shape of each census category: the class's shape shared equally among its categories.
+std::array<double, photometry::kCategoryCount> categoryPriorShapes(double class_shape) {
+    std::array<int, photometry::kClassCount> categories_per_class{};
+    for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+        ++categories_per_class[static_cast<std::size_t>(
+            photometry::classOfCategory(static_cast<photometry::Category>(c)))];
+    }
+    std::array<double, photometry::kCategoryCount> shapes{};
+    for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+        shapes[c] = class_shape / categories_per_class[static_cast<std::size_t>(
+                                      photometry::classOfCategory(static_cast<photometry::Category>(c)))];
+    }
+    return shapes;
 }
 
 } // namespace
@@ -42,20 +52,33 @@ std::uint32_t groupCount(const DrawTallies& tallies, int draw, std::size_t radiu
 }
 
 PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,
-                                      const std::vector<ClassGroup>& groups, std::size_t group_index,
+                                      const std::vector<ClassGroup>& groups,
                                       const FractionSettings& settings) {
-    const ClassGroup everything{"all", std::bitset<photometry::kCategoryCount>().set()};
+    const auto prior_shapes = categoryPriorShapes(settings.class_prior_shape);
     const auto deviates = static_cast<std::size_t>(settings.population_deviates_per_draw);
-    Xoshiro256 random(settings.seed, kPopulationStreamBase + radius_index * groups.size() + group_index);
+    const std::size_t total_deviates = static_cast<std::size_t>(tallies.draws) * deviates;
+    Xoshiro256 random(settings.seed, kPopulationStreamBase + radius_index);
     PopulationDeviates result;
-    result.fraction.reserve(static_cast<std::size_t>(tallies.draws) * deviates);
-    result.count.reserve(static_cast<std::size_t>(tallies.draws) * deviates);
+    result.fraction.assign(groups.size(), std::vector<double>(total_deviates));
+    result.count.assign(groups.size(), std::vector<double>(total_deviates));
+    std::array<double, photometry::kCategoryCount> expected{};
     for (int d = 0; d < tallies.draws; ++d) {
-        const double n = groupCount(tallies, d, radius_index, groups[group_index]);
-        const double total = groupCount(tallies, d, radius_index, everything);
         for (std::size_t k = 0; k < deviates; ++k) {
-            result.fraction.push_back(betaDeviate(random, n + 0.5, total - n + 0.5));
-            result.count.push_back(gammaDeviate(random, n + 0.5));
+            double total = 0.0;
+            for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+                const auto n = tallies.count(d, radius_index, static_cast<photometry::Category>(c));
+                expected[c] = gammaDeviate(random, n + prior_shapes[c]);
+                total += expected[c];
+            }
+            const std::size_t i = static_cast<std::size_t>(d) * deviates + k;
+            for (std::size_t g = 0; g < groups.size(); ++g) {
+                double sum = 0.0;
+                for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+                    sum += groups[g].categories.test(c) ? expected[c] : 0.0;
+                }
+                result.count[g][i] = sum;
+                result.fraction[g][i] = sum / total;
+            }
         }
     }
     return result;
@@ -83,6 +106,7 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         std::vector<double> sorted_totals = totals;
         estimate.members = summarizeDraws(sorted_totals);
 
+        PopulationDeviates population = populationDeviates(tallies, r, groups, settings);
         for (std::size_t g = 0; g < groups.size(); ++g) {
             std::vector<double> fraction(draws), count(draws), density(draws);
             for (std::size_t d = 0; d < draws; ++d) {
@@ -91,14 +115,13 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
                 count[d] = n;
                 density[d] = n / estimate.volume_pc3;
             }
-            PopulationDeviates population = populationDeviates(tallies, r, groups, g, settings);
-            std::vector<double> population_density = population.count;
+            std::vector<double> population_density = population.count[g];
             for (double& value : population_density) {
                 value /= estimate.volume_pc3;
             }
             estimate.groups.push_back({groups[g].name,
-                                       {summarizeDraws(fraction), summarizeDraws(population.fraction)},
-                                       {summarizeDraws(count), summarizeDraws(population.count)},
+                                       {summarizeDraws(fraction), summarizeDraws(population.fraction[g])},
+                                       {summarizeDraws(count), summarizeDraws(population.count[g])},
                                        {summarizeDraws(density), summarizeDraws(population_density)}});
         }
         estimates.push_back(std::move(estimate));
