@@ -13,16 +13,6 @@ namespace {
 using photometry::FitsColumn;
 using photometry::FitsColumnType;
 
-std::string radiusLabel(double radius_pc) {
-    char buffer[32];
-    std::snprintf(buffer, sizeof buffer, "%g", radius_pc);
-    std::string label = buffer;
-    for (char& c : label) {
-        c = c == '.' ? 'p' : c;
-    }
-    return label;
-}
-
 std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
     std::vector<FitsColumn> columns = {
         {"source_id", FitsColumnType::Int64, "", "meta.id;meta.main", "source identifier from the input", 0,
@@ -113,6 +103,39 @@ std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
 
 } // namespace
 
+std::string radiusLabel(double radius_pc) {
+    char buffer[32];
+    std::snprintf(buffer, sizeof buffer, "%g", radius_pc);
+    std::string label = buffer;
+    for (char& c : label) {
+        c = c == '.' ? 'p' : c;
+    }
+    return label;
+}
+
+photometry::PhotometricInput photometricInput(const photometry::CatalogRow& row) {
+    photometry::PhotometricInput input;
+    input.g_mag = row.g_mag;
+    input.bp_mag = row.bp_mag;
+    input.rp_mag = row.rp_mag;
+    input.j_mag = row.j_mag;
+    input.ks_mag = row.ks_mag;
+    input.parallax_mas = row.parallax_mas;
+    input.parallax_error_mas = row.parallax_error_mas;
+    return input;
+}
+
+photometry::Classification classifyRow(const photometry::CatalogRow& row,
+                                       const photometry::Classifier& classifier,
+                                       double min_parallax_snr_to_classify) {
+    photometry::Classification result = classifier.classify(photometricInput(row));
+    if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
+        result.stellar_class = photometry::StellarClass::Unclassified;
+        result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);
+    }
+    return result;
+}
+
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
                       const photometry::Classifier& classifier, double min_parallax_snr_to_classify) {
@@ -124,19 +147,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
     const std::size_t radii = sample.radii().size();
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
-        photometry::PhotometricInput input;
-        input.g_mag = row.g_mag;
-        input.bp_mag = row.bp_mag;
-        input.rp_mag = row.rp_mag;
-        input.j_mag = row.j_mag;
-        input.ks_mag = row.ks_mag;
-        input.parallax_mas = row.parallax_mas;
-        input.parallax_error_mas = row.parallax_error_mas;
-        photometry::Classification result = classifier.classify(input);
-        if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
-            result.stellar_class = photometry::StellarClass::Unclassified;
-            result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);
-        }
+        const photometry::Classification result = classifyRow(row, classifier, min_parallax_snr_to_classify);
         std::size_t c = 0;
         block.values<std::int64_t>(c++).push_back(
             row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);

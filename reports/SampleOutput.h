@@ -8,8 +8,21 @@
 
 #include <filesystem>
 #include <span>
+#include <string>
 
 namespace starcensus::reports {
+
+/// The classifier's input for a catalogue row (apparent magnitudes and parallax).
+photometry::PhotometricInput photometricInput(const photometry::CatalogRow& row);
+
+/// The exact classification of a row as written to sample.fits: rows with parallax / error below
+/// min_parallax_snr_to_classify are unclassified and flagged LowParallaxSnr.
+photometry::Classification classifyRow(const photometry::CatalogRow& row,
+                                       const photometry::Classifier& classifier,
+                                       double min_parallax_snr_to_classify);
+
+/// "%g" of a radius with '.' as 'p', for column names: 10 -> "10", 2.5 -> "2p5".
+std::string radiusLabel(double radius_pc);
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
