@@ -1,12 +1,15 @@
 #pragma once
 // `starcensus run`: catalogs in, census out. Reads and selects the candidates, applies the quality cuts,
 // computes membership posteriors, runs the Monte Carlo over measurement errors, summarises fractions per
-// radius and writes sample.fits, fractions.json and fractions.csv into the output directory. Every file
-// is complete before it appears under its name; nothing is written if any step fails before output.
+// radius, fits the host priors and writes sample.fits, fractions.json, fractions.csv, priors.json,
+// draws.fits, draws.csv, hosts.fits and provenance.json into the output directory. Every file is complete
+// before it appears under its name; nothing is written if any step fails before output.
 #include "census/CensusOptions.h"
 #include "census/Fractions.h"
+#include "census/Priors.h"
 #include "census/QualityCuts.h"
 #include "photometry/CatalogScan.h"
+#include "reports/HostsOutput.h"
 
 #include <nlohmann/json.hpp>
 
@@ -22,6 +25,9 @@ struct PipelineSettings {
     std::filesystem::path output_directory;
     photometry::ScanSettings scan;
     census::CensusSettings census; // validated
+    HostListSettings hosts;        // seed and threads are taken from census.draws
+    nlohmann::json options;        // every option value of the command (optionValuesJson), for provenance
+    bool show_progress = false;    // one line per stage on `log` (the CLI sets it when stderr is a terminal)
 };
 
 struct PipelineTimings {
@@ -36,6 +42,8 @@ struct PipelineResult {
     photometry::ScanCounts scan_totals;
     std::vector<census::CutOutcome> cuts;
     std::vector<census::RadiusEstimate> estimates;
+    std::vector<census::RadiusPriors> priors;
+    std::size_t hosts = 0; // rows of hosts.fits
     std::size_t candidates_after_cuts = 0;
     PipelineTimings timings;
 };

@@ -136,6 +136,12 @@ photometry::Classification classifyRow(const photometry::CatalogRow& row,
     return result;
 }
 
+std::string spectralTypeColumn(const photometry::Classification& result) {
+    const bool dwarf = result.stellar_class < photometry::StellarClass::WhiteDwarf;
+    return dwarf && std::isfinite(result.spectral_code) ? photometry::spectralTypeLabel(result.spectral_code)
+                                                        : std::string();
+}
+
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
                       const photometry::Classifier& classifier, double min_parallax_snr_to_classify) {
@@ -162,10 +168,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));
-        const bool dwarf = result.stellar_class < photometry::StellarClass::WhiteDwarf;
-        block.values<std::string>(c++).push_back(dwarf && std::isfinite(result.spectral_code)
-                                                     ? photometry::spectralTypeLabel(result.spectral_code)
-                                                     : std::string());
+        block.values<std::string>(c++).push_back(spectralTypeColumn(result));
         for (const double value :
              {result.spectral_code, result.teff_k, result.mass_msun, result.locus_offset_mag}) {
             block.values<float>(c++).push_back(static_cast<float>(value));

@@ -21,6 +21,9 @@ photometry::Classification classifyRow(const photometry::CatalogRow& row,
                                        const photometry::Classifier& classifier,
                                        double min_parallax_snr_to_classify);
 
+/// The sample.fits spectral_type of a classification: the subtype label of a dwarf, empty otherwise.
+std::string spectralTypeColumn(const photometry::Classification& result);
+
 /// "%g" of a radius with '.' as 'p', for column names: 10 -> "10", 2.5 -> "2p5".
 std::string radiusLabel(double radius_pc);
 

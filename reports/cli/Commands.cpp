@@ -5,8 +5,11 @@
 #include "census/MockOutput.h"
 #include "photometry/CatalogInspection.h"
 #include "photometry/InputError.h"
+#include "photometry/OptionChecks.h"
 #include "photometry/ReaderOptions.h"
 #include "reports/CensusPipeline.h"
+#include "reports/Progress.h"
+#include "reports/Provenance.h"
 
 #include <boost/program_options.hpp>
 
@@ -98,6 +101,23 @@ census::MockResult simulateToFiles(const census::MockRequest& request,
     return mock;
 }
 
+/// --hosts-radius and --host-min-probability, bound to the host-list settings.
+po::options_description hostOptions(reports::HostListSettings& hosts) {
+    po::options_description options("Host list (hosts.fits)");
+    auto add = options.add_options();
+    add("hosts-radius",
+        po::value(&hosts.radius_pc)->default_value(hosts.radius_pc, "largest")->value_name("PC"),
+        "census radius of the host list (pc); one of --radius, default the largest");
+    add("host-min-probability",
+        po::value(&hosts.min_probability)->default_value(hosts.min_probability, "0.5")->value_name("P"),
+        "membership probability at or above which an object is listed as a host (0 to 1)");
+    return options;
+}
+
+void checkHostOptions(const reports::HostListSettings& hosts) {
+    requireInRange("host-min-probability", hosts.min_probability, 0.0, 1.0, "");
+}
+
 } // namespace
 
 int simulateCommand(const std::vector<std::string>& arguments) {
@@ -138,12 +158,14 @@ int demoCommand(const std::vector<std::string>& arguments) {
         "seed of the mock and of the Monte Carlo");
     add("draws", po::value(&census_settings.draws.draws)->default_value(census_settings.draws.draws),
         "Monte Carlo draws");
+    reports::HostListSettings hosts;
     po::options_description options;
-    options.add(commonOptions(common)).add(io);
+    options.add(commonOptions(common)).add(io).add(hostOptions(hosts));
     po::variables_map values;
     if (parseOptions("demo", arguments, options, {}, common, values)) {
         return 0;
     }
+    checkHostOptions(hosts);
     census_settings.draws.seed = request.seed;
     census::validate(census_settings);
     const std::filesystem::path directory = output_directory;
@@ -155,6 +177,9 @@ int demoCommand(const std::vector<std::string>& arguments) {
     settings.inputs = {(directory / "mock.fits").string()};
     settings.output_directory = directory;
     settings.census = census_settings;
+    settings.hosts = hosts;
+    settings.options = reports::optionValuesJson(values);
+    settings.show_progress = reports::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     return 0;
@@ -170,11 +195,13 @@ int runCommand(const std::vector<std::string>& arguments) {
     add("input,i", po::value(&inputs)->composing(),
         "input catalogs: FITS (also .gz) or CSV files, globs, @list.txt");
     add("out,o", po::value(&output_directory)->default_value(output_directory), "output directory");
+    reports::HostListSettings hosts;
     po::options_description options;
     options.add(commonOptions(common))
         .add(io)
         .add(photometry::catalogReaderOptions())
-        .add(census::censusOptions(census_settings));
+        .add(census::censusOptions(census_settings))
+        .add(hostOptions(hosts));
     po::positional_options_description positional;
     positional.add("input", -1);
     po::variables_map values;
@@ -184,6 +211,7 @@ int runCommand(const std::vector<std::string>& arguments) {
     if (inputs.empty()) {
         throw InputError("--input: no input catalog given");
     }
+    checkHostOptions(hosts);
     reports::PipelineSettings settings;
     settings.inputs = inputs;
     settings.output_directory = output_directory;
@@ -191,6 +219,9 @@ int runCommand(const std::vector<std::string>& arguments) {
     census_settings.draws.threads = settings.scan.threads;
     census::validate(census_settings);
     settings.census = census_settings;
+    settings.hosts = hosts;
+    settings.options = reports::optionValuesJson(values);
+    settings.show_progress = reports::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     return 0;
