@@ -1,5 +1,6 @@
 #include "census/Fractions.h"
 
+#include "census/CensusOptions.h"
 #include "census/Random.h"
 #include "photometry/InputError.h"
 
@@ -85,4 +86,15 @@ TEST_CASE("population 68% intervals cover the true fraction at the quoted rate (
     MESSAGE("population 68% interval coverage over " << kTrials << " trials: " << coverage);
     CHECK(coverage >= 0.60);
     CHECK(coverage <= 0.76);
+}
+
+TEST_CASE("user groups must not repeat a class's or another group's name") {
+    census::CensusSettings settings;
+    settings.group_definitions = {"FGK=F,G,K", "M=M0-M4"};
+    CHECK_THROWS_WITH_AS(census::validate(settings),
+                         "--group: 'M' repeats the name of a class or an earlier group", InputError);
+    settings.group_definitions = {"FGK=F,G,K", "FGK=F,G"};
+    CHECK_THROWS_AS(census::validate(settings), InputError);
+    settings.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4"};
+    CHECK_NOTHROW(census::validate(settings));
 }
