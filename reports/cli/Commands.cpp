@@ -168,6 +168,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     checkHostOptions(hosts);
     census_settings.draws.seed = request.seed;
     census::validate(census_settings);
+    reports::hostRadiusIndex(hosts, census_settings.radii_pc); // before the mock is simulated
     const std::filesystem::path directory = output_directory;
     const auto mock =
         simulateToFiles(request, directory / "mock.fits", directory / "truth.json", census_settings.radii_pc);
