@@ -104,7 +104,12 @@ void validate(CensusSettings& settings) {
     requireInRange("draws", settings.draws.draws, 1, 1e7, "");
     settings.groups = standardClassGroups();
     for (const auto& definition : settings.group_definitions) {
-        settings.groups.push_back(parseClassGroup(definition));
+        ClassGroup group = parseClassGroup(definition);
+        // Names key the JSON outputs and name the draws.fits columns, so they must be unique.
+        requireThat(std::none_of(settings.groups.begin(), settings.groups.end(),
+                                 [&](const ClassGroup& other) { return other.name == group.name; }),
+                    "group", "'" + group.name + "' repeats the name of a class or an earlier group");
+        settings.groups.push_back(std::move(group));
     }
 }
 

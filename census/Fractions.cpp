@@ -2,6 +2,7 @@
 
 #include "census/Random.h"
 
+#include <array>
 #include <cmath>
 #include <numbers>
 #include <random>
@@ -18,10 +19,19 @@ double gammaDeviate(Xoshiro256& random, double shape) {
     return gamma(random);
 }
 
-double betaDeviate(Xoshiro256& random, double a, double b) {
-    const double x = gammaDeviate(random, a);
-    const double y = gammaDeviate(random, b);
-    return x / (x + y);
+/// The prior shape of each census category: the class's shape shared equally among its categories.
+std::array<double, photometry::kCategoryCount> categoryPriorShapes(double class_shape) {
+    std::array<int, photometry::kClassCount> categories_per_class{};
+    for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+        ++categories_per_class[static_cast<std::size_t>(
+            photometry::classOfCategory(static_cast<photometry::Category>(c)))];
+    }
+    std::array<double, photometry::kCategoryCount> shapes{};
+    for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+        shapes[c] = class_shape / categories_per_class[static_cast<std::size_t>(
+                                      photometry::classOfCategory(static_cast<photometry::Category>(c)))];
+    }
+    return shapes;
 }
 
 } // namespace
@@ -41,6 +51,39 @@ std::uint32_t groupCount(const DrawTallies& tallies, int draw, std::size_t radiu
     return total;
 }
 
+PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,
+                                      const std::vector<ClassGroup>& groups,
+                                      const FractionSettings& settings) {
+    const auto prior_shapes = categoryPriorShapes(settings.class_prior_shape);
+    const auto deviates = static_cast<std::size_t>(settings.population_deviates_per_draw);
+    const std::size_t total_deviates = static_cast<std::size_t>(tallies.draws) * deviates;
+    Xoshiro256 random(settings.seed, kPopulationStreamBase + radius_index);
+    PopulationDeviates result;
+    result.fraction.assign(groups.size(), std::vector<double>(total_deviates));
+    result.count.assign(groups.size(), std::vector<double>(total_deviates));
+    std::array<double, photometry::kCategoryCount> expected{};
+    for (int d = 0; d < tallies.draws; ++d) {
+        for (std::size_t k = 0; k < deviates; ++k) {
+            double total = 0.0;
+            for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+                const auto n = tallies.count(d, radius_index, static_cast<photometry::Category>(c));
+                expected[c] = gammaDeviate(random, n + prior_shapes[c]);
+                total += expected[c];
+            }
+            const std::size_t i = static_cast<std::size_t>(d) * deviates + k;
+            for (std::size_t g = 0; g < groups.size(); ++g) {
+                double sum = 0.0;
+                for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+                    sum += groups[g].categories.test(c) ? expected[c] : 0.0;
+                }
+                result.count[g][i] = sum;
+                result.fraction[g][i] = sum / total;
+            }
+        }
+    }
+    return result;
+}
+
 std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                                               const std::vector<std::int64_t>& hard_cut_members,
                                               const std::vector<double>& expected_members,
@@ -50,7 +93,6 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
     everything.categories.set();
     std::vector<RadiusEstimate> estimates;
     const auto draws = static_cast<std::size_t>(tallies.draws);
-    const auto deviates = static_cast<std::size_t>(settings.population_deviates_per_draw);
     for (std::size_t r = 0; r < radii_pc.size(); ++r) {
         RadiusEstimate estimate;
         estimate.radius_pc = radii_pc[r];
@@ -64,29 +106,22 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         std::vector<double> sorted_totals = totals;
         estimate.members = summarizeDraws(sorted_totals);
 
+        PopulationDeviates population = populationDeviates(tallies, r, groups, settings);
         for (std::size_t g = 0; g < groups.size(); ++g) {
-            Xoshiro256 random(settings.seed, kPopulationStreamBase + r * groups.size() + g);
             std::vector<double> fraction(draws), count(draws), density(draws);
-            std::vector<double> population_fraction, population_count, population_density;
-            population_fraction.reserve(draws * deviates);
-            population_count.reserve(draws * deviates);
-            population_density.reserve(draws * deviates);
             for (std::size_t d = 0; d < draws; ++d) {
                 const double n = groupCount(tallies, static_cast<int>(d), r, groups[g]);
-                const double total = totals[d];
-                fraction[d] = total > 0 ? n / total : 0.0;
+                fraction[d] = totals[d] > 0 ? n / totals[d] : 0.0;
                 count[d] = n;
                 density[d] = n / estimate.volume_pc3;
-                for (std::size_t k = 0; k < deviates; ++k) {
-                    population_fraction.push_back(betaDeviate(random, n + 0.5, total - n + 0.5));
-                    const double expected_count = gammaDeviate(random, n + 0.5);
-                    population_count.push_back(expected_count);
-                    population_density.push_back(expected_count / estimate.volume_pc3);
-                }
+            }
+            std::vector<double> population_density = population.count[g];
+            for (double& value : population_density) {
+                value /= estimate.volume_pc3;
             }
             estimate.groups.push_back({groups[g].name,
-                                       {summarizeDraws(fraction), summarizeDraws(population_fraction)},
-                                       {summarizeDraws(count), summarizeDraws(population_count)},
+                                       {summarizeDraws(fraction), summarizeDraws(population.fraction[g])},
+                                       {summarizeDraws(count), summarizeDraws(population.count[g])},
                                        {summarizeDraws(density), summarizeDraws(population_density)}});
         }
         estimates.push_back(std::move(estimate));

@@ -2,10 +2,16 @@
 // Type fractions, counts and number densities per radius with two kinds of interval:
 //  - this volume: measurement noise only. Over the Monte Carlo draws, the share of the objects that are
 //    actually inside R (n_g / N, n_g, n_g / V).
-//  - population: adds the sampling noise of a finite volume. In each draw, the underlying fraction gets a
-//    Beta(n_g + 1/2, N - n_g + 1/2) deviate (the Jeffreys prior of a binomial proportion; it is the
-//    aggregated marginal of a multinomial-Dirichlet model) and the expected count a Gamma(n_g + 1/2)
-//    deviate (the Jeffreys prior of a Poisson mean), so the interval is that of the mixture over draws.
+//  - population: adds the sampling noise of a finite volume. In each draw, the expected count of every
+//    class gets a Gamma(n_c + 1/2) deviate (1/2 is FractionSettings::class_prior_shape) (the Jeffreys prior
+//    of a Poisson mean, p(lambda) ∝ lambda^-1/2), shared among the class's census categories as Gamma(n_k +
+//    1/(2 m)) for its m categories, so that the category deviates add up to the class deviate. A group's
+//    expected count is the sum over its categories and its fraction that sum over the total: the class
+//    fractions are then one draw of Dirichlet(n_c + 1/2) (independent gamma deviates normalised by their sum
+//    are Dirichlet; the multinomial's Jeffreys prior), every deviate's class fractions sum to one, and a
+//    group's fraction is Beta(n_g + a_g, N - n_g + 13/2 - a_g) with a_g its share of the prior (aggregation
+//    property). The prior adds 13/2 members in all: for samples of a few dozen stars it draws the large
+//    classes' fractions visibly towards the others. The interval is that of the mixture over draws.
 #include "census/ClassGroups.h"
 #include "census/Intervals.h"
 #include "census/MonteCarlo.h"
@@ -39,11 +45,24 @@ struct RadiusEstimate {
 };
 
 struct FractionSettings {
-    int population_deviates_per_draw = 4; // Beta/Gamma deviates mixed per Monte Carlo draw
+    int population_deviates_per_draw = 4; // population deviates mixed per Monte Carlo draw
     std::uint64_t seed = 1;               // stream for the population deviates (independent of the draws)
+    double class_prior_shape = 0.5;       // gamma prior shape per class (1/2: Jeffreys; dimensionless)
 };
 
 double sphereVolumePc3(double radius_pc);
+
+/// The population deviates at one radius for every group, `population_deviates_per_draw` per Monte Carlo
+/// draw (draw-major), as described at the top. The stream depends on the radius only, so every caller
+/// sees the same deviates for a seed.
+struct PopulationDeviates {
+    std::vector<std::vector<double>> fraction; // [group][deviate]
+    std::vector<std::vector<double>> count;    // [group][deviate], expected member count
+};
+
+PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,
+                                      const std::vector<ClassGroup>& groups,
+                                      const FractionSettings& settings);
 
 /// Summaries for every radius of the tallies and every group.
 std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,

@@ -5,11 +5,16 @@
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 #include "photometry/InputError.h"
+#include "reports/DrawsOutput.h"
 #include "reports/FractionsOutput.h"
 #include "reports/LuminosityOutput.h"
+#include "reports/PriorsOutput.h"
+#include "reports/Progress.h"
+#include "reports/Provenance.h"
 #include "reports/SampleOutput.h"
 
 #include <chrono>
+#include <ctime>
 #include <iomanip>
 #include <ostream>
 #include <sstream>
@@ -56,19 +61,48 @@ nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector
             {"candidate_sigma", settings.scan.candidate_sigma}};
 }
 
+/// provenance.json: the inputs with checksums, every option value, the resolved settings and the timings.
+nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vector<std::string>& paths,
+                              const PipelineTimings& timings, const std::vector<std::string>& outputs) {
+    const std::time_t now = std::time(nullptr);
+    char created[32];
+    std::strftime(created, sizeof created, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&now));
+    return {{"schema", kProvenanceSchema},
+            {"software", "starcensus"},
+            {"version", STARCENSUS_VERSION},
+            {"created_utc", created},
+            {"seed", settings.census.draws.seed},
+            {"inputs", inputFilesJson(paths)},
+            {"command_options", settings.options},
+            {"settings", runProvenance(settings, paths)},
+            {"timings_s",
+             {{"scan", timings.scan_s},
+              {"posteriors", timings.posteriors_s},
+              {"draws", timings.draws_s},
+              {"outputs", timings.outputs_s}}},
+            {"outputs", outputs}};
+}
+
 } // namespace
 
 PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream& log) {
     const auto& census = settings.census;
     PipelineResult result;
+    HostListSettings hosts = settings.hosts;
+    hosts.seed = census.draws.seed;
+    hosts.threads = census.draws.threads;
+    hostRadiusIndex(hosts, census.radii_pc); // a bad --hosts-radius fails before any work
+    StageProgress progress(log, settings.show_progress, 4);
 
     auto start = Clock::now();
+    progress.begin("scan");
     const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
     photometry::ScanSettings scan_settings = settings.scan;
     scan_settings.min_parallax_mas =
         1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
     photometry::CatalogScan scan = photometry::scanCatalogs(paths, scan_settings);
     result.timings.scan_s = secondsSince(start);
+    progress.end();
     for (const auto& file : scan.files) {
         for (const auto& warning : file.warnings) {
             log << "starcensus: warning: " << warning << '\n';
@@ -86,6 +120,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     result.candidates_after_cuts = rows.size();
 
     start = Clock::now();
+    progress.begin("posteriors");
     const photometry::Classifier& classifier = photometry::Classifier::shipped();
     const census::PreparedSample sample(rows, census.radii_pc, census.membership,
                                         census.quality.min_parallax_snr_to_classify, census.draws.threads,
@@ -93,6 +128,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     result.timings.posteriors_s = secondsSince(start);
 
     start = Clock::now();
+    progress.begin("draws");
     const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     const census::DrawTallies tallies = census::drawSample(sample, grid, census.draws);
     std::vector<double> expected;
@@ -102,9 +138,12 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     result.estimates = census::estimateFractions(tallies, census.radii_pc,
                                                  hardCutCounts(rows, census.radii_pc, census.membership),
                                                  expected, census.groups, {.seed = census.draws.seed});
+    result.priors =
+        census::estimatePriors(tallies, census.radii_pc, census.groups, {.seed = census.draws.seed});
     result.timings.draws_s = secondsSince(start);
 
     start = Clock::now();
+    progress.begin("outputs");
     // Completeness, luminosity function, mass-function fits and the corrected fractions.
     const LuminosityAnalysis luminosity =
         analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
@@ -114,8 +153,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                 << '\n';
         }
     }
-    std::filesystem::create_directories(settings.output_directory);
-    writeSampleTable(settings.output_directory / "sample.fits", rows, sample, tallies, classifier,
+    const std::filesystem::path& directory = settings.output_directory;
+    std::filesystem::create_directories(directory);
+    writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier,
                      census.quality.min_parallax_snr_to_classify);
     nlohmann::json provenance = runProvenance(settings, paths);
     // What each quality cut removed or changed, for the report's table.
@@ -129,10 +169,20 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     nlohmann::json fractions = fractionsJson(result.estimates, provenance);
     addCompletenessToFractions(fractions, luminosity);
     result.corrected = luminosity.corrected;
-    writeJsonFile(settings.output_directory / "fractions.json", fractions);
-    writeLuminosityOutputs(settings.output_directory, luminosity);
-    writeTextFileAtomically(settings.output_directory / "fractions.csv", fractionsCsv(result.estimates));
+    writeJsonFile(directory / "fractions.json", fractions);
+    writeLuminosityOutputs(directory, luminosity);
+    writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
+    writeJsonFile(directory / "priors.json", priorsJson(result.priors));
+    writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
+    writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
+    result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
+                                  census.quality.min_parallax_snr_to_classify, census.membership, hosts);
     result.timings.outputs_s = secondsSince(start);
+    writeJsonFile(directory / "provenance.json",
+                  provenanceJson(settings, paths, result.timings,
+                                 {"sample.fits", "fractions.json", "fractions.csv", "priors.json",
+                                  "draws.fits", "draws.csv", "hosts.fits", "provenance.json"}));
+    progress.end();
     return result;
 }
 

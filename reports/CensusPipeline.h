@@ -1,15 +1,18 @@
 #pragma once
 // `starcensus run`: catalogs in, census out. Reads and selects the candidates, applies the quality cuts,
 // computes membership posteriors, runs the Monte Carlo over measurement errors, summarises fractions per
-// radius and writes sample.fits, fractions.json and fractions.csv, and the completeness and
-// luminosity-function files (reports/LuminosityOutput.h) into the output directory. Every file
-// is complete before it appears under its name; nothing is written if any step fails before output.
+// radius, fits the host priors and writes sample.fits, fractions.json, fractions.csv, priors.json,
+// draws.fits, draws.csv, hosts.fits, provenance.json and the completeness and luminosity-function files
+// (reports/LuminosityOutput.h) into the output directory. Every file is complete before it appears under
+// its name; nothing is written if any step fails before output.
 #include "census/CensusOptions.h"
 #include "census/CompletenessCorrection.h"
 #include "census/Fractions.h"
 #include "census/LuminosityOptions.h"
+#include "census/Priors.h"
 #include "census/QualityCuts.h"
 #include "photometry/CatalogScan.h"
+#include "reports/HostsOutput.h"
 
 #include <nlohmann/json.hpp>
 
@@ -26,6 +29,9 @@ struct PipelineSettings {
     photometry::ScanSettings scan;
     census::CensusSettings census;            // validated
     census::LuminosityRunSettings luminosity; // validated
+    HostListSettings hosts;                   // seed and threads are taken from census.draws
+    nlohmann::json options;                   // every option value of the command (optionValuesJson)
+    bool show_progress = false;               // one line per stage on `log` (set when stderr is a terminal)
 };
 
 struct PipelineTimings {
@@ -41,6 +47,8 @@ struct PipelineResult {
     std::vector<census::CutOutcome> cuts;
     std::vector<census::RadiusEstimate> estimates;
     std::vector<census::CorrectedRadius> corrected; // completeness-corrected counts; empty without a fit
+    std::vector<census::RadiusPriors> priors;
+    std::size_t hosts = 0; // rows of hosts.fits
     std::size_t candidates_after_cuts = 0;
     PipelineTimings timings;
 };

@@ -13,16 +13,6 @@ namespace {
 using photometry::FitsColumn;
 using photometry::FitsColumnType;
 
-std::string radiusLabel(double radius_pc) {
-    char buffer[32];
-    std::snprintf(buffer, sizeof buffer, "%g", radius_pc);
-    std::string label = buffer;
-    for (char& c : label) {
-        c = c == '.' ? 'p' : c;
-    }
-    return label;
-}
-
 std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
     std::vector<FitsColumn> columns = {
         {"source_id", FitsColumnType::Int64, "", "meta.id;meta.main", "source identifier from the input", 0,
@@ -113,6 +103,33 @@ std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
 
 } // namespace
 
+std::string radiusLabel(double radius_pc) {
+    char buffer[32];
+    std::snprintf(buffer, sizeof buffer, "%g", radius_pc);
+    std::string label = buffer;
+    for (char& c : label) {
+        c = c == '.' ? 'p' : c;
+    }
+    return label;
+}
+
+photometry::Classification classifyRow(const photometry::CatalogRow& row,
+                                       const photometry::Classifier& classifier,
+                                       double min_parallax_snr_to_classify) {
+    photometry::Classification result = classifier.classify(photometry::photometricInput(row));
+    if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
+        result.stellar_class = photometry::StellarClass::Unclassified;
+        result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);
+    }
+    return result;
+}
+
+std::string spectralTypeColumn(const photometry::Classification& result) {
+    const bool dwarf = result.stellar_class < photometry::StellarClass::WhiteDwarf;
+    return dwarf && std::isfinite(result.spectral_code) ? photometry::spectralTypeLabel(result.spectral_code)
+                                                        : std::string();
+}
+
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
                       const photometry::Classifier& classifier, double min_parallax_snr_to_classify) {
@@ -124,11 +141,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
     const std::size_t radii = sample.radii().size();
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
-        photometry::Classification result = classifier.classify(photometry::photometricInput(row));
-        if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
-            result.stellar_class = photometry::StellarClass::Unclassified;
-            result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);
-        }
+        const photometry::Classification result = classifyRow(row, classifier, min_parallax_snr_to_classify);
         std::size_t c = 0;
         block.values<std::int64_t>(c++).push_back(
             row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);
@@ -143,10 +156,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));
-        const bool dwarf = result.stellar_class < photometry::StellarClass::WhiteDwarf;
-        block.values<std::string>(c++).push_back(dwarf && std::isfinite(result.spectral_code)
-                                                     ? photometry::spectralTypeLabel(result.spectral_code)
-                                                     : std::string());
+        block.values<std::string>(c++).push_back(spectralTypeColumn(result));
         for (const double value :
              {result.spectral_code, result.teff_k, result.mass_msun, result.locus_offset_mag}) {
             block.values<float>(c++).push_back(static_cast<float>(value));

@@ -8,8 +8,21 @@
 
 #include <filesystem>
 #include <span>
+#include <string>
 
 namespace starcensus::reports {
+
+/// The exact classification of a row as written to sample.fits: rows with parallax / error below
+/// min_parallax_snr_to_classify are unclassified and flagged LowParallaxSnr.
+photometry::Classification classifyRow(const photometry::CatalogRow& row,
+                                       const photometry::Classifier& classifier,
+                                       double min_parallax_snr_to_classify);
+
+/// The sample.fits spectral_type of a classification: the subtype label of a dwarf, empty otherwise.
+std::string spectralTypeColumn(const photometry::Classification& result);
+
+/// "%g" of a radius with '.' as 'p', for column names: 10 -> "10", 2.5 -> "2p5".
+std::string radiusLabel(double radius_pc);
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,

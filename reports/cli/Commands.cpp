@@ -6,9 +6,12 @@
 #include "census/MockOutput.h"
 #include "photometry/CatalogInspection.h"
 #include "photometry/InputError.h"
+#include "photometry/OptionChecks.h"
 #include "photometry/ReaderOptions.h"
 #include "reports/CensusPipeline.h"
 #include "reports/Report.h"
+#include "reports/Progress.h"
+#include "reports/Provenance.h"
 
 #include <boost/program_options.hpp>
 
@@ -18,7 +21,6 @@
 #include <iomanip>
 #include <iostream>
 #include <sstream>
-#include <unistd.h>
 
 namespace starcensus::cli {
 
@@ -135,10 +137,27 @@ census::MockResult simulateToFiles(const census::MockRequest& request,
 
 /// Writes report.html and figures/ for a finished run; progress lines only when stderr is a terminal.
 void writeReportFor(const std::filesystem::path& directory) {
-    const bool terminal = ::isatty(STDERR_FILENO) != 0;
-    const auto report = reports::writeCensusReport(directory, {}, terminal ? &std::cerr : nullptr);
+    const auto report =
+        reports::writeCensusReport(directory, {}, reports::stderrIsTerminal() ? &std::cerr : nullptr);
     std::cout << "report: " << report.html.string() << " (" << report.figures.size() << " figures in "
               << (directory / "figures").string() << "/)\n";
+}
+
+/// --hosts-radius and --host-min-probability, bound to the host-list settings.
+po::options_description hostOptions(reports::HostListSettings& hosts) {
+    po::options_description options("Host list (hosts.fits)");
+    auto add = options.add_options();
+    add("hosts-radius",
+        po::value(&hosts.radius_pc)->default_value(hosts.radius_pc, "largest")->value_name("PC"),
+        "census radius of the host list (pc); one of --radius, default the largest");
+    add("host-min-probability",
+        po::value(&hosts.min_probability)->default_value(hosts.min_probability, "0.5")->value_name("P"),
+        "membership probability at or above which an object is listed as a host (0 to 1)");
+    return options;
+}
+
+void checkHostOptions(const reports::HostListSettings& hosts) {
+    requireInRange("host-min-probability", hosts.min_probability, 0.0, 1.0, "");
 }
 
 } // namespace
@@ -181,14 +200,17 @@ int demoCommand(const std::vector<std::string>& arguments) {
         "seed of the mock and of the Monte Carlo");
     add("draws", po::value(&census_settings.draws.draws)->default_value(census_settings.draws.draws),
         "Monte Carlo draws");
+    reports::HostListSettings hosts;
     po::options_description options;
-    options.add(commonOptions(common)).add(io);
+    options.add(commonOptions(common)).add(io).add(hostOptions(hosts));
     po::variables_map values;
     if (parseOptions("demo", arguments, options, {}, common, values)) {
         return 0;
     }
+    checkHostOptions(hosts);
     census_settings.draws.seed = request.seed;
     census::validate(census_settings);
+    reports::hostRadiusIndex(hosts, census_settings.radii_pc); // before the mock is simulated
     const std::filesystem::path directory = output_directory;
     const auto mock =
         simulateToFiles(request, directory / "mock.fits", directory / "truth.json", census_settings.radii_pc);
@@ -198,6 +220,9 @@ int demoCommand(const std::vector<std::string>& arguments) {
     settings.inputs = {(directory / "mock.fits").string()};
     settings.output_directory = directory;
     settings.census = census_settings;
+    settings.hosts = hosts;
+    settings.options = reports::optionValuesJson(values);
+    settings.show_progress = reports::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << truthComparison(mock, result) << "outputs in "
               << output_directory << "/\n";
@@ -216,12 +241,14 @@ int runCommand(const std::vector<std::string>& arguments) {
     add("input,i", po::value(&inputs)->composing(),
         "input catalogs: FITS (also .gz) or CSV files, globs, @list.txt");
     add("out,o", po::value(&output_directory)->default_value(output_directory), "output directory");
+    reports::HostListSettings hosts;
     po::options_description options;
     options.add(commonOptions(common))
         .add(io)
         .add(photometry::catalogReaderOptions())
         .add(census::censusOptions(census_settings))
-        .add(census::luminosityOptions(luminosity_settings));
+        .add(census::luminosityOptions(luminosity_settings))
+        .add(hostOptions(hosts));
     po::positional_options_description positional;
     positional.add("input", -1);
     po::variables_map values;
@@ -231,6 +258,7 @@ int runCommand(const std::vector<std::string>& arguments) {
     if (inputs.empty()) {
         throw InputError("--input: no input catalog given");
     }
+    checkHostOptions(hosts);
     reports::PipelineSettings settings;
     settings.inputs = inputs;
     settings.output_directory = output_directory;
@@ -240,6 +268,9 @@ int runCommand(const std::vector<std::string>& arguments) {
     settings.census = census_settings;
     census::validate(luminosity_settings);
     settings.luminosity = luminosity_settings;
+    settings.hosts = hosts;
+    settings.options = reports::optionValuesJson(values);
+    settings.show_progress = reports::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     writeReportFor(output_directory);

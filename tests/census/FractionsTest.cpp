@@ -1,5 +1,6 @@
 #include "census/Fractions.h"
 
+#include "census/CensusOptions.h"
 #include "census/Random.h"
 #include "photometry/InputError.h"
 
@@ -58,7 +59,8 @@ TEST_CASE("class groups parse classes and subtype ranges") {
     CHECK_THROWS_AS(census::parseClassGroup("noequals"), InputError);
 }
 
-TEST_CASE("noise-free census: this-volume intervals collapse, population intervals are Jeffreys intervals") {
+TEST_CASE("noise-free census: this-volume intervals collapse, population intervals are Jeffreys-Dirichlet "
+          "intervals") {
     const auto tallies = fixedTallies(200, 30, 70);
     const auto groups = census::standardClassGroups();
     const auto estimates = census::estimateFractions(tallies, {10.0}, {100}, {100.0}, groups, {});
@@ -66,11 +68,11 @@ TEST_CASE("noise-free census: this-volume intervals collapse, population interva
     const auto& g = estimates[0].groups[static_cast<std::size_t>(StellarClass::G)];
     CHECK(g.fraction.this_volume.median == doctest::Approx(0.3));
     CHECK(g.fraction.this_volume.lo95 == doctest::Approx(0.3));
-    // Beta(30.5, 70.5): median 0.3006, 68% interval [0.2564, 0.3476] (scipy.stats.beta.ppf); tolerance
-    // 0.01 for 800 deviates.
-    CHECK(g.fraction.population.median == doctest::Approx(0.3006).epsilon(0.03));
-    CHECK(g.fraction.population.lo68 == doctest::Approx(0.2564).epsilon(0.04));
-    CHECK(g.fraction.population.hi68 == doctest::Approx(0.3476).epsilon(0.04));
+    // G's share of the Dirichlet(n_c + 1/2) over the 13 classes is Beta(30.5, 70 + 12/2): median 0.2850,
+    // 68% interval [0.2426, 0.3301] (scipy.stats.beta(30.5, 76.0).ppf); tolerance for 800 deviates.
+    CHECK(g.fraction.population.median == doctest::Approx(0.2850).epsilon(0.03));
+    CHECK(g.fraction.population.lo68 == doctest::Approx(0.2426).epsilon(0.04));
+    CHECK(g.fraction.population.hi68 == doctest::Approx(0.3301).epsilon(0.04));
     CHECK(g.density_pc3.this_volume.median == doctest::Approx(30.0 / census::sphereVolumePc3(10.0)));
     CHECK(estimates[0].members.median == doctest::Approx(100.0));
 }
@@ -97,4 +99,15 @@ TEST_CASE("population 68% intervals cover the true fraction at the quoted rate (
     MESSAGE("population 68% interval coverage over " << kTrials << " trials: " << coverage);
     CHECK(coverage >= 0.60);
     CHECK(coverage <= 0.76);
+}
+
+TEST_CASE("user groups must not repeat a class's or another group's name") {
+    census::CensusSettings settings;
+    settings.group_definitions = {"FGK=F,G,K", "M=M0-M4"};
+    CHECK_THROWS_WITH_AS(census::validate(settings),
+                         "--group: 'M' repeats the name of a class or an earlier group", InputError);
+    settings.group_definitions = {"FGK=F,G,K", "FGK=F,G"};
+    CHECK_THROWS_AS(census::validate(settings), InputError);
+    settings.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4"};
+    CHECK_NOTHROW(census::validate(settings));
 }

@@ -1,0 +1,41 @@
+#pragma once
+// hosts.fits: the host list of one census radius for target-list and occurrence tools. One row per object
+// whose membership probability within the radius is at least a threshold, with its class (the exact
+// classifier, as in sample.fits), Teff and mass and their uncertainties.
+//
+// Uncertainties: each host is re-measured `realisations` times: a distance modulus from its membership
+// posterior (census/Membership.h, the same posterior as the Monte Carlo) and G, BP, RP with Gaussian
+// errors of the catalogue's sizes; each realisation is classified with the exact classifier. teff_error and
+// mass_error are half the central 68% range of the realisations' Teff and mass (NaN when fewer than half
+// of the realisations have one, e.g. white dwarfs, evolved stars and unclassified objects). The spread is
+// that of the measurements through the locus; the locus's own scatter is not included.
+#include "census/Membership.h"
+#include "census/MonteCarlo.h"
+#include "photometry/CatalogRow.h"
+#include "photometry/Classifier.h"
+
+#include <cstdint>
+#include <filesystem>
+#include <span>
+
+namespace starcensus::reports {
+
+struct HostListSettings {
+    double radius_pc = 0.0;       // one of the census radii (pc); 0 = the largest
+    double min_probability = 0.5; // membership probability threshold (inclusive)
+    int realisations = 200;       // re-measurements per host for the Teff and mass uncertainties
+    std::uint64_t seed = 1;       // random streams (seed, host row)
+    unsigned threads = 0;         // 0 = all hardware threads
+};
+
+/// The index of settings.radius_pc in radii_pc (the largest for 0); InputError naming --hosts-radius if
+/// it is not one of them.
+std::size_t hostRadiusIndex(const HostListSettings& settings, const std::vector<double>& radii_pc);
+
+/// Writes the host list; returns the number of hosts.
+std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
+                           const census::PreparedSample& sample, const census::DrawTallies& tallies,
+                           const photometry::Classifier& classifier, double min_parallax_snr_to_classify,
+                           const census::MembershipSettings& membership, const HostListSettings& settings);
+
+} // namespace starcensus::reports
