@@ -9,9 +9,9 @@
 #include "photometry/OptionChecks.h"
 #include "photometry/ReaderOptions.h"
 #include "reports/CensusPipeline.h"
-#include "reports/Report.h"
 #include "reports/Progress.h"
 #include "reports/Provenance.h"
+#include "reports/Report.h"
 
 #include <boost/program_options.hpp>
 
