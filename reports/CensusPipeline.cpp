@@ -155,7 +155,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     }
     const std::filesystem::path& directory = settings.output_directory;
     std::filesystem::create_directories(directory);
-    writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier,
+    writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, census.membership,
                      census.quality.min_parallax_snr_to_classify);
     nlohmann::json provenance = runProvenance(settings, paths);
     // What each quality cut removed or changed, for the report's table.

@@ -180,7 +180,8 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
     auto block = writer.makeBlock();
     for (std::size_t h = 0; h < hosts.size(); ++h) {
         const auto& row = rows[hosts[h]];
-        const photometry::Classification result = classifyRow(row, classifier, min_parallax_snr_to_classify);
+        const photometry::Classification result =
+            classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
         std::size_t c = 0;
         block.values<std::int64_t>(c++).push_back(
             row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);

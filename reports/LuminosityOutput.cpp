@@ -1,5 +1,7 @@
 #include "reports/LuminosityOutput.h"
 
+#include "reports/SampleOutput.h"
+
 #include "census/MockPhotometry.h"
 #include "photometry/AtomicOutput.h"
 #include "reports/FractionsOutput.h"
@@ -28,12 +30,8 @@ std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> 
     const double zero_point = census.membership.parallax_zero_point_mas;
     for (const auto& row : rows) {
         const double parallax_mas = row.parallax_mas - zero_point;
-        photometry::PhotometricInput input = photometry::photometricInput(row);
-        input.parallax_mas = parallax_mas;
-        photometry::Classification result = classifier.classify(input);
-        if (!(row.parallax_mas >= census.quality.min_parallax_snr_to_classify * row.parallax_error_mas)) {
-            result.stellar_class = photometry::StellarClass::Unclassified;
-        }
+        const photometry::Classification result =
+            classifyRow(row, classifier, census.membership, census.quality.min_parallax_snr_to_classify);
         classified.push_back({result.abs_g_mag, parallax_mas > 0.0 ? 1000.0 / parallax_mas : kInfinity,
                               photometry::categoryOf(result.stellar_class, result.spectral_code)});
     }

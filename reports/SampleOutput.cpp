@@ -115,8 +115,11 @@ std::string radiusLabel(double radius_pc) {
 
 photometry::Classification classifyRow(const photometry::CatalogRow& row,
                                        const photometry::Classifier& classifier,
+                                       const census::MembershipSettings& membership,
                                        double min_parallax_snr_to_classify) {
-    photometry::Classification result = classifier.classify(photometry::photometricInput(row));
+    photometry::PhotometricInput input = photometry::photometricInput(row);
+    input.parallax_mas = row.parallax_mas - membership.parallax_zero_point_mas;
+    photometry::Classification result = classifier.classify(input);
     if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
         result.stellar_class = photometry::StellarClass::Unclassified;
         result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);
@@ -132,7 +135,8 @@ std::string spectralTypeColumn(const photometry::Classification& result) {
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                      const photometry::Classifier& classifier, double min_parallax_snr_to_classify) {
+                      const photometry::Classifier& classifier, const census::MembershipSettings& membership,
+                      double min_parallax_snr_to_classify) {
     photometry::FitsTableWriter writer(
         path, "SAMPLE", sampleColumns(sample.radii()),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"}});
@@ -141,7 +145,8 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
     const std::size_t radii = sample.radii().size();
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
-        const photometry::Classification result = classifyRow(row, classifier, min_parallax_snr_to_classify);
+        const photometry::Classification result =
+            classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
         std::size_t c = 0;
         block.values<std::int64_t>(c++).push_back(
             row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);

@@ -16,6 +16,7 @@ namespace starcensus::reports {
 /// min_parallax_snr_to_classify are unclassified and flagged LowParallaxSnr.
 photometry::Classification classifyRow(const photometry::CatalogRow& row,
                                        const photometry::Classifier& classifier,
+                                       const census::MembershipSettings& membership,
                                        double min_parallax_snr_to_classify);
 
 /// The sample.fits spectral_type of a classification: the subtype label of a dwarf, empty otherwise.
@@ -26,6 +27,7 @@ std::string radiusLabel(double radius_pc);
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                      const photometry::Classifier& classifier, double min_parallax_snr_to_classify);
+                      const photometry::Classifier& classifier, const census::MembershipSettings& membership,
+                      double min_parallax_snr_to_classify);
 
 } // namespace starcensus::reports
