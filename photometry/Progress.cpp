@@ -18,7 +18,8 @@ TerminalProgress::TerminalProgress(std::string label, std::string item_name, con
         std::mutex mutex;
         std::condition_variable_any wake;
         std::unique_lock lock(mutex);
-        while (!wake.wait_for(lock, stop, interval, [] { return false; })) {
+        // Sleeps `interval` unless a stop is requested, which wakes it at once.
+        while (!wake.wait_for(lock, stop, interval, [] { return false; }) && !stop.stop_requested()) {
             draw();
         }
     });

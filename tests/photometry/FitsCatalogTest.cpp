@@ -8,8 +8,10 @@
 
 #include <doctest/doctest.h>
 
+#include <chrono>
 #include <cmath>
 #include <filesystem>
+#include <thread>
 
 using namespace starcensus::photometry;
 using namespace starcensus::testing;
@@ -477,4 +479,18 @@ TEST_CASE("inspect reports HDUs, mapping routes, units, null counts and the para
     CHECK(text.find("  unmapped: bp_error rp_error j h ks") != std::string::npos);
     CHECK(text.find("  parallax range: -0.5 to 100.5 mas") != std::string::npos);
     CHECK(text.find("  error: " + missing + ": no such file") != std::string::npos);
+}
+
+TEST_CASE("a terminal progress display ends with its owner") {
+    // stderr of the test may or may not be a terminal; either way construction and destruction return
+    // promptly (a stop request wakes the display's thread).
+    ProgressCounters counters;
+    counters.items_total = 10;
+    const auto start = std::chrono::steady_clock::now();
+    {
+        const TerminalProgress display("test", "rows", counters, std::chrono::milliseconds(5));
+        counters.items_done = 10;
+        std::this_thread::sleep_for(std::chrono::milliseconds(20));
+    }
+    CHECK(std::chrono::steady_clock::now() - start < std::chrono::seconds(5));
 }
