@@ -1,7 +1,7 @@
 // Writes a benchmark input catalog: a mock solar neighbourhood out to RADIUS pc, in the Gaia-archive
-// layout of census/MockOutput.h (100 bytes per row), streamed in bounded memory. Out to 360 pc it holds
-// about 10 million rows, of which only ~0.1% can lie within 25 pc: like an all-sky catalog, almost every
-// row is read only to be rejected by the candidate test.
+// layout of census/MockOutput.h (100 bytes per row), streamed in bounded memory. Out to 367 pc it holds
+// about 10 million rows (158 pc: 1 million), of which only ~0.05% can lie within 25 pc: like an all-sky
+// catalog, almost every row is read only to be rejected by the candidate test.
 // Not a test. Usage: make_bench_catalog OUTPUT.fits RADIUS_PC [SEED]
 #include "census/MockOutput.h"
 

@@ -71,7 +71,8 @@ def main():
         colour_draw = colour + colour_err * rng.standard_normal((n, plx.size))
         with np.errstate(invalid="ignore", divide="ignore"):
             abs_g = g_draw + 5.0 * np.log10(plx_draw) - 10.0
-        node = np.rint(np.interp(colour_draw, locus_colour, np.arange(locus_colour.size))).astype(int)
+        node = np.rint(np.nan_to_num(np.interp(colour_draw, locus_colour, np.arange(locus_colour.size))))
+        node = node.astype(int)
         node = np.clip(node, 0, locus_colour.size - 1)
         cls = letter_index[node]
         cls = np.where(abs_g > locus_abs_g[node] + 4.0, wd_index, cls)
