@@ -32,8 +32,8 @@ struct ScanSettings {
                                    // as in cfitsio's file.fits[1]; otherwise an EXTNAME (case-insensitive)
     double min_parallax_mas = 0.0; // 1000 / largest radius in pc, from the caller
     double candidate_sigma = 3.0;  // k in the candidate test, in parallax standard errors
-    std::size_t block_bytes = std::size_t{1} << 20; // bytes of table rows read per block (1 MiB: the
-                                                    // decoded columns of a block stay in cache)
+    std::size_t block_bytes = std::size_t{8} << 20; // bytes of table rows read or mapped per block
+                                                    // and thread (8 MiB), decoded in ~16 KiB slices
     unsigned threads = 0; // scanning threads; 0 = std::thread::hardware_concurrency(). Files are scanned
                           // in parallel; with fewer files than threads, uncompressed FITS files are also
                           // split into row ranges scanned in parallel
