@@ -8,6 +8,7 @@
 #include "photometry/DwarfLocus.h"
 
 #include <sys/resource.h>
+#include <time.h>
 
 #include <chrono>
 #include <cmath>
@@ -41,6 +42,13 @@ std::vector<photometry::CatalogRow> benchSample(std::size_t n) {
     return rows;
 }
 
+// CPU seconds of the whole process (all threads): less sensitive than wall time to other load.
+double processCpuSeconds() {
+    timespec now{};
+    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &now);
+    return static_cast<double>(now.tv_sec) + 1e-9 * static_cast<double>(now.tv_nsec);
+}
+
 double peakResidentMiB() {
     rusage usage{};
     getrusage(RUSAGE_SELF, &usage);
@@ -57,19 +65,24 @@ int main(int argc, char** argv) {
     const auto rows = benchSample(candidates);
     const auto grid = photometry::ClassGrid::fromClassifier(photometry::Classifier::shipped());
 
+    const double cpu_start = processCpuSeconds();
     const auto start = std::chrono::steady_clock::now();
     const census::PreparedSample sample(rows, {10.0, 25.0, 50.0, 100.0}, census::MembershipSettings{}, 5.0,
                                         threads);
     const auto prepared = std::chrono::steady_clock::now();
+    const double cpu_prepared = processCpuSeconds();
     const auto tallies = census::drawSample(sample, grid, {.draws = draws, .seed = 1, .threads = threads});
     const auto done = std::chrono::steady_clock::now();
+    const double cpu_done = processCpuSeconds();
 
     const double prepare_s = std::chrono::duration<double>(prepared - start).count();
     const double draw_s = std::chrono::duration<double>(done - prepared).count();
     const double star_draws = static_cast<double>(candidates) * draws;
     std::printf("draws: candidates %zu, draws %d, threads %u, radii 4\n", candidates, draws, threads);
-    std::printf("draws: prepare (posteriors) %.2f s\n", prepare_s);
-    std::printf("draws: Monte Carlo wall time %.2f s, %.1f draws/s\n", draw_s, draws / draw_s);
+    std::printf("draws: prepare (posteriors) %.2f s wall, %.2f s CPU\n", prepare_s, cpu_prepared - cpu_start);
+    std::printf("draws: Monte Carlo wall time %.2f s, CPU %.2f s, %.1f draws/s\n", draw_s,
+                cpu_done - cpu_prepared, draws / draw_s);
+    std::printf("draws: %.1f M star-draws per CPU-second\n", star_draws / (cpu_done - cpu_prepared) / 1e6);
     std::printf("draws: %.1f M star-draws/s in total, %.1f M star-draws/s per core\n",
                 star_draws / draw_s / 1e6, star_draws / draw_s / 1e6 / threads);
     std::printf("draws: peak RSS %.0f MiB\n", peakResidentMiB());

@@ -140,10 +140,17 @@ class SampleDrawer {
         tallies.draws = settings_.draws;
         tallies.radii = radii;
         tallies.star_classes.assign(sample_.size() * photometry::kClassCount, 0);
-        forEachBlock(sample_.size(), threads,
-                     [&](std::size_t block, std::size_t begin, std::size_t end, unsigned t) {
-                         drawBlock(block, begin, end, per_thread[t], tallies.star_classes);
-                     });
+        if (settings_.progress != nullptr) {
+            settings_.progress->items_total = static_cast<std::int64_t>(sample_.size()) * settings_.draws;
+        }
+        forEachBlock(
+            sample_.size(), threads, [&](std::size_t block, std::size_t begin, std::size_t end, unsigned t) {
+                drawBlock(block, begin, end, per_thread[t], tallies.star_classes);
+                if (settings_.progress != nullptr) {
+                    settings_.progress->items_done.fetch_add(
+                        static_cast<std::int64_t>(end - begin) * settings_.draws, std::memory_order_relaxed);
+                }
+            });
         tallies.counts.assign(tally_size, 0);
         for (const auto& partial : per_thread) {
             std::transform(partial.begin(), partial.end(), tallies.counts.begin(), tallies.counts.begin(),

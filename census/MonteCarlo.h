@@ -10,6 +10,7 @@
 #include "photometry/CatalogRow.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
+#include "photometry/Progress.h"
 #include "photometry/StellarClass.h"
 
 #include <cstdint>
@@ -23,6 +24,9 @@ struct DrawSettings {
     int draws = 1000;       // number of realisations of the sample
     std::uint64_t seed = 1; // master seed; each block of stars draws from stream (seed, block)
     unsigned threads = 0;   // 0 = all hardware threads
+    // Optional: star-draws done (items_done, advanced once per block of stars) and to do (items_total),
+    // for a caller's display (photometry/Progress.h). Never read by the draws.
+    photometry::ProgressCounters* progress = nullptr;
 };
 
 /// The per-star inputs of the Monte Carlo, as a structure of arrays.

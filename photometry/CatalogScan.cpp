@@ -71,10 +71,8 @@ ScanAccumulator::ScanAccumulator(FileScanResult& result, const ScanSettings& set
     }
 }
 
-void ScanAccumulator::add(const CatalogRow& row) {
+void ScanAccumulator::countNulls(const CatalogRow& row) {
     FileScanReport& report = result_.report;
-    ScanCounts& counts = report.counts;
-    ++counts.rows_read;
     if (source_id_mapped_ && row.source_id == kMissingSourceId) {
         ++report.null_counts[static_cast<std::size_t>(CatalogField::SourceId)];
     }
@@ -83,27 +81,12 @@ void ScanAccumulator::add(const CatalogRow& row) {
             ++report.null_counts[mapped.index];
         }
     }
-    const double parallax = row.parallax_mas;
-    if (!std::isfinite(parallax)) {
-        ++counts.rows_no_parallax;
-        return;
-    }
-    // fmin/fmax ignore the NaN the range starts from.
-    report.parallax_min_mas = std::fmin(report.parallax_min_mas, parallax);
-    report.parallax_max_mas = std::fmax(report.parallax_max_mas, parallax);
-    const double error = row.parallax_error_mas;
-    if (!std::isfinite(error) || error <= 0.0) {
-        ++counts.rows_unusable_parallax_error;
-        return;
-    }
-    const bool nonpositive = parallax <= 0.0;
-    counts.rows_nonpositive_parallax += nonpositive ? 1 : 0;
-    if (!(parallax + candidate_sigma_ * error > min_parallax_mas_)) {
-        ++counts.rows_below_parallax_limit;
-        return;
-    }
+}
+
+void ScanAccumulator::keep(const CatalogRow& row) {
+    ScanCounts& counts = result_.report.counts;
     ++counts.candidates;
-    counts.candidates_nonpositive_parallax += nonpositive ? 1 : 0;
+    counts.candidates_nonpositive_parallax += row.parallax_mas <= 0.0 ? 1 : 0;
     counts.candidates_missing_g += std::isnan(row.g_mag) ? 1 : 0;
     counts.candidates_missing_bp += std::isnan(row.bp_mag) ? 1 : 0;
     counts.candidates_missing_rp += std::isnan(row.rp_mag) ? 1 : 0;
@@ -130,36 +113,59 @@ void ScanAccumulator::finish(const std::string& where) {
     }
 }
 
+void appendPart(FileScanResult& whole, FileScanResult&& part) {
+    FileScanReport& report = whole.report;
+    report.counts += part.report.counts;
+    for (std::size_t f = 0; f < kCatalogFieldCount; ++f) {
+        report.null_counts[f] += part.report.null_counts[f];
+    }
+    report.parallax_min_mas = std::fmin(report.parallax_min_mas, part.report.parallax_min_mas);
+    report.parallax_max_mas = std::fmax(report.parallax_max_mas, part.report.parallax_max_mas);
+    if (whole.candidates.empty()) {
+        whole.candidates = std::move(part.candidates);
+    } else {
+        whole.candidates.insert(whole.candidates.end(), part.candidates.begin(), part.candidates.end());
+    }
+}
+
 } // namespace detail
 
 CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings) {
     std::vector<detail::FileScanResult> results(paths.size());
     std::vector<std::exception_ptr> errors(paths.size());
-    auto scanOne = [&](std::size_t index) {
-        try {
-            const auto file_index = static_cast<std::uint32_t>(index);
-            results[index] = isCsvPath(paths[index])
-                                 ? detail::scanCsvFile(paths[index], file_index, settings)
-                                 : detail::scanFitsFile(paths[index], file_index, settings);
-        } catch (...) {
-            errors[index] = std::current_exception();
-        }
-    };
-
     unsigned threads =
         settings.threads != 0 ? settings.threads : std::max(1U, std::thread::hardware_concurrency());
     if (fits_is_reentrant() == 0) {
         threads = 1; // a cfitsio built without --enable-reentrant must not be used from two threads
     }
-    threads = std::min<unsigned>(threads, static_cast<unsigned>(paths.size()));
-    if (threads <= 1) {
+    const unsigned file_threads =
+        std::max(1U, std::min<unsigned>(threads, static_cast<unsigned>(paths.size())));
+    const unsigned threads_per_file = std::max(1U, threads / file_threads);
+    if (settings.progress != nullptr) {
+        settings.progress->parts_total += static_cast<int>(paths.size());
+    }
+    auto scanOne = [&](std::size_t index) {
+        try {
+            const auto file_index = static_cast<std::uint32_t>(index);
+            results[index] = isCsvPath(paths[index])
+                                 ? detail::scanCsvFile(paths[index], file_index, settings)
+                                 : detail::scanFitsFile(paths[index], file_index, settings, threads_per_file);
+        } catch (...) {
+            errors[index] = std::current_exception();
+        }
+        if (settings.progress != nullptr) {
+            ++settings.progress->parts_done;
+        }
+    };
+
+    if (file_threads <= 1) {
         for (std::size_t index = 0; index < paths.size(); ++index) {
             scanOne(index);
         }
     } else {
         std::atomic<std::size_t> next{0};
         std::vector<std::thread> workers;
-        for (unsigned t = 0; t < threads; ++t) {
+        for (unsigned t = 0; t < file_threads; ++t) {
             workers.emplace_back([&] {
                 for (std::size_t index = next++; index < paths.size(); index = next++) {
                     scanOne(index);

@@ -10,6 +10,7 @@
 // and counted.
 #include "photometry/CatalogRow.h"
 #include "photometry/ColumnMapping.h"
+#include "photometry/Progress.h"
 
 #include <array>
 #include <cstddef>
@@ -31,9 +32,13 @@ struct ScanSettings {
                                    // as in cfitsio's file.fits[1]; otherwise an EXTNAME (case-insensitive)
     double min_parallax_mas = 0.0; // 1000 / largest radius in pc, from the caller
     double candidate_sigma = 3.0;  // k in the candidate test, in parallax standard errors
-    std::size_t block_bytes = std::size_t{8} << 20; // bytes of table rows read per block (8 MiB)
-    unsigned threads = 0;        // files scanned at once; 0 = std::thread::hardware_concurrency()
-    bool keep_candidates = true; // false: only count and report (used by inspect)
+    std::size_t block_bytes = std::size_t{8} << 20; // bytes of table rows read or mapped per block
+                                                    // and thread (8 MiB), decoded in ~16 KiB slices
+    unsigned threads = 0; // scanning threads; 0 = std::thread::hardware_concurrency(). Files are scanned
+                          // in parallel; with fewer files than threads, uncompressed FITS files are also
+                          // split into row ranges scanned in parallel
+    bool keep_candidates = true;          // false: only count and report (used by inspect)
+    ProgressCounters* progress = nullptr; // optional: rows read and files finished (photometry/Progress.h)
 };
 
 /// Row counts of one file or of all files. Photometry counts refer to the candidates.
@@ -80,8 +85,10 @@ struct CatalogScan {
     ScanCounts totals;
 };
 
-/// Scans every file (several at once, one thread per file up to settings.threads) and merges the results
-/// in the order of `paths`, so the result does not depend on the thread count. A path ending in ".csv"
+/// Scans every file (several at once, one thread per file up to settings.threads; a single large file in
+/// row ranges on several threads) and merges the results in the order of `paths`, so the result does not
+/// depend on the thread count. Uncompressed FITS data are read with pread(2) in blocks; gzip files are
+/// inflated block by block as they are read (never whole in memory). A path ending in ".csv"
 /// (any case) is read as CSV, anything else as FITS (cfitsio: also .gz and other compressed forms).
 /// Throws InputError (one line naming the file, HDU and column) for unreadable input; when several
 /// files fail, the error of the first in `paths` is thrown.

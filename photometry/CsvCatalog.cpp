@@ -154,6 +154,12 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
             row.*rowMember(field.column->field) = canonicalValue(*field.column, value);
         }
         accumulator.add(row);
+        if (settings.progress != nullptr && report.rows % 65536 == 0) {
+            settings.progress->items_done.fetch_add(65536, std::memory_order_relaxed);
+        }
+    }
+    if (settings.progress != nullptr) {
+        settings.progress->items_done.fetch_add(report.rows % 65536, std::memory_order_relaxed);
     }
     accumulator.finish(path);
     return result;

@@ -2,15 +2,26 @@
 
 #include "photometry/InputError.h"
 
+#include <fcntl.h>
 #include <fitsio.h>
+#include <sys/mman.h>
+#include <sys/stat.h>
+#include <unistd.h>
+#include <zlib.h>
 
 #include <algorithm>
 #include <bit>
 #include <cctype>
+#include <cerrno>
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
 #include <cstring>
+#include <exception>
 #include <filesystem>
+#include <functional>
 #include <optional>
+#include <thread>
 
 namespace starcensus::photometry {
 
@@ -23,18 +34,32 @@ namespace {
     throw InputError(where + ": " + doing + ": cfitsio status " + std::to_string(status) + " (" + text + ")");
 }
 
+void requireRegularFile(const std::string& path) {
+    std::error_code error;
+    if (!std::filesystem::is_regular_file(path, error)) {
+        throw InputError(path + ": no such file");
+    }
+}
+
 // An open FITS file; `where` grows from the path to "path [HDU n NAME]" once a table is chosen.
 class FitsFile {
   public:
     explicit FitsFile(const std::string& path) : where_(path) {
-        std::error_code error;
-        if (!std::filesystem::is_regular_file(path, error)) {
-            throw InputError(path + ": no such file");
-        }
+        requireRegularFile(path);
         int status = 0;
         // The disk-file variant keeps '[' in names literal (no extended filename syntax); HDUs are chosen
         // with ScanSettings::hdu instead.
         if (fits_open_diskfile(&file_, path.c_str(), READONLY, &status) != 0) {
+            file_ = nullptr;
+            throwFitsError(status, path, "cannot open as FITS");
+        }
+    }
+    /// The FITS bytes in `image` (which must outlive the object), named `path` in messages.
+    FitsFile(const std::string& path, std::vector<unsigned char>& image)
+        : where_(path), image_data_(image.data()), image_size_(image.size()) {
+        int status = 0;
+        if (fits_open_memfile(&file_, path.c_str(), READONLY, &image_data_, &image_size_, 0, nullptr,
+                              &status) != 0) {
             file_ = nullptr;
             throwFitsError(status, path, "cannot open as FITS");
         }
@@ -119,6 +144,8 @@ class FitsFile {
 
     fitsfile* file_ = nullptr;
     std::string where_;
+    void* image_data_ = nullptr; // fits_open_memfile keeps pointers to these two
+    std::size_t image_size_ = 0;
 };
 
 std::string hduTypeName(int type) {
@@ -350,12 +377,6 @@ struct FieldDecoder {
     }
 };
 
-struct MappedDecoder {
-    FieldDecoder decoder;
-    const ResolvedColumn* column;
-    double CatalogRow::*member;
-};
-
 FieldDecoder decoderFor(const TableColumn& column, CatalogField field, const std::string& where) {
     const std::string described =
         where + ": column " + column.description.name + " (" + std::string(fieldName(field)) + ")";
@@ -406,10 +427,457 @@ std::vector<HduSummary> listHdus(const std::string& path) {
     return hdus;
 }
 
+namespace {
+
+using detail::appendPart;
+using detail::FileScanResult;
+using detail::ScanAccumulator;
+
+// ---- Where the raw rows come from ------------------------------------------------------------------
+
+enum class Storage { Plain, Gzip, Other };
+
+// Plain FITS starts with "SIMPLE  =" (FITS Standard 4.0, section 4.4.1.1); gzip with 1f 8b (RFC 1952).
+// Anything else (compress, pkzip) is left to cfitsio.
+Storage storageOf(const std::string& path) {
+    unsigned char start[9] = {};
+    std::FILE* file = std::fopen(path.c_str(), "rb");
+    const std::size_t got = file != nullptr ? std::fread(start, 1, sizeof start, file) : 0;
+    if (file != nullptr) {
+        std::fclose(file);
+    }
+    if (got >= 2 && start[0] == 0x1f && start[1] == 0x8b) {
+        return Storage::Gzip;
+    }
+    return got == sizeof start && std::memcmp(start, "SIMPLE  =", sizeof start) == 0 ? Storage::Plain
+                                                                                     : Storage::Other;
+}
+
+std::string rowsLabel(LONGLONG first, LONGLONG count) {
+    return "cannot read rows " + std::to_string(first + 1) + " to " + std::to_string(first + count);
+}
+
+/// One thread's view of the raw rows it is working on: a buffer filled by a read, or a memory-mapped
+/// window of the file (released when the next window is mapped, so resident memory stays bounded).
+class RowWindow {
+  public:
+    RowWindow() = default;
+    ~RowWindow() { unmap(); }
+    RowWindow(const RowWindow&) = delete;
+    RowWindow& operator=(const RowWindow&) = delete;
+
+    unsigned char* buffer(std::size_t bytes) {
+        buffer_.resize(bytes);
+        return buffer_.data();
+    }
+    /// Maps [offset, offset + bytes) of `descriptor` read-only with its pages populated; returns a
+    /// pointer to the byte at `offset`.
+    const unsigned char* map(int descriptor, off_t offset, std::size_t bytes, const std::string& where) {
+        unmap();
+        static const auto page = static_cast<off_t>(::sysconf(_SC_PAGESIZE));
+        const off_t start = offset / page * page;
+        length_ = bytes + static_cast<std::size_t>(offset - start);
+        void* mapped = ::mmap(nullptr, length_, PROT_READ, MAP_PRIVATE | MAP_POPULATE, descriptor, start);
+        if (mapped == MAP_FAILED) {
+            throw InputError(where + ": cannot map the table data: " + std::strerror(errno));
+        }
+        mapping_ = mapped;
+        return static_cast<const unsigned char*>(mapped) + (offset - start);
+    }
+
+  private:
+    void unmap() {
+        if (mapping_ != nullptr) {
+            ::munmap(mapping_, length_);
+            mapping_ = nullptr;
+        }
+    }
+    std::vector<unsigned char> buffer_;
+    void* mapping_ = nullptr;
+    std::size_t length_ = 0;
+};
+
+/// The `count` raw rows starting at 0-based row `first`, through the thread's window; throws InputError
+/// on failure.
+using ReadRows = std::function<const unsigned char*(RowWindow& window, LONGLONG first, LONGLONG count)>;
+
+class GzipFile {
+  public:
+    explicit GzipFile(const std::string& path) : file_(gzopen(path.c_str(), "rb")) {
+        if (file_ == nullptr) {
+            throw InputError(path + ": cannot open: " + std::strerror(errno));
+        }
+        gzbuffer(file_, 1U << 18); // 256 KiB of compressed input per read(2)
+    }
+    ~GzipFile() { gzclose(file_); }
+    GzipFile(const GzipFile&) = delete;
+    GzipFile& operator=(const GzipFile&) = delete;
+
+    /// Bytes actually read (fewer at the end of the stream); throws on a corrupt stream.
+    std::size_t read(unsigned char* out, std::size_t bytes, const std::string& where) {
+        std::size_t total = 0;
+        while (total < bytes) {
+            const unsigned chunk = static_cast<unsigned>(std::min<std::size_t>(bytes - total, 1U << 30));
+            const int got = gzread(file_, out + total, chunk);
+            if (got < 0) {
+                int code = 0;
+                throw InputError(where + ": gzip stream error: " + gzerror(file_, &code));
+            }
+            if (got == 0) {
+                break;
+            }
+            total += static_cast<std::size_t>(got);
+        }
+        return total;
+    }
+
+  private:
+    gzFile file_;
+};
+
+// One 80-character header card's keyword and value text (FITS Standard 4.0, section 4.1).
+std::string cardKeyword(const unsigned char* card) {
+    std::string keyword(reinterpret_cast<const char*>(card), 8);
+    keyword.erase(keyword.find_last_not_of(' ') + 1);
+    return keyword;
+}
+
+std::string cardValue(const unsigned char* card) {
+    std::string value(reinterpret_cast<const char*>(card) + 10, 70);
+    if (const auto quote = value.find('\''); quote != std::string::npos) { // a string: 'TEXT    '
+        const auto close = value.find('\'', quote + 1);
+        value = value.substr(quote + 1, close == std::string::npos ? std::string::npos : close - quote - 1);
+    } else if (const auto slash = value.find('/'); slash != std::string::npos) {
+        value.erase(slash);
+    }
+    value.erase(0, value.find_first_not_of(' '));
+    value.erase(value.find_last_not_of(' ') + 1);
+    return value;
+}
+
+bool equalIgnoringCase(const std::string& a, const std::string& b) {
+    return a.size() == b.size() && std::equal(a.begin(), a.end(), b.begin(), [](char x, char y) {
+               return std::tolower(static_cast<unsigned char>(x)) ==
+                      std::tolower(static_cast<unsigned char>(y));
+           });
+}
+
+/// Reads a gzip-compressed FITS file up to the end of the header of the table `hdu` selects (the rules
+/// of ScanSettings::hdu), keeping every byte before it; the stream is left at the table's first data
+/// byte. Returns nothing when the stream ends first (no such table, not FITS): the caller then lets
+/// cfitsio open the file and say what is wrong.
+std::optional<std::vector<unsigned char>> readHeadersUpToTable(GzipFile& gzip, const std::string& hdu,
+                                                               const std::string& where) {
+    constexpr std::size_t kRecord = 2880; // FITS logical record (FITS Standard 4.0, section 3.1)
+    constexpr std::size_t kCard = 80;
+    std::vector<unsigned char> image;
+    for (int index = 0;; ++index) {
+        std::string xtension;
+        std::string extname;
+        long long bitpix = 0;
+        long long pcount = 0;
+        long long gcount = 1;
+        std::vector<long long> axes;
+        bool ended = false;
+        while (!ended) {
+            const std::size_t at = image.size();
+            image.resize(at + kRecord);
+            if (gzip.read(image.data() + at, kRecord, where) != kRecord) {
+                return std::nullopt;
+            }
+            for (std::size_t card = at; card < at + kRecord && !ended; card += kCard) {
+                const std::string keyword = cardKeyword(&image[card]);
+                if (keyword == "END") {
+                    ended = true;
+                } else if (keyword == "XTENSION") {
+                    xtension = cardValue(&image[card]);
+                } else if (keyword == "EXTNAME") {
+                    extname = cardValue(&image[card]);
+                } else if (keyword == "BITPIX") {
+                    bitpix = std::atoll(cardValue(&image[card]).c_str());
+                } else if (keyword == "PCOUNT") {
+                    pcount = std::atoll(cardValue(&image[card]).c_str());
+                } else if (keyword == "GCOUNT") {
+                    gcount = std::atoll(cardValue(&image[card]).c_str());
+                } else if (keyword == "NAXIS") {
+                    axes.resize(
+                        static_cast<std::size_t>(std::max(0LL, std::atoll(cardValue(&image[card]).c_str()))));
+                } else if (keyword.starts_with("NAXIS") && allDigits(keyword.substr(5))) {
+                    const auto axis = static_cast<std::size_t>(std::atoll(keyword.c_str() + 5));
+                    if (axis >= 1 && axis <= axes.size()) {
+                        axes[axis - 1] = std::atoll(cardValue(&image[card]).c_str());
+                    }
+                }
+            }
+        }
+        const bool table = xtension == "BINTABLE";
+        const bool selected = hdu.empty()      ? table
+                              : allDigits(hdu) ? index == std::atoi(hdu.c_str())
+                                               : table && equalIgnoringCase(extname, hdu);
+        if (selected) {
+            return image;
+        }
+        // Data size, FITS Standard 4.0 section 4.4.1.1, Eq. 2: |BITPIX| / 8 * GCOUNT * (PCOUNT + NAXIS1 *
+        // ... * NAXISm), padded to whole records.
+        long long elements = axes.empty() ? 0 : 1;
+        for (const long long length : axes) {
+            elements *= length;
+        }
+        const long long data_bytes = std::llabs(bitpix) / 8 * gcount * (pcount + elements);
+        const auto padded = static_cast<std::size_t>((data_bytes + kRecord - 1) / kRecord * kRecord);
+        const std::size_t at = image.size();
+        image.resize(at + padded);
+        if (gzip.read(image.data() + at, padded, where) != padded) {
+            return std::nullopt;
+        }
+    }
+}
+
+// ---- Decoding a block of raw rows --------------------------------------------------------------------
+//
+// Every row needs only its parallax and parallax error (the candidate test) and a null check of each
+// mapped field (the report's null counts); the full decode of the other fields is done for candidates
+// only. Column loops keep the type dispatch outside the loop over rows.
+
+/// How a field's nulls are found without decoding it (the same nulls FieldDecoder::physical() and
+/// canonicalValue() give).
+enum class NullTest : std::uint8_t {
+    Never,       // integer without TNULL, finite scaling: never null
+    IntegerNull, // integer with TNULL, finite scaling: null when the stored value is TNULL
+    FloatNaN,    // TFORM E without scaling: null when NaN
+    DoubleNaN,   // TFORM D without scaling
+    FluxFloat,   // TFORM E flux over error without scaling: null unless positive
+    Decode,      // anything else (odd scaling, other flux columns): decode and test
+};
+
+/// One mapped floating-point field.
+struct MappedField {
+    FieldDecoder decoder;
+    const ResolvedColumn* column;
+    double CatalogRow::*member;
+    std::size_t field_index;
+    NullTest null_test = NullTest::Decode;
+
+    double value(const unsigned char* row) const { return canonicalValue(*column, decoder.physical(row)); }
+};
+
+NullTest nullTestFor(const FieldDecoder& decoder, const ResolvedColumn& column) {
+    const bool finite_scaling = std::isfinite(decoder.scale) && std::isfinite(decoder.zero) &&
+                                std::isfinite(column.scale_to_canonical) && column.scale_to_canonical != 0.0;
+    if (!finite_scaling) {
+        return NullTest::Decode;
+    }
+    if (column.flux_over_error) {
+        const bool unscaled_float = decoder.type == 'E' && decoder.scale == 1.0 && decoder.zero == 0.0;
+        return unscaled_float ? NullTest::FluxFloat : NullTest::Decode;
+    }
+    if (decoder.isInteger()) {
+        return decoder.has_null ? NullTest::IntegerNull : NullTest::Never;
+    }
+    if (decoder.scale != 1.0 || decoder.zero != 0.0) {
+        return NullTest::Decode; // a finite scale could still overflow a huge value to infinity
+    }
+    return decoder.type == 'E' ? NullTest::FloatNaN : NullTest::DoubleNaN;
+}
+
+/// Calls body(at) for the field's bytes in each of `rows` rows.
+template <class Body>
+void forEachValue(const FieldDecoder& decoder, const unsigned char* raw, std::size_t row_bytes,
+                  std::size_t rows, Body&& body) {
+    const unsigned char* at = raw + decoder.offset;
+    for (std::size_t r = 0; r < rows; ++r, at += row_bytes) {
+        body(at);
+    }
+}
+
+std::int64_t countNulls(const MappedField& field, const unsigned char* raw, std::size_t row_bytes,
+                        std::size_t rows) {
+    std::int64_t nulls = 0;
+    const FieldDecoder& decoder = field.decoder;
+    switch (field.null_test) {
+    case NullTest::Never:
+        break;
+    case NullTest::FloatNaN: // IEEE 754 binary32: NaN has all exponent bits set and a non-zero fraction
+        forEachValue(decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            nulls += (loadBigEndian<std::uint32_t>(at) & 0x7fffffffU) > 0x7f800000U ? 1 : 0;
+        });
+        break;
+    case NullTest::DoubleNaN:
+        forEachValue(decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            nulls +=
+                (loadBigEndian<std::uint64_t>(at) & 0x7fffffffffffffffULL) > 0x7ff0000000000000ULL ? 1 : 0;
+        });
+        break;
+    case NullTest::FluxFloat: // canonicalValue(): missing unless the ratio is > 0 (NaN compares false)
+        forEachValue(decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            nulls += std::bit_cast<float>(loadBigEndian<std::uint32_t>(at)) > 0.0f ? 0 : 1;
+        });
+        break;
+    case NullTest::IntegerNull: {
+        // storedInteger() switches on a type that is the same for every row: a predictable branch.
+        forEachValue(decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            nulls += decoder.storedInteger(at - decoder.offset) == decoder.null_value ? 1 : 0;
+        });
+        break;
+    }
+    case NullTest::Decode:
+        forEachValue(decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            nulls += std::isnan(field.value(at - decoder.offset)) ? 1 : 0;
+        });
+        break;
+    }
+    return nulls;
+}
+
+/// Decodes a field of every row into `out` (canonical units); returns the number of nulls.
+std::int64_t decodeColumn(const MappedField& field, const unsigned char* raw, std::size_t row_bytes,
+                          std::size_t rows, double* out) {
+    std::int64_t nulls = 0;
+    if (field.null_test == NullTest::FloatNaN && field.column->scale_to_canonical == 1.0) {
+        // The common case (Gaia's parallax_error): the value is the float itself.
+        forEachValue(field.decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            *out = std::bit_cast<float>(loadBigEndian<std::uint32_t>(at));
+            nulls += std::isnan(*out++) ? 1 : 0;
+        });
+    } else if (field.null_test == NullTest::DoubleNaN && field.column->scale_to_canonical == 1.0) {
+        forEachValue(field.decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            *out = std::bit_cast<double>(loadBigEndian<std::uint64_t>(at));
+            nulls += std::isnan(*out++) ? 1 : 0;
+        });
+    } else {
+        forEachValue(field.decoder, raw, row_bytes, rows, [&](const unsigned char* at) {
+            *out = field.value(at - field.decoder.offset);
+            nulls += std::isnan(*out++) ? 1 : 0;
+        });
+    }
+    return nulls;
+}
+
+/// What every thread scanning a file shares: the table layout and the decoding plan.
+struct TablePlan {
+    std::uint32_t file_index = 0;
+    std::size_t row_bytes = 0;
+    std::vector<MappedField> fields;
+    std::optional<FieldDecoder> source_id;
+    std::size_t parallax = 0; // positions in `fields` (both are required, so always mapped)
+    std::size_t parallax_error = 0;
+};
+
+/// Scans rows [first, first + count) of the table into `result` (whose report holds the mapping),
+/// reading `rows_per_block` rows at a time through `read`.
+void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGLONG count,
+              LONGLONG rows_per_block, const ScanSettings& settings, FileScanResult& result) {
+    ScanAccumulator accumulator(result, settings);
+    RowWindow window;
+    const std::size_t row_bytes = plan.row_bytes;
+    // Each block is processed in slices of ~16 KiB, so the passes over the fields of a slice hit L1.
+    const std::size_t slice_rows = std::max<std::size_t>(1, (std::size_t{16} << 10) / row_bytes);
+    std::vector<double> parallax(slice_rows);
+    std::vector<double> parallax_error(slice_rows);
+    auto& null_counts = result.report.null_counts;
+    for (LONGLONG block_first = first; block_first < first + count; block_first += rows_per_block) {
+        const auto rows = static_cast<std::size_t>(std::min(rows_per_block, first + count - block_first));
+        const unsigned char* raw = read(window, block_first, static_cast<LONGLONG>(rows));
+        for (std::size_t slice_first = 0; slice_first < rows; slice_first += slice_rows) {
+            const std::size_t slice = std::min(slice_rows, rows - slice_first);
+            const unsigned char* slice_raw = raw + slice_first * row_bytes;
+            for (std::size_t f = 0; f < plan.fields.size(); ++f) {
+                const MappedField& field = plan.fields[f];
+                null_counts[field.field_index] +=
+                    f == plan.parallax ? decodeColumn(field, slice_raw, row_bytes, slice, parallax.data())
+                    : f == plan.parallax_error
+                        ? decodeColumn(field, slice_raw, row_bytes, slice, parallax_error.data())
+                        : countNulls(field, slice_raw, row_bytes, slice);
+            }
+            if (plan.source_id) {
+                forEachValue(*plan.source_id, slice_raw, row_bytes, slice, [&](const unsigned char* at) {
+                    null_counts[static_cast<std::size_t>(CatalogField::SourceId)] +=
+                        plan.source_id->identifier(at - plan.source_id->offset) == kMissingSourceId ? 1 : 0;
+                });
+            }
+            for (std::size_t r = 0; r < slice; ++r) {
+                if (!accumulator.passes(parallax[r], parallax_error[r])) {
+                    continue;
+                }
+                const unsigned char* at = slice_raw + r * row_bytes;
+                CatalogRow row;
+                row.file_index = plan.file_index;
+                row.row_index = block_first + static_cast<LONGLONG>(slice_first + r);
+                if (plan.source_id) {
+                    row.source_id = plan.source_id->identifier(at);
+                }
+                for (const MappedField& field : plan.fields) {
+                    row.*field.member = field.value(at);
+                }
+                accumulator.keep(row);
+            }
+        }
+        // After the first block, make room for the candidates it suggests, so a candidate-rich file does
+        // not copy its rows at every growth of the vector.
+        if (block_first == first && settings.keep_candidates && !result.candidates.empty()) {
+            const double share = static_cast<double>(result.candidates.size()) / static_cast<double>(rows);
+            result.candidates.reserve(static_cast<std::size_t>(1.05 * share * static_cast<double>(count)) +
+                                      64);
+        }
+        if (settings.progress != nullptr) {
+            settings.progress->items_done.fetch_add(static_cast<std::int64_t>(rows),
+                                                    std::memory_order_relaxed);
+        }
+    }
+}
+
+[[noreturn]] void throwTruncated(const std::string& where, LONGLONG first, LONGLONG count,
+                                 const std::string& detail) {
+    throw InputError(where + ": " + rowsLabel(first, count) + " (truncated file?): " + detail);
+}
+
+class PlainDataFile {
+  public:
+    explicit PlainDataFile(const std::string& path)
+        : descriptor_(::open(path.c_str(), O_RDONLY | O_CLOEXEC)) {
+        if (descriptor_ < 0) {
+            throw InputError(path + ": cannot open: " + std::strerror(errno));
+        }
+    }
+    ~PlainDataFile() { ::close(descriptor_); }
+    PlainDataFile(const PlainDataFile&) = delete;
+    PlainDataFile& operator=(const PlainDataFile&) = delete;
+
+    int descriptor() const { return descriptor_; }
+    std::int64_t size() const {
+        struct stat status {};
+        return ::fstat(descriptor_, &status) == 0 ? static_cast<std::int64_t>(status.st_size) : 0;
+    }
+
+  private:
+    int descriptor_;
+};
+
+} // namespace
+
 namespace detail {
 
-FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings) {
-    FitsFile file(path);
+FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+                            unsigned threads) {
+    requireRegularFile(path);
+    const Storage storage = storageOf(path);
+    std::optional<GzipFile> gzip;
+    std::vector<unsigned char> header_image;
+    std::optional<FitsFile> opened;
+    if (storage == Storage::Gzip) {
+        gzip.emplace(path);
+        if (auto image = readHeadersUpToTable(*gzip, settings.hdu, path)) {
+            header_image = std::move(*image);
+            opened.emplace(path, header_image);
+        } else {
+            gzip.reset(); // no such table or not FITS: cfitsio opens the whole file and explains
+        }
+    }
+    if (!opened) {
+        opened.emplace(path);
+    }
+    FitsFile& file = *opened;
+
     FileScanResult result;
     FileScanReport& report = result.report;
     report.path = path;
@@ -425,8 +893,8 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
     report.mapping = resolveColumns(
         descriptions, MappingRequest{settings.user_columns, settings.user_units, false}, file.where());
 
-    std::vector<MappedDecoder> decoders;
-    std::optional<FieldDecoder> source_id;
+    TablePlan plan;
+    plan.file_index = file_index;
     for (const auto& resolved : report.mapping.fields) {
         if (!resolved) {
             continue;
@@ -434,10 +902,16 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
         const FieldDecoder decoder =
             decoderFor(columns[resolved->column_index], resolved->field, file.where());
         if (resolved->field == CatalogField::SourceId) {
-            source_id = decoder;
-        } else {
-            decoders.push_back({decoder, &*resolved, rowMember(resolved->field)});
+            plan.source_id = decoder;
+            continue;
         }
+        if (resolved->field == CatalogField::Parallax) {
+            plan.parallax = plan.fields.size();
+        } else if (resolved->field == CatalogField::ParallaxError) {
+            plan.parallax_error = plan.fields.size();
+        }
+        plan.fields.push_back({decoder, &*resolved, rowMember(resolved->field),
+                               static_cast<std::size_t>(resolved->field), nullTestFor(decoder, *resolved)});
     }
 
     int status = 0;
@@ -445,36 +919,94 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
     fits_get_num_rowsll(file.get(), &rows, &status);
     file.check(status, "cannot read the number of rows");
     report.rows = rows;
-    const std::size_t row_bytes = columns.empty() ? 0 : columns.back().offset + columns.back().bytes;
+    plan.row_bytes = columns.empty() ? 0 : columns.back().offset + columns.back().bytes;
+    LONGLONG data_start = 0;
+    LONGLONG data_end = 0;
+    LONGLONG header_start = 0;
+    fits_get_hduaddrll(file.get(), &header_start, &data_start, &data_end, &status);
+    file.check(status, "cannot locate the table data");
+    if (settings.progress != nullptr) {
+        settings.progress->items_total.fetch_add(rows, std::memory_order_relaxed);
+    }
 
-    ScanAccumulator accumulator(result, settings);
-    if (rows > 0 && row_bytes > 0) {
+    if (rows > 0 && plan.row_bytes > 0) {
         const auto rows_per_block =
-            static_cast<LONGLONG>(std::max<std::size_t>(1, settings.block_bytes / row_bytes));
-        std::vector<unsigned char> block(static_cast<std::size_t>(std::min(rows_per_block, rows)) *
-                                         row_bytes);
-        for (LONGLONG first = 0; first < rows; first += rows_per_block) {
-            const LONGLONG count = std::min(rows_per_block, rows - first);
-            fits_read_tblbytes(file.get(), first + 1, 1, count * static_cast<LONGLONG>(row_bytes),
-                               block.data(), &status);
-            file.check(status, "cannot read rows " + std::to_string(first + 1) + " to " +
-                                   std::to_string(first + count) + " (truncated file?)");
-            for (LONGLONG r = 0; r < count; ++r) {
-                const unsigned char* raw = block.data() + static_cast<std::size_t>(r) * row_bytes;
-                CatalogRow row;
-                row.file_index = file_index;
-                row.row_index = first + r;
-                if (source_id) {
-                    row.source_id = source_id->identifier(raw);
-                }
-                for (const auto& mapped : decoders) {
-                    row.*mapped.member = canonicalValue(*mapped.column, mapped.decoder.physical(raw));
-                }
-                accumulator.add(row);
+            static_cast<LONGLONG>(std::max<std::size_t>(1, settings.block_bytes / plan.row_bytes));
+        const std::string& where = file.where();
+        const LONGLONG table_bytes = rows * static_cast<LONGLONG>(plan.row_bytes);
+        if (gzip) {
+            // The stream stands at the first data byte (header_image ends there).
+            if (static_cast<std::size_t>(data_start) != header_image.size()) {
+                throw InputError(where + ": cannot locate the table data in the gzip stream");
             }
+            const ReadRows read = [&](RowWindow& window, LONGLONG first, LONGLONG count) {
+                const auto bytes = static_cast<std::size_t>(count) * plan.row_bytes;
+                unsigned char* out = window.buffer(bytes);
+                if (gzip->read(out, bytes, where) != bytes) {
+                    throwTruncated(where, first, count, "the gzip stream ends early");
+                }
+                return out;
+            };
+            scanRows(plan, read, 0, rows, rows_per_block, settings, result);
+        } else if (storage == Storage::Plain) {
+            // Memory-mapped windows: no copy out of the page cache. A file shorter than its header says
+            // is refused here, before any page beyond its end could be touched.
+            const PlainDataFile data(path);
+            const auto row_bytes = static_cast<LONGLONG>(plan.row_bytes);
+            if (const std::int64_t size = data.size(); size < data_start + table_bytes) {
+                const LONGLONG complete = std::max<LONGLONG>(0, (size - data_start) / row_bytes);
+                throwTruncated(where, complete, rows - complete,
+                               "the table needs " + std::to_string(data_start + table_bytes) +
+                                   " bytes, the file has " + std::to_string(size));
+            }
+            const ReadRows read = [&](RowWindow& window, LONGLONG first, LONGLONG count) {
+                return window.map(data.descriptor(), data_start + first * row_bytes,
+                                  static_cast<std::size_t>(count * row_bytes), where);
+            };
+            // Row ranges of at least 16 blocks each, one per thread, merged in row order.
+            const auto parts = static_cast<unsigned>(
+                std::clamp<LONGLONG>(rows / (16 * rows_per_block), 1, static_cast<LONGLONG>(threads)));
+            if (parts <= 1) {
+                scanRows(plan, read, 0, rows, rows_per_block, settings, result);
+            } else {
+                std::vector<FileScanResult> partial(parts);
+                std::vector<std::exception_ptr> errors(parts);
+                {
+                    std::vector<std::jthread> workers;
+                    for (unsigned part = 0; part < parts; ++part) {
+                        workers.emplace_back([&, part] {
+                            const LONGLONG begin = rows * part / parts;
+                            const LONGLONG end = rows * (part + 1) / parts;
+                            partial[part].report.mapping = report.mapping;
+                            try {
+                                scanRows(plan, read, begin, end - begin, rows_per_block, settings,
+                                         partial[part]);
+                            } catch (...) {
+                                errors[part] = std::current_exception();
+                            }
+                        });
+                    }
+                }
+                for (unsigned part = 0; part < parts; ++part) {
+                    if (errors[part]) {
+                        std::rethrow_exception(errors[part]);
+                    }
+                    appendPart(result, std::move(partial[part]));
+                }
+            }
+        } else {
+            const ReadRows read = [&](RowWindow& window, LONGLONG first, LONGLONG count) {
+                unsigned char* out = window.buffer(static_cast<std::size_t>(count) * plan.row_bytes);
+                int read_status = 0;
+                fits_read_tblbytes(file.get(), first + 1, 1, count * static_cast<LONGLONG>(plan.row_bytes),
+                                   out, &read_status);
+                file.check(read_status, rowsLabel(first, count) + " (truncated file?)");
+                return out;
+            };
+            scanRows(plan, read, 0, rows, rows_per_block, settings, result);
         }
     }
-    accumulator.finish(file.where());
+    ScanAccumulator(result, settings).finish(file.where());
     return result;
 }
 

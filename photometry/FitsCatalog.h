@@ -2,7 +2,10 @@
 // FITS binary-table input, read through cfitsio (which also opens .gz and other compressed files).
 // The scan reads raw rows in large blocks and decodes only the mapped fields from their big-endian bytes
 // (TFORM B, I, J, K, E, D with repeat 1; TSCALn/TZEROn and integer TNULLn honoured; NaN is null in
-// floating-point columns). Compressed files are inflated by cfitsio into memory before reading.
+// floating-point columns), column by column within a block. Uncompressed data are read with pread(2)
+// (several row ranges at once when threads allow); gzip files are inflated as they are read, after the
+// headers up to the table have been parsed from the stream; other compressed forms (compress, pkzip)
+// are left to cfitsio, which inflates them into memory.
 #include "photometry/CatalogScanDetail.h"
 
 #include <cstdint>
@@ -25,8 +28,9 @@ struct HduSummary {
 std::vector<HduSummary> listHdus(const std::string& path);
 
 namespace detail {
-/// Scans one FITS file (see CatalogScan.h); rows get `file_index`.
-FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings);
+/// Scans one FITS file (see CatalogScan.h) with up to `threads` threads; rows get `file_index`.
+FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+                            unsigned threads);
 } // namespace detail
 
 } // namespace starcensus::photometry

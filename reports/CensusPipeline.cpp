@@ -5,6 +5,7 @@
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 #include "photometry/InputError.h"
+#include "photometry/Progress.h"
 #include "reports/DrawsOutput.h"
 #include "reports/FractionsOutput.h"
 #include "reports/LuminosityOutput.h"
@@ -100,7 +101,13 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     photometry::ScanSettings scan_settings = settings.scan;
     scan_settings.min_parallax_mas =
         1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
-    photometry::CatalogScan scan = photometry::scanCatalogs(paths, scan_settings);
+    photometry::ProgressCounters scan_progress; // shown on stderr if it is a terminal
+    scan_settings.progress = &scan_progress;
+    photometry::CatalogScan scan = [&] {
+        const photometry::TerminalProgress display("reading catalogs", "rows", scan_progress,
+                                                   settings.show_progress);
+        return photometry::scanCatalogs(paths, scan_settings);
+    }();
     result.timings.scan_s = secondsSince(start);
     progress.end();
     for (const auto& file : scan.files) {
@@ -130,7 +137,14 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     start = Clock::now();
     progress.begin("draws");
     const auto grid = photometry::ClassGrid::fromClassifier(classifier);
-    const census::DrawTallies tallies = census::drawSample(sample, grid, census.draws);
+    photometry::ProgressCounters draw_progress;
+    census::DrawSettings draw_settings = census.draws;
+    draw_settings.progress = &draw_progress;
+    const census::DrawTallies tallies = [&] {
+        const photometry::TerminalProgress display("Monte Carlo", "star-draws", draw_progress,
+                                                   settings.show_progress);
+        return census::drawSample(sample, grid, draw_settings);
+    }();
     std::vector<double> expected;
     for (std::size_t r = 0; r < census.radii_pc.size(); ++r) {
         expected.push_back(sample.expectedCount(r));

@@ -2,13 +2,8 @@
 
 #include <iomanip>
 #include <ostream>
-#include <unistd.h>
 
 namespace starcensus::reports {
-
-bool stderrIsTerminal() {
-    return ::isatty(STDERR_FILENO) == 1;
-}
 
 StageProgress::StageProgress(std::ostream& out, bool enabled, int stage_count)
     : out_(out), enabled_(enabled), stage_count_(stage_count) {}

@@ -7,9 +7,6 @@
 
 namespace starcensus::reports {
 
-/// True if standard error is a terminal (isatty(2)).
-bool stderrIsTerminal();
-
 class StageProgress {
   public:
     StageProgress(std::ostream& out, bool enabled, int stage_count);

@@ -30,9 +30,8 @@ class FastNormal {
         return low + fraction * (table_[index + 1] - low);
     }
 
-  private:
-    // Acklam's rational approximation refined by one Halley step (relative error ~1e-15); used only to
-    // fill the table.
+    // Acklam's rational approximation refined by one Halley step (relative error ~1e-15); used to fill
+    // tables, not in hot loops.
     static double inverseNormalCdf(double p) {
         static constexpr double a[] = {-3.969683028665376e+01, 2.209460984245205e+02,  -2.759285104469687e+02,
                                        1.383577518672690e+02,  -3.066479806614716e+01, 2.506628277459239e+00};
@@ -62,6 +61,7 @@ class FastNormal {
         return x - u / (1.0 + x * u / 2.0);
     }
 
+  private:
     std::array<float, kCells + 1> table_{};
 };
 

@@ -7,6 +7,7 @@
 #include "photometry/CatalogInspection.h"
 #include "photometry/InputError.h"
 #include "photometry/OptionChecks.h"
+#include "photometry/Progress.h"
 #include "photometry/ReaderOptions.h"
 #include "reports/CensusPipeline.h"
 #include "reports/Progress.h"
@@ -138,7 +139,7 @@ census::MockResult simulateToFiles(const census::MockRequest& request,
 /// Writes report.html and figures/ for a finished run; progress lines only when stderr is a terminal.
 void writeReportFor(const std::filesystem::path& directory) {
     const auto report =
-        reports::writeCensusReport(directory, {}, reports::stderrIsTerminal() ? &std::cerr : nullptr);
+        reports::writeCensusReport(directory, {}, photometry::stderrIsTerminal() ? &std::cerr : nullptr);
     std::cout << "report: " << report.html.string() << " (" << report.figures.size() << " figures in "
               << (directory / "figures").string() << "/)\n";
 }
@@ -222,7 +223,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     settings.census = census_settings;
     settings.hosts = hosts;
     settings.options = reports::optionValuesJson(values);
-    settings.show_progress = reports::stderrIsTerminal();
+    settings.show_progress = photometry::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << truthComparison(mock, result) << "outputs in "
               << output_directory << "/\n";
@@ -270,7 +271,7 @@ int runCommand(const std::vector<std::string>& arguments) {
     settings.luminosity = luminosity_settings;
     settings.hosts = hosts;
     settings.options = reports::optionValuesJson(values);
-    settings.show_progress = reports::stderrIsTerminal();
+    settings.show_progress = photometry::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     writeReportFor(output_directory);

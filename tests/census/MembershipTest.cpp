@@ -64,3 +64,35 @@ TEST_CASE("distance-modulus quantiles follow the posterior") {
         CHECK(std::abs(posterior.probabilityWithin(distance_pc) - u) < 2e-3); // quantile-table interpolation
     }
 }
+
+TEST_CASE("the Gaussian shortcut for precise parallaxes agrees with the tabulated posterior") {
+    // Same posterior two ways: Laplace approximation (default for sigma/plx <= 0.02) and the 0.05-sigma
+    // grid (shortcut disabled). Tolerance 1.2e-4 in probability: the grid's own error, linear
+    // interpolation of its CDF, is h^2/8 max|pdf'| = 0.05^2 / 8 * 0.242 = 7.6e-5 at 0.05 sigma spacing and
+    // up to ~1.1e-4 where the log-spaced nodes are wider (the flat-prior shortcut is the exact Gaussian,
+    // so this is the grid's error, not the shortcut's); 2e-4 mag in the quantiles.
+    MembershipSettings grid;
+    grid.gaussian_shortcut_max_relative_error = 0.0;
+    for (const auto prior : {DistancePrior::ConstantDensity, DistancePrior::FlatParallax}) {
+        MembershipSettings shortcut;
+        shortcut.prior = grid.prior = prior;
+        for (const double parallax : {40.0, 100.0, 250.0}) {
+            for (const double relative : {0.001, 0.005, 0.01, 0.02}) {
+                const double error = relative * parallax;
+                const DistancePosterior fast(parallax, error, shortcut);
+                const DistancePosterior slow(parallax, error, grid);
+                CAPTURE(parallax);
+                CAPTURE(relative);
+                for (const double z : {-3.0, -1.5, -0.5, 0.0, 0.5, 1.5, 3.0}) {
+                    const double radius_pc = 1000.0 / (parallax + z * error);
+                    CHECK(std::abs(fast.probabilityWithin(radius_pc) - slow.probabilityWithin(radius_pc)) <
+                          1.2e-4);
+                }
+                for (std::size_t j = 1; j + 1 < DistancePosterior::kQuantileNodes; ++j) {
+                    CHECK(std::abs(fast.distanceModulusQuantiles()[j] - slow.distanceModulusQuantiles()[j]) <
+                          2e-4);
+                }
+            }
+        }
+    }
+}

@@ -53,6 +53,14 @@ TEST_CASE("Monte Carlo results do not depend on the thread count") {
     const auto b = census::drawSample(sample_threaded, grid, two_threads);
     CHECK(a.counts == b.counts);
     CHECK(a.star_classes == b.star_classes);
+    // Three threads (blocks handed out unevenly) and a progress display attached: still identical.
+    photometry::ProgressCounters progress;
+    const auto c =
+        census::drawSample(sample, grid, {.draws = 50, .seed = 11, .threads = 3, .progress = &progress});
+    CHECK(c.counts == a.counts);
+    CHECK(c.star_classes == a.star_classes);
+    CHECK(progress.items_done == 3000 * 50);
+    CHECK(progress.items_total == 3000 * 50);
     two_threads.seed = 12;
     CHECK(census::drawSample(sample, grid, two_threads).counts != a.counts);
 }
