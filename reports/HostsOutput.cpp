@@ -69,63 +69,59 @@ Uncertainty teffMassUncertainty(const photometry::CatalogRow& row, const photome
 }
 
 std::vector<FitsColumn> hostColumns() {
-    return {
-        {"source_id", FitsColumnType::Int64, "", "meta.id;meta.main", "source identifier from the input", 0,
-         -1},
-        {"file_index", FitsColumnType::Int32, "", "meta.id", "0-based index of the input file", 0, {}},
-        {"row_index", FitsColumnType::Int64, "", "meta.record", "0-based row in the input table", 0, {}},
-        {"ra", FitsColumnType::Float64, "deg", "pos.eq.ra;meta.main", "right ascension", 0, {}},
-        {"dec", FitsColumnType::Float64, "deg", "pos.eq.dec;meta.main", "declination", 0, {}},
-        {"parallax", FitsColumnType::Float64, "mas", "pos.parallax.trig", "catalogue parallax", 0, {}},
-        {"parallax_error",
-         FitsColumnType::Float32,
-         "mas",
-         "stat.error;pos.parallax.trig",
-         "parallax error",
-         0,
-         {}},
-        {"g", FitsColumnType::Float32, "mag", "phot.mag;em.opt", "Gaia G", 0, {}},
-        {"abs_g", FitsColumnType::Float32, "mag", "phys.magAbs;em.opt", "M_G from the parallax", 0, {}},
-        {"bp_rp", FitsColumnType::Float32, "mag", "phot.color;em.opt.B;em.opt.R", "BP-RP", 0, {}},
-        {"class", FitsColumnType::String, "", "src.class", "class from the exact classifier", 12, {}},
-        {"spectral_type", FitsColumnType::String, "", "src.spType", "dwarf-equivalent subtype", 8, {}},
-        {"teff",
-         FitsColumnType::Float32,
-         "K",
-         "phys.temperature.effective",
-         "Teff of the locus at the subtype",
-         0,
-         {}},
-        {"teff_error",
-         FitsColumnType::Float32,
-         "K",
-         "stat.error;phys.temperature.effective",
-         "half the central 68% range of Teff over re-measurements",
-         0,
-         {}},
-        {"mass", FitsColumnType::Float32, "solMass", "phys.mass", "mass of the locus at the subtype", 0, {}},
-        {"mass_error",
-         FitsColumnType::Float32,
-         "solMass",
-         "stat.error;phys.mass",
-         "half the central 68% range of the mass over re-measurements",
-         0,
-         {}},
-        {"p_member",
-         FitsColumnType::Float32,
-         "",
-         "stat.probability",
-         "probability that the true distance is within the host radius",
-         0,
-         {}},
-        {"class_probability",
-         FitsColumnType::Float32,
-         "",
-         "stat.probability",
-         "share of Monte Carlo draws with this class",
-         0,
-         {}},
-    };
+    std::vector<FitsColumn> columns = rowIdentityColumns();
+    columns.insert(
+        columns.end(),
+        {
+            {"g", FitsColumnType::Float32, "mag", "phot.mag;em.opt", "Gaia G", 0, {}},
+            {"abs_g", FitsColumnType::Float32, "mag", "phys.magAbs;em.opt", "M_G from the parallax", 0, {}},
+            {"bp_rp", FitsColumnType::Float32, "mag", "phot.color;em.opt.B;em.opt.R", "BP-RP", 0, {}},
+            {"class", FitsColumnType::String, "", "src.class", "class from the exact classifier", 12, {}},
+            {"spectral_type", FitsColumnType::String, "", "src.spType", "dwarf-equivalent subtype", 8, {}},
+            {"teff",
+             FitsColumnType::Float32,
+             "K",
+             "phys.temperature.effective",
+             "Teff of the locus at the subtype",
+             0,
+             {}},
+            {"teff_error",
+             FitsColumnType::Float32,
+             "K",
+             "stat.error;phys.temperature.effective",
+             "half the central 68% range of Teff over re-measurements",
+             0,
+             {}},
+            {"mass",
+             FitsColumnType::Float32,
+             "solMass",
+             "phys.mass",
+             "mass of the locus at the subtype",
+             0,
+             {}},
+            {"mass_error",
+             FitsColumnType::Float32,
+             "solMass",
+             "stat.error;phys.mass",
+             "half the central 68% range of the mass over re-measurements",
+             0,
+             {}},
+            {"p_member",
+             FitsColumnType::Float32,
+             "",
+             "stat.probability",
+             "probability that the true distance is within the host radius",
+             0,
+             {}},
+            {"class_probability",
+             FitsColumnType::Float32,
+             "",
+             "stat.probability",
+             "share of Monte Carlo draws with this class",
+             0,
+             {}},
+        });
+    return columns;
 }
 
 } // namespace
@@ -183,14 +179,8 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
         const photometry::Classification result =
             classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
         std::size_t c = 0;
-        block.values<std::int64_t>(c++).push_back(
-            row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);
-        block.values<std::int32_t>(c++).push_back(static_cast<std::int32_t>(row.file_index));
-        block.values<std::int64_t>(c++).push_back(row.row_index);
-        for (const double value : {row.ra_deg, row.dec_deg, row.parallax_mas}) {
-            block.values<double>(c++).push_back(value);
-        }
-        for (const double value : {row.parallax_error_mas, row.g_mag, result.abs_g_mag, result.bp_rp_mag}) {
+        appendRowIdentity(block, c, row);
+        for (const double value : {row.g_mag, result.abs_g_mag, result.bp_rp_mag}) {
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));

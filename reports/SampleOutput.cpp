@@ -14,72 +14,67 @@ using photometry::FitsColumn;
 using photometry::FitsColumnType;
 
 std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
-    std::vector<FitsColumn> columns = {
-        {"source_id", FitsColumnType::Int64, "", "meta.id;meta.main", "source identifier from the input", 0,
-         -1},
-        {"file_index", FitsColumnType::Int32, "", "meta.id", "0-based index of the input file", 0, {}},
-        {"row_index", FitsColumnType::Int64, "", "meta.record", "0-based row in the input table", 0, {}},
-        {"ra", FitsColumnType::Float64, "deg", "pos.eq.ra;meta.main", "right ascension", 0, {}},
-        {"dec", FitsColumnType::Float64, "deg", "pos.eq.dec;meta.main", "declination", 0, {}},
-        {"parallax", FitsColumnType::Float64, "mas", "pos.parallax.trig", "catalogue parallax", 0, {}},
-        {"parallax_error",
-         FitsColumnType::Float32,
-         "mas",
-         "stat.error;pos.parallax.trig",
-         "parallax error",
-         0,
-         {}},
-        {"g", FitsColumnType::Float32, "mag", "phot.mag;em.opt", "Gaia G", 0, {}},
-        {"bp",
-         FitsColumnType::Float32,
-         "mag",
-         "phot.mag;em.opt.B",
-         "Gaia BP (NaN if dropped by a cut)",
-         0,
-         {}},
-        {"rp",
-         FitsColumnType::Float32,
-         "mag",
-         "phot.mag;em.opt.R",
-         "Gaia RP (NaN if dropped by a cut)",
-         0,
-         {}},
-        {"abs_g", FitsColumnType::Float32, "mag", "phys.magAbs;em.opt", "M_G from the parallax", 0, {}},
-        {"abs_g_error",
-         FitsColumnType::Float32,
-         "mag",
-         "stat.error;phys.magAbs",
-         "first-order M_G error",
-         0,
-         {}},
-        {"bp_rp", FitsColumnType::Float32, "mag", "phot.color;em.opt.B;em.opt.R", "BP-RP", 0, {}},
-        {"g_rp", FitsColumnType::Float32, "mag", "phot.color;em.opt;em.opt.R", "G-RP", 0, {}},
-        {"class", FitsColumnType::String, "", "src.class", "class from the exact classifier", 12, {}},
-        {"spectral_type", FitsColumnType::String, "", "src.spType", "dwarf-equivalent subtype", 8, {}},
-        {"spectral_code",
-         FitsColumnType::Float32,
-         "",
-         "src.spType",
-         "numeric subtype: O0=0 B0=10 A0=20 F0=30 G0=40 K0=50 M0=60 L0=70 T0=80 Y0=90",
-         0,
-         {}},
-        {"teff",
-         FitsColumnType::Float32,
-         "K",
-         "phys.temperature.effective",
-         "Teff of the locus at the subtype",
-         0,
-         {}},
-        {"mass", FitsColumnType::Float32, "solMass", "phys.mass", "mass of the locus at the subtype", 0, {}},
-        {"locus_offset",
-         FitsColumnType::Float32,
-         "mag",
-         "phot.mag;arith.diff",
-         "M_G minus the main-sequence locus M_G at the colour",
-         0,
-         {}},
-        {"flags", FitsColumnType::Int32, "", "meta.code.qual", "classification flags (README)", 0, {}},
-    };
+    std::vector<FitsColumn> columns = rowIdentityColumns();
+    columns.insert(
+        columns.end(),
+        {
+            {"g", FitsColumnType::Float32, "mag", "phot.mag;em.opt", "Gaia G", 0, {}},
+            {"bp",
+             FitsColumnType::Float32,
+             "mag",
+             "phot.mag;em.opt.B",
+             "Gaia BP (NaN if dropped by a cut)",
+             0,
+             {}},
+            {"rp",
+             FitsColumnType::Float32,
+             "mag",
+             "phot.mag;em.opt.R",
+             "Gaia RP (NaN if dropped by a cut)",
+             0,
+             {}},
+            {"abs_g", FitsColumnType::Float32, "mag", "phys.magAbs;em.opt", "M_G from the parallax", 0, {}},
+            {"abs_g_error",
+             FitsColumnType::Float32,
+             "mag",
+             "stat.error;phys.magAbs",
+             "first-order M_G error",
+             0,
+             {}},
+            {"bp_rp", FitsColumnType::Float32, "mag", "phot.color;em.opt.B;em.opt.R", "BP-RP", 0, {}},
+            {"g_rp", FitsColumnType::Float32, "mag", "phot.color;em.opt;em.opt.R", "G-RP", 0, {}},
+            {"class", FitsColumnType::String, "", "src.class", "class from the exact classifier", 12, {}},
+            {"spectral_type", FitsColumnType::String, "", "src.spType", "dwarf-equivalent subtype", 8, {}},
+            {"spectral_code",
+             FitsColumnType::Float32,
+             "",
+             "src.spType",
+             "numeric subtype: O0=0 B0=10 A0=20 F0=30 G0=40 K0=50 M0=60 L0=70 T0=80 Y0=90",
+             0,
+             {}},
+            {"teff",
+             FitsColumnType::Float32,
+             "K",
+             "phys.temperature.effective",
+             "Teff of the locus at the subtype",
+             0,
+             {}},
+            {"mass",
+             FitsColumnType::Float32,
+             "solMass",
+             "phys.mass",
+             "mass of the locus at the subtype",
+             0,
+             {}},
+            {"locus_offset",
+             FitsColumnType::Float32,
+             "mag",
+             "phot.mag;arith.diff",
+             "M_G minus the main-sequence locus M_G at the colour",
+             0,
+             {}},
+            {"flags", FitsColumnType::Int32, "", "meta.code.qual", "classification flags (README)", 0, {}},
+        });
     for (const double radius : radii_pc) {
         columns.push_back({"p_within_" + radiusLabel(radius) + "pc",
                            FitsColumnType::Float32,
@@ -111,6 +106,37 @@ std::string radiusLabel(double radius_pc) {
         c = c == '.' ? 'p' : c;
     }
     return label;
+}
+
+std::vector<photometry::FitsColumn> rowIdentityColumns() {
+    return {
+        {"source_id", FitsColumnType::Int64, "", "meta.id;meta.main", "source identifier from the input", 0,
+         -1},
+        {"file_index", FitsColumnType::Int32, "", "meta.id", "0-based index of the input file", 0, {}},
+        {"row_index", FitsColumnType::Int64, "", "meta.record", "0-based row in the input table", 0, {}},
+        {"ra", FitsColumnType::Float64, "deg", "pos.eq.ra;meta.main", "right ascension", 0, {}},
+        {"dec", FitsColumnType::Float64, "deg", "pos.eq.dec;meta.main", "declination", 0, {}},
+        {"parallax", FitsColumnType::Float64, "mas", "pos.parallax.trig", "catalogue parallax", 0, {}},
+        {"parallax_error",
+         FitsColumnType::Float32,
+         "mas",
+         "stat.error;pos.parallax.trig",
+         "parallax error",
+         0,
+         {}},
+    };
+}
+
+void appendRowIdentity(photometry::FitsRowBlock& block, std::size_t& column,
+                       const photometry::CatalogRow& row) {
+    block.values<std::int64_t>(column++).push_back(
+        row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);
+    block.values<std::int32_t>(column++).push_back(static_cast<std::int32_t>(row.file_index));
+    block.values<std::int64_t>(column++).push_back(row.row_index);
+    for (const double value : {row.ra_deg, row.dec_deg, row.parallax_mas}) {
+        block.values<double>(column++).push_back(value);
+    }
+    block.values<float>(column++).push_back(static_cast<float>(row.parallax_error_mas));
 }
 
 photometry::Classification classifyRow(const photometry::CatalogRow& row,
@@ -148,16 +174,9 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
         const photometry::Classification result =
             classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
         std::size_t c = 0;
-        block.values<std::int64_t>(c++).push_back(
-            row.source_id == photometry::kMissingSourceId ? -1 : row.source_id);
-        block.values<std::int32_t>(c++).push_back(static_cast<std::int32_t>(row.file_index));
-        block.values<std::int64_t>(c++).push_back(row.row_index);
-        block.values<double>(c++).push_back(row.ra_deg);
-        block.values<double>(c++).push_back(row.dec_deg);
-        block.values<double>(c++).push_back(row.parallax_mas);
-        for (const double value :
-             {row.parallax_error_mas, row.g_mag, row.bp_mag, row.rp_mag, result.abs_g_mag,
-              result.abs_g_error_mag, result.bp_rp_mag, result.g_rp_mag}) {
+        appendRowIdentity(block, c, row);
+        for (const double value : {row.g_mag, row.bp_mag, row.rp_mag, result.abs_g_mag,
+                                   result.abs_g_error_mag, result.bp_rp_mag, result.g_rp_mag}) {
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));

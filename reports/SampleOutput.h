@@ -5,12 +5,20 @@
 #include "census/MonteCarlo.h"
 #include "photometry/CatalogRow.h"
 #include "photometry/Classifier.h"
+#include "photometry/FitsTableWriter.h"
 
 #include <filesystem>
 #include <span>
 #include <string>
+#include <vector>
 
 namespace starcensus::reports {
+
+/// The leading columns of sample.fits and hosts.fits: source_id, file_index, row_index, ra, dec, parallax
+/// and parallax_error, and the values of a row for them (`column` is advanced past them).
+std::vector<photometry::FitsColumn> rowIdentityColumns();
+void appendRowIdentity(photometry::FitsRowBlock& block, std::size_t& column,
+                       const photometry::CatalogRow& row);
 
 /// The exact classification of a row as written to sample.fits: rows with parallax / error below
 /// min_parallax_snr_to_classify are unclassified and flagged LowParallaxSnr.
