@@ -24,15 +24,27 @@ struct CategoryCounts {
     std::vector<double> full = std::vector<double>(photometry::kCategoryCount, 0.0);
 };
 
-CategoryCounts categoryCounts(const LuminosityModel& model, const std::vector<double>& shares,
-                              double radius_pc, const MagnitudeLimits& limits) {
-    CategoryCounts counts;
+/// Per model element, the volume inside R (pc^3) where it lies beyond the limits; it does not depend on
+/// the mass-function parameters, so it is computed once per radius, not once per draw.
+std::vector<double> unseenVolumesPc3(const LuminosityModel& model, double radius_pc,
+                                     const MagnitudeLimits& limits) {
     const double volume = sphereVolumePc3(radius_pc);
+    std::vector<double> unseen;
+    unseen.reserve(model.elements().size());
     for (const LuminosityModel::Element& element : model.elements()) {
+        unseen.push_back(volume - effectiveVolumePc3(element.abs_g_mag, radius_pc, limits));
+    }
+    return unseen;
+}
+
+CategoryCounts categoryCounts(const LuminosityModel& model, const std::vector<double>& shares,
+                              double volume_pc3, const std::vector<double>& unseen_volumes_pc3) {
+    CategoryCounts counts;
+    for (std::size_t e = 0; e < model.elements().size(); ++e) {
+        const LuminosityModel::Element& element = model.elements()[e];
         const double systems = shares[element.cell] * element.weight;
-        counts.full[element.category] += systems * volume;
-        counts.missing[element.category] +=
-            systems * (volume - effectiveVolumePc3(element.abs_g_mag, radius_pc, limits));
+        counts.full[element.category] += systems * volume_pc3;
+        counts.missing[element.category] += systems * unseen_volumes_pc3[e];
     }
     return counts;
 }
@@ -83,13 +95,18 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
                                                          std::vector<std::vector<double>>(groups.size()));
     auto missing = counts;
     std::vector<std::vector<double>> totals(radii);
+    std::vector<std::vector<double>> unseen_volumes;
+    for (const double radius : radii_pc) {
+        unseen_volumes.push_back(unseenVolumesPc3(model, radius, limits));
+    }
     for (std::size_t d = 0; d < draws; ++d) {
         Xoshiro256 random(seed, kCorrectionStreamBase + d);
         const std::vector<double> theta = drawParameters(fit, factor, random);
         const std::vector<double> shares =
             model.cellShares(InitialMassFunction(imfWithParameters(fit.family, fit.imf, theta)));
         for (std::size_t r = 0; r < radii; ++r) {
-            const CategoryCounts expected = categoryCounts(model, shares, radii_pc[r], limits);
+            const CategoryCounts expected =
+                categoryCounts(model, shares, sphereVolumePc3(radii_pc[r]), unseen_volumes[r]);
             std::vector<double> unseen(photometry::kCategoryCount, 0.0);
             double unseen_total = 0.0;
             for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
@@ -115,7 +132,8 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
     const std::vector<double> best_shares = model.cellShares(InitialMassFunction(fit.imf));
     std::vector<CorrectedRadius> result;
     for (std::size_t r = 0; r < radii; ++r) {
-        const CategoryCounts best = categoryCounts(model, best_shares, radii_pc[r], limits);
+        const CategoryCounts best =
+            categoryCounts(model, best_shares, sphereVolumePc3(radii_pc[r]), unseen_volumes[r]);
         CorrectedRadius corrected;
         corrected.radius_pc = radii_pc[r];
         for (std::size_t g = 0; g < groups.size(); ++g) {

@@ -16,6 +16,7 @@
 
 #include <chrono>
 #include <ctime>
+#include <future>
 #include <iomanip>
 #include <ostream>
 #include <sstream>
@@ -64,7 +65,8 @@ nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector
 
 /// provenance.json: the inputs with checksums, every option value, the resolved settings and the timings.
 nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vector<std::string>& paths,
-                              const PipelineTimings& timings, const std::vector<std::string>& outputs) {
+                              nlohmann::json input_files, const PipelineTimings& timings,
+                              const std::vector<std::string>& outputs) {
     const std::time_t now = std::time(nullptr);
     char created[32];
     std::strftime(created, sizeof created, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&now));
@@ -73,7 +75,7 @@ nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vecto
             {"version", STARCENSUS_VERSION},
             {"created_utc", created},
             {"seed", settings.census.draws.seed},
-            {"inputs", inputFilesJson(paths)},
+            {"inputs", std::move(input_files)},
             {"command_options", settings.options},
             {"settings", runProvenance(settings, paths)},
             {"timings_s",
@@ -98,6 +100,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     auto start = Clock::now();
     progress.begin("scan");
     const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
+    // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
+    // the scan, so it runs beside the census instead of after it.
+    std::future<nlohmann::json> input_files =
+        std::async(std::launch::async, [&paths] { return inputFilesJson(paths); });
     photometry::ScanSettings scan_settings = settings.scan;
     scan_settings.min_parallax_mas =
         1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
@@ -193,9 +199,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                                   census.quality.min_parallax_snr_to_classify, census.membership, hosts);
     result.timings.outputs_s = secondsSince(start);
     writeJsonFile(directory / "provenance.json",
-                  provenanceJson(settings, paths, result.timings,
+                  provenanceJson(settings, paths, input_files.get(), result.timings,
                                  {"sample.fits", "fractions.json", "fractions.csv", "priors.json",
-                                  "draws.fits", "draws.csv", "hosts.fits", "provenance.json"}));
+                                  "draws.fits", "draws.csv", "hosts.fits", "completeness.json", "lumfunc.csv",
+                                  "lumfunc_fit.json", "provenance.json"}));
     progress.end();
     return result;
 }

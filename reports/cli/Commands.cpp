@@ -242,6 +242,9 @@ int runCommand(const std::vector<std::string>& arguments) {
     add("input,i", po::value(&inputs)->composing(),
         "input catalogs: FITS (also .gz) or CSV files, globs, @list.txt");
     add("out,o", po::value(&output_directory)->default_value(output_directory), "output directory");
+    bool no_report = false;
+    add("no-report", po::bool_switch(&no_report),
+        "skip report.html and figures/ (write them later with starcensus report DIR)");
     reports::HostListSettings hosts;
     po::options_description options;
     options.add(commonOptions(common))
@@ -274,7 +277,9 @@ int runCommand(const std::vector<std::string>& arguments) {
     settings.show_progress = photometry::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
-    writeReportFor(output_directory);
+    if (!no_report) {
+        writeReportFor(output_directory);
+    }
     return 0;
 }
 
