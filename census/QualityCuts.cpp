@@ -30,7 +30,9 @@ std::vector<CutOutcome> applyQualityCuts(std::vector<photometry::CatalogRow>& ro
         // NaN RUWE compares false and so passes.
         std::erase_if(rows, [&](const photometry::CatalogRow& row) { return row.ruwe > settings.max_ruwe; });
     }
-    outcomes.push_back({"ruwe", describe("removed: RUWE > ", settings.max_ruwe),
+    outcomes.push_back({"ruwe",
+                        settings.max_ruwe > 0.0 ? describe("removed: RUWE > ", settings.max_ruwe)
+                                                : std::string("no rows removed by RUWE (--max-ruwe 0: off)"),
                         static_cast<std::int64_t>(before - rows.size())});
 
     std::int64_t inflated = 0;
@@ -44,7 +46,9 @@ std::vector<CutOutcome> applyQualityCuts(std::vector<photometry::CatalogRow>& ro
     }
     outcomes.push_back(
         {"ruwe_error_inflation",
-         describe("parallax error multiplied by RUWE: RUWE > ", settings.inflate_errors_above_ruwe),
+         settings.inflate_errors_above_ruwe > 0.0
+             ? describe("parallax error multiplied by RUWE: RUWE > ", settings.inflate_errors_above_ruwe)
+             : std::string("parallax errors not scaled by RUWE (--inflate-errors-above-ruwe 0: off)"),
          inflated});
 
     std::int64_t noisy_colours = 0;

@@ -46,4 +46,5 @@ TEST_CASE("by default high-RUWE rows stay, with their parallax errors scaled by 
     CHECK(outcomes[1].rows_affected == 1);
     CHECK(rows[0].parallax_error_mas == doctest::Approx(0.3));
     CHECK(rows[1].parallax_error_mas == doctest::Approx(0.1));
+    CHECK(outcomes[0].description == "no rows removed by RUWE (--max-ruwe 0: off)");
 }
