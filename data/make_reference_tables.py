@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """Regenerates the shipped reference tables in data/ from the published files in ../shared/reference/.
 
-Run from the repository root:  /usr/bin/python3 tools/make_reference_tables.py ../shared/reference
+Run from the repository root:  /usr/bin/python3 data/make_reference_tables.py ../shared/reference
 Only copies and reformats numbers (no fitting, no smoothing); the citations go into each file header.
 """
 import pathlib
@@ -25,7 +25,7 @@ DWARF_HEADER = """\
 #   abs_j_mag (M_J, mag); abs_ks_mag (M_Ks, mag); mass_msun (Msun).
 # `nan` = not given in the source (its `...`). Values the source marks uncertain with ':' are KEPT with
 #   the colon removed: {uncertain}.
-# Copied without change by tools/make_reference_tables.py.
+# Copied without change by data/make_reference_tables.py.
 """
 
 WD_HEADER = """\
@@ -39,7 +39,7 @@ WD_HEADER = """\
 # Columns (units): teff_k (K); log_g (log10 cm s^-2); mass_msun (Msun); abs_g_mag, abs_bp_mag,
 #   abs_rp_mag (absolute Gaia EDR3 G, G_BP, G_RP: the source's G3, G3_BP, G3_RP; mag);
 #   cooling_age_yr (yr).
-# Copied without change by tools/make_reference_tables.py.
+# Copied without change by data/make_reference_tables.py.
 """
 
 
