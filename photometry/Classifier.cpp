@@ -36,7 +36,7 @@ AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, do
 
 Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_dwarfs,
                        ClassifierSettings settings)
-    : locus_(locus), settings_(settings),
+    : locus_(locus), white_dwarfs_(white_dwarfs), settings_(settings),
       white_dwarf_boundary_(locus, white_dwarfs, settings.white_dwarf_boundary),
       locus_bp_rp_range_mag_(locus.invertibleRange(LocusQuantity::BpRpMag)),
       locus_abs_g_range_mag_(locus.invertibleRange(LocusQuantity::AbsGMag)) {
@@ -121,6 +121,15 @@ void Classifier::classifyWithColour(Classification& result) const {
 
     if (colour <= settings_.white_dwarf_max_bp_rp_mag && abs_g > white_dwarf_boundary_.absGMag(colour)) {
         result.stellar_class = StellarClass::WhiteDwarf;
+        // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
+        // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
+        const WhiteDwarfParameters parameters =
+            white_dwarfs_.fromColourMagnitude(colour, abs_g, WhiteDwarfAtmosphere::Hydrogen);
+        result.teff_k = parameters.teff_k;
+        result.mass_msun = parameters.mass_msun;
+        if (!parameters.inside_grid) {
+            result.flags |= bit(ClassificationFlag::OutsideLocus);
+        }
         return;
     }
     if (colour < blue_end) {

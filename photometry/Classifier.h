@@ -155,6 +155,7 @@ class Classifier {
     void setDwarf(Classification& result, double spectral_code) const;
 
     const DwarfLocus& locus_;
+    const WhiteDwarfSequence& white_dwarfs_;
     ClassifierSettings settings_;
     WhiteDwarfBoundary white_dwarf_boundary_;
     std::array<double, 2> locus_bp_rp_range_mag_;

@@ -279,4 +279,61 @@ WhiteDwarfBoundary::WhiteDwarfBoundary(const DwarfLocus& locus, const WhiteDwarf
     }
 }
 
+WhiteDwarfParameters WhiteDwarfSequence::fromColourMagnitude(double bp_rp_mag, double abs_g_mag,
+                                                             WhiteDwarfAtmosphere atmosphere) const {
+    constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+    struct TrackPoint {
+        double log_g, teff_k, mass_msun, abs_g_mag;
+    };
+    // One point per log g track: where the track crosses the object's colour.
+    std::vector<TrackPoint> crossings;
+    const std::vector<WhiteDwarfModel>& all = models(atmosphere);
+    for (std::size_t begin = 0; begin < all.size();) {
+        std::size_t end = begin;
+        while (end < all.size() && all[end].log_g == all[begin].log_g) {
+            ++end;
+        }
+        // Models of this track run from cool to hot; colour is single-valued from the reddest model up.
+        std::size_t reddest = begin;
+        for (std::size_t k = begin; k < end; ++k) {
+            const double colour = all[k].abs_bp_mag - all[k].abs_rp_mag;
+            if (colour > all[reddest].abs_bp_mag - all[reddest].abs_rp_mag) {
+                reddest = k;
+            }
+        }
+        for (std::size_t k = reddest; k + 1 < end; ++k) {
+            const double red = all[k].abs_bp_mag - all[k].abs_rp_mag;
+            const double blue = all[k + 1].abs_bp_mag - all[k + 1].abs_rp_mag;
+            if (bp_rp_mag <= red && bp_rp_mag >= blue && red > blue) {
+                const double t = (red - bp_rp_mag) / (red - blue);
+                const double log_teff = std::log10(all[k].teff_k) +
+                                        t * (std::log10(all[k + 1].teff_k) - std::log10(all[k].teff_k));
+                crossings.push_back({all[k].log_g, std::pow(10.0, log_teff),
+                                     all[k].mass_msun + t * (all[k + 1].mass_msun - all[k].mass_msun),
+                                     all[k].abs_g_mag + t * (all[k + 1].abs_g_mag - all[k].abs_g_mag)});
+                break;
+            }
+        }
+        begin = end;
+    }
+    if (crossings.empty()) {
+        return {kNaN, kNaN, kNaN, false};
+    }
+    // Tracks of higher log g are fainter at a given colour: interpolate in M_G between neighbours.
+    for (std::size_t k = 0; k + 1 < crossings.size(); ++k) {
+        const TrackPoint& low = crossings[k];
+        const TrackPoint& high = crossings[k + 1];
+        if (abs_g_mag >= low.abs_g_mag && abs_g_mag <= high.abs_g_mag && high.abs_g_mag > low.abs_g_mag) {
+            const double t = (abs_g_mag - low.abs_g_mag) / (high.abs_g_mag - low.abs_g_mag);
+            return {std::pow(10.0,
+                             std::log10(low.teff_k) + t * (std::log10(high.teff_k) - std::log10(low.teff_k))),
+                    low.log_g + t * (high.log_g - low.log_g),
+                    low.mass_msun + t * (high.mass_msun - low.mass_msun), true};
+        }
+    }
+    const TrackPoint& nearest =
+        abs_g_mag < crossings.front().abs_g_mag ? crossings.front() : crossings.back();
+    return {nearest.teff_k, nearest.log_g, nearest.mass_msun, false};
+}
+
 } // namespace starcensus::photometry

@@ -43,6 +43,14 @@ struct WhiteDwarfPhotometry {
     double cooling_age_yr;
 };
 
+/// Parameters of a white dwarf read off the model grid at its colour and absolute magnitude.
+struct WhiteDwarfParameters {
+    double teff_k;
+    double log_g;
+    double mass_msun;
+    bool inside_grid; // false: M_G beyond the grid's log g range at that colour (log g clamped)
+};
+
 namespace detail {
 struct WhiteDwarfGrid;
 }
@@ -72,6 +80,13 @@ class WhiteDwarfSequence {
     /// ages, ages older than the coolest model, or younger than a hottest model whose age is positive, at
     /// either bracketing log g.
     double teffAtCoolingAge(double cooling_age_yr, double log_g, WhiteDwarfAtmosphere atmosphere) const;
+
+    /// Teff, log g and mass of an object at (BP-RP, M_G): on each log g track, Teff where the track's
+    /// BP-RP equals the object's (linear in log10 Teff, over the part of the track hotter than its reddest
+    /// model, where colour is single-valued), then linear in M_G between the two tracks that bracket the
+    /// object's M_G. NaN Teff outside the tracks' colour range.
+    WhiteDwarfParameters fromColourMagnitude(double bp_rp_mag, double abs_g_mag,
+                                             WhiteDwarfAtmosphere atmosphere) const;
 
     /// atTeff(teffAtCoolingAge(...)); the simulator's age -> photometry.
     WhiteDwarfPhotometry atCoolingAge(double cooling_age_yr, double log_g,

@@ -325,3 +325,14 @@ TEST_CASE("objects without BP-RP fainter than the L8V locus are T dwarfs when re
     // The coolest Montreal DA model at log g 9.0 (1500 K): M_G 21.281, G-RP 21.281 - 21.785 = -0.504.
     CHECK(classifier.classifyAbsolute(21.281, kNaN, -0.504).stellar_class != StellarClass::T);
 }
+
+TEST_CASE("the classifier gives white dwarfs a Teff and a mass") {
+    // Sirius B (published-figures.md section 3, from the 10 pc catalogue: M_G 11.39, BP-RP -0.28, DA1.9;
+    // DA1.9 means Teff ~ 50400/1.9 = 26500 K by the spectral-type convention, from memory). A loose check:
+    // hot (> 15000 K) and of typical white-dwarf mass (0.5-1.2 Msun).
+    const Classification sirius_b = Classifier::shipped().classifyAbsolute(11.39, -0.28);
+    REQUIRE(sirius_b.stellar_class == StellarClass::WhiteDwarf);
+    CHECK(sirius_b.teff_k > 15000.0);
+    CHECK(sirius_b.mass_msun > 0.5);
+    CHECK(sirius_b.mass_msun < 1.2);
+}

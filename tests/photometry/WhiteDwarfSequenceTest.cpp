@@ -113,3 +113,32 @@ TEST_CASE("a missing white-dwarf table is a one-line input error naming it") {
     CHECK_THROWS_WITH(WhiteDwarfSequence::load("/nonexistent/da.txt", db),
                       doctest::Contains("/nonexistent/da.txt"));
 }
+
+TEST_CASE("white-dwarf Teff and mass come back from a model's colour and absolute magnitude") {
+    // Montreal DA models at log g 8.0 (published-figures.md section 7 and data/white_dwarf_montreal_da.txt):
+    // Teff 20000 K: G 10.787, BP 10.692, RP 10.973, 0.624 Msun; 10000 K: 12.173, 12.215, 12.081, 0.600 Msun;
+    // 5000 K: 14.853, 15.316, 14.225, 0.580 Msun. Tolerances: 1% in Teff, 0.01 Msun (the grid's own nodes).
+    const WhiteDwarfSequence& sequence = WhiteDwarfSequence::shipped();
+    struct Model {
+        double teff_k, g, bp, rp, mass_msun;
+    };
+    for (const Model& model :
+         {Model{20000, 10.787, 10.692, 10.973, 0.624}, Model{10000, 12.173, 12.215, 12.081, 0.600},
+          Model{5000, 14.853, 15.316, 14.225, 0.580}}) {
+        const WhiteDwarfParameters fit =
+            sequence.fromColourMagnitude(model.bp - model.rp, model.g, WhiteDwarfAtmosphere::Hydrogen);
+        CAPTURE(model.teff_k);
+        CHECK(fit.inside_grid);
+        CHECK(fit.teff_k == doctest::Approx(model.teff_k).epsilon(0.01));
+        CHECK(fit.log_g == doctest::Approx(8.0).epsilon(0.005));
+        CHECK(std::abs(fit.mass_msun - model.mass_msun) < 0.01);
+    }
+    // Between grid tracks: a model at (Teff, log g 8.25) interpolated by atTeff comes back.
+    const WhiteDwarfPhotometry between = sequence.atTeff(8000.0, 8.25, WhiteDwarfAtmosphere::Hydrogen);
+    const WhiteDwarfParameters fit =
+        sequence.fromColourMagnitude(between.bp_rp_mag, between.abs_g_mag, WhiteDwarfAtmosphere::Hydrogen);
+    CHECK(fit.teff_k == doctest::Approx(8000.0).epsilon(0.02));
+    CHECK(fit.log_g == doctest::Approx(8.25).epsilon(0.01));
+    // Far redder than any model: no Teff.
+    CHECK(std::isnan(sequence.fromColourMagnitude(4.0, 15.0, WhiteDwarfAtmosphere::Hydrogen).teff_k));
+}
