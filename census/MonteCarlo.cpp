@@ -2,6 +2,7 @@
 
 #include "census/Random.h"
 #include "census/detail/FastNormal.h"
+#include "photometry/Threads.h"
 
 #include <algorithm>
 #include <cmath>
@@ -18,10 +19,6 @@ const photometry::Category kUnclassified =
 
 // Stars per random stream and per unit of work handed to a thread.
 constexpr std::size_t kBlockStars = 256;
-
-unsigned resolveThreads(unsigned requested) {
-    return requested != 0 ? requested : std::max(1u, std::thread::hardware_concurrency());
-}
 
 /// Runs body(begin, end, thread) over [0, count) in contiguous blocks claimed in order by `threads`
 /// threads (blocks are static: thread t takes blocks t, t + threads, ...).
@@ -68,40 +65,41 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     if (classifier != nullptr) {
         colourless_categories_.resize(n * kQuantiles);
     }
-    forEachBlock(n, resolveThreads(threads), [&](std::size_t, std::size_t begin, std::size_t end, unsigned) {
-        for (std::size_t s = begin; s < end; ++s) {
-            const photometry::CatalogRow& row = rows[s];
-            const bool classifiable =
-                row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas;
-            g_mag_[s] =
-                classifiable ? static_cast<float>(row.g_mag) : std::numeric_limits<float>::quiet_NaN();
-            g_error_mag_[s] = finiteOrZero(row.g_error_mag);
-            colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
-            colour_error_mag_[s] =
-                quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
-            const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
-            for (std::size_t r = 0; r < radii_pc_.size(); ++r) {
-                probability_within_[s * radii_pc_.size() + r] =
-                    static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
-            }
-            std::copy(posterior.distanceModulusQuantiles().begin(),
-                      posterior.distanceModulusQuantiles().end(),
-                      modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
-            if (classifier != nullptr && std::isnan(colour_mag_[s]) && std::isfinite(g_mag_[s])) {
-                for (std::size_t k = 0; k < kQuantiles; ++k) {
-                    const photometry::PhotometricInput input{.g_mag = row.g_mag,
-                                                             .rp_mag = row.rp_mag,
-                                                             .j_mag = row.j_mag,
-                                                             .ks_mag = row.ks_mag,
-                                                             .distance_modulus_mag =
-                                                                 posterior.distanceModulusQuantiles()[k]};
-                    const auto result = classifier->classify(input);
-                    colourless_categories_[s * kQuantiles + k] =
-                        photometry::categoryOf(result.stellar_class, result.spectral_code);
+    forEachBlock(
+        n, resolveThreadCount(threads), [&](std::size_t, std::size_t begin, std::size_t end, unsigned) {
+            for (std::size_t s = begin; s < end; ++s) {
+                const photometry::CatalogRow& row = rows[s];
+                const bool classifiable =
+                    row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas;
+                g_mag_[s] =
+                    classifiable ? static_cast<float>(row.g_mag) : std::numeric_limits<float>::quiet_NaN();
+                g_error_mag_[s] = finiteOrZero(row.g_error_mag);
+                colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
+                colour_error_mag_[s] =
+                    quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
+                const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
+                for (std::size_t r = 0; r < radii_pc_.size(); ++r) {
+                    probability_within_[s * radii_pc_.size() + r] =
+                        static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
+                }
+                std::copy(posterior.distanceModulusQuantiles().begin(),
+                          posterior.distanceModulusQuantiles().end(),
+                          modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
+                if (classifier != nullptr && std::isnan(colour_mag_[s]) && std::isfinite(g_mag_[s])) {
+                    for (std::size_t k = 0; k < kQuantiles; ++k) {
+                        const photometry::PhotometricInput input{.g_mag = row.g_mag,
+                                                                 .rp_mag = row.rp_mag,
+                                                                 .j_mag = row.j_mag,
+                                                                 .ks_mag = row.ks_mag,
+                                                                 .distance_modulus_mag =
+                                                                     posterior.distanceModulusQuantiles()[k]};
+                        const auto result = classifier->classify(input);
+                        colourless_categories_[s * kQuantiles + k] =
+                            photometry::categoryOf(result.stellar_class, result.spectral_code);
+                    }
                 }
             }
-        }
-    });
+        });
 }
 
 std::uint32_t DrawTallies::classCount(int draw, std::size_t r, photometry::StellarClass c) const {
@@ -130,7 +128,7 @@ class SampleDrawer {
         : sample_(sample), classes_(classes), settings_(settings) {}
 
     DrawTallies run() const {
-        const unsigned threads = resolveThreads(settings_.threads);
+        const unsigned threads = resolveThreadCount(settings_.threads);
         const std::size_t radii = sample_.radii_pc_.size();
         const std::size_t tally_size =
             static_cast<std::size_t>(settings_.draws) * radii * photometry::kCategoryCount;

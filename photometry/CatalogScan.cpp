@@ -3,6 +3,7 @@
 #include "photometry/CatalogScanDetail.h"
 #include "photometry/CsvCatalog.h"
 #include "photometry/FitsCatalog.h"
+#include "photometry/Threads.h"
 
 #include <fitsio.h>
 
@@ -133,8 +134,7 @@ void appendPart(FileScanResult& whole, FileScanResult&& part) {
 CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings) {
     std::vector<detail::FileScanResult> results(paths.size());
     std::vector<std::exception_ptr> errors(paths.size());
-    unsigned threads =
-        settings.threads != 0 ? settings.threads : std::max(1U, std::thread::hardware_concurrency());
+    unsigned threads = resolveThreadCount(settings.threads);
     if (fits_is_reentrant() == 0) {
         threads = 1; // a cfitsio built without --enable-reentrant must not be used from two threads
     }

@@ -4,6 +4,7 @@
 #include "census/Random.h"
 #include "photometry/FitsTableWriter.h"
 #include "photometry/InputError.h"
+#include "photometry/Threads.h"
 #include "reports/SampleOutput.h"
 
 #include <algorithm>
@@ -153,8 +154,7 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
     }
     // Each host has its own stream, so the result does not depend on the thread count.
     std::vector<Uncertainty> uncertainties(hosts.size());
-    const unsigned threads =
-        settings.threads != 0 ? settings.threads : std::max(1u, std::thread::hardware_concurrency());
+    const unsigned threads = resolveThreadCount(settings.threads);
     {
         std::vector<std::jthread> workers;
         for (unsigned t = 0; t < threads; ++t) {
