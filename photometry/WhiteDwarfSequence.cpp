@@ -8,6 +8,7 @@
 #include <cmath>
 #include <functional>
 #include <limits>
+#include <optional>
 
 namespace starcensus::photometry {
 
@@ -60,6 +61,9 @@ struct CoolingTrack {
     // The tables are monotone except one step of the DA log g 7.5 track (70000 K: 2.632e5 yr, 75000 K:
     // 2.801e5 yr), where this holds the age at 2.632e5 yr.
     std::vector<double> monotone_age_yr;
+    std::vector<double> bp_rp_mag; // of each model
+    // The reddest model: hotter than it, colour is single-valued in Teff (the coolest models turn blue).
+    std::size_t reddest = 0;
 
     WhiteDwarfPhotometry at(double log_teff_k) const {
         if (!(log_teff_k >= log_teff.front() && log_teff_k <= log_teff.back())) {
@@ -139,7 +143,7 @@ std::shared_ptr<const detail::WhiteDwarfGrid> buildGrid(std::vector<WhiteDwarfMo
             throw InputError(std::string("white-dwarf models (") + name + "): a model has no Teff or log g");
         }
         if (grid->tracks.empty() || grid->tracks.back().log_g != model.log_g) {
-            grid->tracks.push_back({model.log_g, {}, {}, {}});
+            grid->tracks.push_back({model.log_g, {}, {}, {}, {}, 0});
         }
         auto& track = grid->tracks.back();
         if (!track.models.empty() && model.teff_k == track.models.back().teff_k) {
@@ -154,6 +158,10 @@ std::shared_ptr<const detail::WhiteDwarfGrid> buildGrid(std::vector<WhiteDwarfMo
                                             ? model.cooling_age_yr
                                             : std::min(model.cooling_age_yr, track.monotone_age_yr.back()));
         track.log_teff.push_back(std::log10(model.teff_k));
+        track.bp_rp_mag.push_back(model.abs_bp_mag - model.abs_rp_mag);
+        if (track.bp_rp_mag.back() > track.bp_rp_mag[track.reddest]) {
+            track.reddest = track.bp_rp_mag.size() - 1;
+        }
         track.models.push_back(model);
     }
     if (grid->tracks.size() < 2 || std::any_of(grid->tracks.begin(), grid->tracks.end(),
@@ -281,59 +289,53 @@ WhiteDwarfBoundary::WhiteDwarfBoundary(const DwarfLocus& locus, const WhiteDwarf
 
 WhiteDwarfParameters WhiteDwarfSequence::fromColourMagnitude(double bp_rp_mag, double abs_g_mag,
                                                              WhiteDwarfAtmosphere atmosphere) const {
-    constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
     struct TrackPoint {
-        double log_g, teff_k, mass_msun, abs_g_mag;
+        double log_g, log_teff, mass_msun, abs_g_mag;
     };
-    // One point per log g track: where the track crosses the object's colour.
-    std::vector<TrackPoint> crossings;
-    const std::vector<WhiteDwarfModel>& all = models(atmosphere);
-    for (std::size_t begin = 0; begin < all.size();) {
-        std::size_t end = begin;
-        while (end < all.size() && all[end].log_g == all[begin].log_g) {
-            ++end;
-        }
-        // Models of this track run from cool to hot; colour is single-valued from the reddest model up.
-        std::size_t reddest = begin;
-        for (std::size_t k = begin; k < end; ++k) {
-            const double colour = all[k].abs_bp_mag - all[k].abs_rp_mag;
-            if (colour > all[reddest].abs_bp_mag - all[reddest].abs_rp_mag) {
-                reddest = k;
-            }
-        }
-        for (std::size_t k = reddest; k + 1 < end; ++k) {
-            const double red = all[k].abs_bp_mag - all[k].abs_rp_mag;
-            const double blue = all[k + 1].abs_bp_mag - all[k + 1].abs_rp_mag;
+    // One point per log g track where the track crosses the object's colour; tracks run in increasing
+    // log g, and higher log g is fainter at a given colour, so the first two consecutive crossings that
+    // bracket the object's M_G are interpolated in M_G. Called for every re-measurement of every white
+    // dwarf and for every white-dwarf cell of the class grid: no allocation, one pow() per call.
+    std::optional<TrackPoint> first, previous;
+    for (const detail::CoolingTrack& track : grids_[static_cast<std::size_t>(atmosphere)]->tracks) {
+        std::optional<TrackPoint> crossing;
+        const std::vector<double>& colours = track.bp_rp_mag;
+        for (std::size_t k = track.reddest; k + 1 < colours.size(); ++k) {
+            const double red = colours[k];
+            const double blue = colours[k + 1];
             if (bp_rp_mag <= red && bp_rp_mag >= blue && red > blue) {
                 const double t = (red - bp_rp_mag) / (red - blue);
-                const double log_teff = std::log10(all[k].teff_k) +
-                                        t * (std::log10(all[k + 1].teff_k) - std::log10(all[k].teff_k));
-                crossings.push_back({all[k].log_g, std::pow(10.0, log_teff),
-                                     all[k].mass_msun + t * (all[k + 1].mass_msun - all[k].mass_msun),
-                                     all[k].abs_g_mag + t * (all[k + 1].abs_g_mag - all[k].abs_g_mag)});
+                const WhiteDwarfModel& a = track.models[k];
+                const WhiteDwarfModel& b = track.models[k + 1];
+                crossing = TrackPoint{track.log_g,
+                                      track.log_teff[k] + t * (track.log_teff[k + 1] - track.log_teff[k]),
+                                      a.mass_msun + t * (b.mass_msun - a.mass_msun),
+                                      a.abs_g_mag + t * (b.abs_g_mag - a.abs_g_mag)};
                 break;
             }
         }
-        begin = end;
-    }
-    if (crossings.empty()) {
-        return {kNaN, kNaN, kNaN, false};
-    }
-    // Tracks of higher log g are fainter at a given colour: interpolate in M_G between neighbours.
-    for (std::size_t k = 0; k + 1 < crossings.size(); ++k) {
-        const TrackPoint& low = crossings[k];
-        const TrackPoint& high = crossings[k + 1];
-        if (abs_g_mag >= low.abs_g_mag && abs_g_mag <= high.abs_g_mag && high.abs_g_mag > low.abs_g_mag) {
+        if (!crossing) {
+            continue;
+        }
+        if (previous && abs_g_mag >= previous->abs_g_mag && abs_g_mag <= crossing->abs_g_mag &&
+            crossing->abs_g_mag > previous->abs_g_mag) {
+            const TrackPoint& low = *previous;
+            const TrackPoint& high = *crossing;
             const double t = (abs_g_mag - low.abs_g_mag) / (high.abs_g_mag - low.abs_g_mag);
-            return {std::pow(10.0,
-                             std::log10(low.teff_k) + t * (std::log10(high.teff_k) - std::log10(low.teff_k))),
+            return {std::pow(10.0, low.log_teff + t * (high.log_teff - low.log_teff)),
                     low.log_g + t * (high.log_g - low.log_g),
                     low.mass_msun + t * (high.mass_msun - low.mass_msun), true};
         }
+        if (!first) {
+            first = crossing;
+        }
+        previous = crossing;
     }
-    const TrackPoint& nearest =
-        abs_g_mag < crossings.front().abs_g_mag ? crossings.front() : crossings.back();
-    return {nearest.teff_k, nearest.log_g, nearest.mass_msun, false};
+    if (!first) {
+        return {kNaN, kNaN, kNaN, false};
+    }
+    const TrackPoint& nearest = abs_g_mag < first->abs_g_mag ? *first : *previous;
+    return {std::pow(10.0, nearest.log_teff), nearest.log_g, nearest.mass_msun, false};
 }
 
 } // namespace starcensus::photometry
