@@ -46,9 +46,15 @@ Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_
         const double j_ks = locus.valueAtCode(LocusQuantity::JKsMag, code);
         const double abs_j = locus.valueAtCode(LocusQuantity::AbsJMag, code);
         if (!std::isnan(j_ks) && !std::isnan(abs_j)) {
-            near_infrared_locus_.push_back({code, j_ks, abs_j});
+            near_infrared_locus_.push_back(
+                {abs_j / settings_.nir_magnitude_scale_mag, j_ks / settings_.nir_colour_scale_mag, code});
         }
     }
+    std::sort(near_infrared_locus_.begin(), near_infrared_locus_.end(),
+              [](const NearInfraredPoint& a, const NearInfraredPoint& b) {
+                  return a.scaled_abs_j != b.scaled_abs_j ? a.scaled_abs_j < b.scaled_abs_j
+                                                          : a.spectral_code < b.spectral_code;
+              });
 }
 
 const Classifier& Classifier::shipped() {
@@ -210,16 +216,35 @@ bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, 
     if (std::isnan(abs_j_mag) || std::isnan(j_ks_mag)) {
         return false;
     }
+    // Nearest locus point in the scaled (J-Ks, M_J) plane; equal distances go to the earlier subtype.
+    // Walking outward from the object's M_J, a point whose M_J difference alone is farther than the best
+    // so far cannot win, and neither can any point beyond it.
+    const double y = abs_j_mag / settings_.nir_magnitude_scale_mag;
+    const double x = j_ks_mag / settings_.nir_colour_scale_mag;
     double best_distance_squared = std::numeric_limits<double>::infinity();
     double best_code = kNaN;
-    for (const NearInfraredPoint& point : near_infrared_locus_) {
-        const double colour = (j_ks_mag - point.j_ks_mag) / settings_.nir_colour_scale_mag;
-        const double magnitude = (abs_j_mag - point.abs_j_mag) / settings_.nir_magnitude_scale_mag;
-        const double distance_squared = colour * colour + magnitude * magnitude;
-        if (distance_squared < best_distance_squared) {
+    const auto consider = [&](const NearInfraredPoint& point) {
+        const double dy = point.scaled_abs_j - y;
+        if (dy * dy > best_distance_squared) {
+            return false;
+        }
+        const double dx = point.scaled_j_ks - x;
+        const double distance_squared = dx * dx + dy * dy;
+        if (distance_squared < best_distance_squared ||
+            (distance_squared == best_distance_squared && point.spectral_code < best_code)) {
             best_distance_squared = distance_squared;
             best_code = point.spectral_code;
         }
+        return true;
+    };
+    const auto split = std::lower_bound(
+        near_infrared_locus_.begin(), near_infrared_locus_.end(), y,
+        [](const NearInfraredPoint& point, double value) { return point.scaled_abs_j < value; });
+    for (auto fainter = split; fainter != near_infrared_locus_.end() && consider(*fainter);) {
+        ++fainter;
+    }
+    for (auto brighter = split; brighter != near_infrared_locus_.begin() && consider(*(brighter - 1));) {
+        --brighter;
     }
     if (!(best_distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
         return false;

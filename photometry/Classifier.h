@@ -161,9 +161,11 @@ class Classifier {
     std::array<double, 2> locus_bp_rp_range_mag_;
     std::array<double, 2> locus_abs_g_range_mag_;
     struct NearInfraredPoint {
-        double spectral_code, j_ks_mag, abs_j_mag;
+        double scaled_abs_j, scaled_j_ks, spectral_code; // M_J and J-Ks divided by their scales
     };
-    std::vector<NearInfraredPoint> near_infrared_locus_; // M0V onward, 0.1-subtype steps
+    // M0V onward in 0.1-subtype steps, sorted by scaled M_J so the nearest-point search can stop once the
+    // M_J difference alone exceeds the best distance.
+    std::vector<NearInfraredPoint> near_infrared_locus_;
 };
 
 } // namespace starcensus::photometry
