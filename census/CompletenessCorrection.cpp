@@ -5,8 +5,10 @@
 
 #include <Eigen/Dense>
 
+#include <array>
 #include <cmath>
 #include <limits>
+#include <map>
 #include <random>
 
 namespace starcensus::census {
@@ -17,36 +19,52 @@ namespace {
 constexpr std::uint64_t kCorrectionStreamBase = 0xc0de000000000000ULL;
 constexpr int kMaxParameterTries = 100;
 
-// Per unit density and per category, the expected systems inside R that lie beyond the limits
-// (missing) and all of them (full), for one set of mass-cell shares.
-struct CategoryCounts {
-    std::vector<double> missing = std::vector<double>(photometry::kCategoryCount, 0.0);
-    std::vector<double> full = std::vector<double>(photometry::kCategoryCount, 0.0);
+using PerCategory = std::array<double, photometry::kCategoryCount>;
+
+/// One mass cell's contribution to a category's unseen systems: per unit density and per unit IMF share
+/// of the cell, the systems inside R that lie beyond the limits (pc^3 x element weight).
+struct UnseenTerm {
+    std::uint32_t cell;
+    photometry::Category category;
+    double volume_pc3;
 };
 
-/// Per model element, the volume inside R (pc^3) where it lies beyond the limits; it does not depend on
-/// the mass-function parameters, so it is computed once per radius, not once per draw.
-std::vector<double> unseenVolumesPc3(const LuminosityModel& model, double radius_pc,
-                                     const MagnitudeLimits& limits) {
+/// The unseen terms at one radius, merged per (cell, category) and without the elements that are seen
+/// everywhere inside R. They do not depend on the mass-function parameters, so the per-draw work is one
+/// multiply-add per term instead of one per model element (60 age cells per brown-dwarf mass cell).
+std::vector<UnseenTerm> unseenTerms(const LuminosityModel& model, double radius_pc,
+                                    const MagnitudeLimits& limits) {
     const double volume = sphereVolumePc3(radius_pc);
-    std::vector<double> unseen;
-    unseen.reserve(model.elements().size());
+    std::map<std::pair<std::uint32_t, photometry::Category>, double> merged;
     for (const LuminosityModel::Element& element : model.elements()) {
-        unseen.push_back(volume - effectiveVolumePc3(element.abs_g_mag, radius_pc, limits));
+        const double unseen = volume - effectiveVolumePc3(element.abs_g_mag, radius_pc, limits);
+        if (unseen > 0.0) {
+            merged[{element.cell, element.category}] += element.weight * unseen;
+        }
+    }
+    std::vector<UnseenTerm> terms;
+    for (const auto& [key, volume_pc3] : merged) {
+        terms.push_back({key.first, key.second, volume_pc3});
+    }
+    return terms;
+}
+
+/// Expected unseen systems per category inside R, per unit density, for one set of mass-cell shares.
+PerCategory unseenCounts(const std::vector<UnseenTerm>& terms, const std::vector<double>& shares) {
+    PerCategory unseen{};
+    for (const UnseenTerm& term : terms) {
+        unseen[term.category] += shares[term.cell] * term.volume_pc3;
     }
     return unseen;
 }
 
-CategoryCounts categoryCounts(const LuminosityModel& model, const std::vector<double>& shares,
-                              double volume_pc3, const std::vector<double>& unseen_volumes_pc3) {
-    CategoryCounts counts;
-    for (std::size_t e = 0; e < model.elements().size(); ++e) {
-        const LuminosityModel::Element& element = model.elements()[e];
-        const double systems = shares[element.cell] * element.weight;
-        counts.full[element.category] += systems * volume_pc3;
-        counts.missing[element.category] += systems * unseen_volumes_pc3[e];
+/// Expected systems per category inside R (seen or not), per unit density.
+PerCategory allCounts(const LuminosityModel& model, const std::vector<double>& shares, double volume_pc3) {
+    PerCategory all{};
+    for (const LuminosityModel::Element& element : model.elements()) {
+        all[element.category] += shares[element.cell] * element.weight * volume_pc3;
     }
-    return counts;
+    return all;
 }
 
 // Parameters drawn from N(values, covariance), redrawn while outside the fit's box (the best fit itself
@@ -95,9 +113,9 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
                                                          std::vector<std::vector<double>>(groups.size()));
     auto missing = counts;
     std::vector<std::vector<double>> totals(radii);
-    std::vector<std::vector<double>> unseen_volumes;
+    std::vector<std::vector<UnseenTerm>> unseen_terms;
     for (const double radius : radii_pc) {
-        unseen_volumes.push_back(unseenVolumesPc3(model, radius, limits));
+        unseen_terms.push_back(unseenTerms(model, radius, limits));
     }
     for (std::size_t d = 0; d < draws; ++d) {
         Xoshiro256 random(seed, kCorrectionStreamBase + d);
@@ -105,12 +123,11 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
         const std::vector<double> shares =
             model.cellShares(InitialMassFunction(imfWithParameters(fit.family, fit.imf, theta)));
         for (std::size_t r = 0; r < radii; ++r) {
-            const CategoryCounts expected =
-                categoryCounts(model, shares, sphereVolumePc3(radii_pc[r]), unseen_volumes[r]);
-            std::vector<double> unseen(photometry::kCategoryCount, 0.0);
+            const PerCategory expected = unseenCounts(unseen_terms[r], shares);
+            PerCategory unseen{};
             double unseen_total = 0.0;
             for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
-                const double mean = theta[0] * expected.missing[k];
+                const double mean = theta[0] * expected[k];
                 if (mean > 0.0) {
                     unseen[k] = static_cast<double>(std::poisson_distribution<std::int64_t>(mean)(random));
                     unseen_total += unseen[k];
@@ -132,8 +149,8 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
     const std::vector<double> best_shares = model.cellShares(InitialMassFunction(fit.imf));
     std::vector<CorrectedRadius> result;
     for (std::size_t r = 0; r < radii; ++r) {
-        const CategoryCounts best =
-            categoryCounts(model, best_shares, sphereVolumePc3(radii_pc[r]), unseen_volumes[r]);
+        const PerCategory best_all = allCounts(model, best_shares, sphereVolumePc3(radii_pc[r]));
+        const PerCategory best_unseen = unseenCounts(unseen_terms[r], best_shares);
         CorrectedRadius corrected;
         corrected.radius_pc = radii_pc[r];
         for (std::size_t g = 0; g < groups.size(); ++g) {
@@ -141,8 +158,8 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
             double unseen = 0.0;
             for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
                 if (groups[g].categories.test(k)) {
-                    full += best.full[k];
-                    unseen += best.missing[k];
+                    full += best_all[k];
+                    unseen += best_unseen[k];
                 }
             }
             CorrectedGroup group;

@@ -120,6 +120,18 @@ double InitialMassFunction::fractionBetween(double low_msun, double high_msun) c
     return sum / total_;
 }
 
+double InitialMassFunction::fractionBelow(double mass_msun) const {
+    double sum = 0.0;
+    for (const Piece& piece : pieces_) {
+        if (mass_msun >= piece.high) {
+            sum += piece.integral;
+        } else if (mass_msun > piece.low) {
+            sum += integrate(piece, piece.low, mass_msun);
+        }
+    }
+    return sum / total_;
+}
+
 double InitialMassFunction::sample(Xoshiro256& random) const {
     const double u = random.uniform();
     const auto chosen = std::upper_bound(cumulative_.begin(), cumulative_.end(), u);

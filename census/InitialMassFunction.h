@@ -50,6 +50,8 @@ class InitialMassFunction {
     double density(double mass_msun) const;
     /// The fraction of systems with mass in [low, high] (exact integral of density()).
     double fractionBetween(double low_msun, double high_msun) const;
+    /// The fraction of systems with mass below `mass_msun` (fractionBetween(0, mass_msun)).
+    double fractionBelow(double mass_msun) const;
     /// One mass (Msun), by exact inversion (power-law pieces) or truncated-normal rejection (log-normal).
     double sample(Xoshiro256& random) const;
 
