@@ -7,14 +7,17 @@
 
 namespace starcensus::census {
 
-double sampleQuantile(std::span<double> values, double q) {
-    if (values.empty()) {
-        return std::nan("");
-    }
+namespace {
+/// Quantile q of values[first, end) where every element before `first` is no larger than any after it
+/// (so the order statistics from `first` on are those of the whole); `first` moves past the lower
+/// order statistic found, ready for a larger q. Hyndman & Fan 1996, definition 7.
+double quantileFrom(std::span<double> values, std::size_t& first, double q) {
     const double position = std::clamp(q, 0.0, 1.0) * static_cast<double>(values.size() - 1);
-    const auto lower = static_cast<std::size_t>(std::floor(position));
+    const auto lower = std::max(first, static_cast<std::size_t>(std::floor(position)));
     const auto upper = std::min(lower + 1, values.size() - 1);
-    std::nth_element(values.begin(), values.begin() + static_cast<std::ptrdiff_t>(lower), values.end());
+    std::nth_element(values.begin() + static_cast<std::ptrdiff_t>(first),
+                     values.begin() + static_cast<std::ptrdiff_t>(lower), values.end());
+    first = lower;
     const double lower_value = values[lower];
     if (upper == lower) {
         return lower_value;
@@ -23,12 +26,30 @@ double sampleQuantile(std::span<double> values, double q) {
         *std::min_element(values.begin() + static_cast<std::ptrdiff_t>(lower) + 1, values.end());
     return lower_value + (position - static_cast<double>(lower)) * (upper_value - lower_value);
 }
+} // namespace
+
+double sampleQuantile(std::span<double> values, double q) {
+    if (values.empty()) {
+        return std::nan("");
+    }
+    std::size_t first = 0;
+    return quantileFrom(values, first, q);
+}
 
 IntervalSummary summarizeDraws(std::span<double> draws) {
-    std::sort(draws.begin(), draws.end());
-    const auto quantile = [&](double q) { return sampleQuantile(draws, q); };
-    return {quantile(0.5), quantile(0.5 - kProbability68 / 2), quantile(0.5 + kProbability68 / 2),
-            quantile(0.5 - kProbability95 / 2), quantile(0.5 + kProbability95 / 2)};
+    if (draws.empty()) {
+        const double nan = std::nan("");
+        return {nan, nan, nan, nan, nan};
+    }
+    // Five selections on shrinking ranges, in increasing q: a few passes over the draws, not a sort.
+    std::size_t first = 0;
+    IntervalSummary summary;
+    summary.lo95 = quantileFrom(draws, first, 0.5 - kProbability95 / 2);
+    summary.lo68 = quantileFrom(draws, first, 0.5 - kProbability68 / 2);
+    summary.median = quantileFrom(draws, first, 0.5);
+    summary.hi68 = quantileFrom(draws, first, 0.5 + kProbability68 / 2);
+    summary.hi95 = quantileFrom(draws, first, 0.5 + kProbability95 / 2);
+    return summary;
 }
 
 IntervalSummary poissonInterval(double count) {

@@ -27,7 +27,7 @@ reports::PipelineSettings mockRun(const std::filesystem::path& directory) {
     settings.inputs = {(directory / "mock.fits").string()};
     settings.output_directory = directory / "out";
     settings.census.radii_text = "4,6";
-    settings.census.draws.draws = 300;
+    settings.census.draws.draws = 1000;
     settings.census.draws.seed = 5;
     settings.census.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4"};
     census::validate(settings.census);
@@ -76,7 +76,7 @@ TEST_CASE(
     CHECK(result.hosts > 50); // 0.1 systems pc^-3 x 905 pc^3 within 6 pc, most catalogued
     CHECK(checked["hosts"]["min_p_member"].get<double>() >= 0.5);
     // draws.fits: one row per radius and draw, count and fraction columns per class and group.
-    CHECK(checked["draws"]["rows"] == 2 * 300);
+    CHECK(checked["draws"]["rows"] == 2 * 1000);
     CHECK(checked["draws"]["columns"].get<std::vector<std::string>>() ==
           reports::drawColumnNames(settings.census.groups));
     CHECK(checked["draws"]["columns"][3] == "n_O");
@@ -85,8 +85,8 @@ TEST_CASE(
     CHECK(checked["draws"]["fractions_sum_to_one"] == true);
     // priors.json against scipy.stats: the Dirichlet marginals (beta.ppf with alpha_c, a0 - alpha_c) and
     // the groups' Betas give the stored quantiles within 0.01 in fraction (the tolerance). The
-    // densities' gamma.cdf at the stored quantiles is compared with the levels; with 1200 deviates a
-    // stored quantile's level scatters by sqrt(0.25 / 1200) = 0.014, so the bound is 0.01 + 4 sigma (the
+    // densities' gamma.cdf at the stored quantiles is compared with the levels; with 4000 deviates a
+    // stored quantile's level scatters by sqrt(0.25 / 4000) = 0.008, so the bound is 0.01 + 7 sigma (the
     // tight density round trip, with 20000 deviates, is in tests/census/PriorsTest.cpp).
     MESSAGE("priors against scipy: " << checked["priors"].dump());
     CHECK(checked["priors"]["dirichlet_fraction"].get<double>() <= 0.01);
@@ -102,7 +102,7 @@ TEST_CASE(
     for (std::string line; std::getline(csv, line);) {
         ++lines;
     }
-    CHECK(lines == 600);
+    CHECK(lines == 2 * 1000);
 
     // provenance.json: the input's size and checksum, the options, the seed, the timings.
     std::ifstream provenance_file(settings.output_directory / "provenance.json");
