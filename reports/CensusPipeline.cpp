@@ -102,8 +102,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
     // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
     // the scan, so it runs beside the census instead of after it.
-    std::future<nlohmann::json> input_files =
-        std::async(std::launch::async, [&paths] { return inputFilesJson(paths); });
+    std::future<nlohmann::json> input_files = std::async(
+        std::launch::async, [&paths, &settings] { return inputFilesJson(paths, settings.checksum); });
     photometry::ScanSettings scan_settings = settings.scan;
     scan_settings.min_parallax_mas =
         1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;

@@ -13,6 +13,7 @@
 #include "census/QualityCuts.h"
 #include "photometry/CatalogScan.h"
 #include "reports/HostsOutput.h"
+#include "reports/Provenance.h"
 
 #include <nlohmann/json.hpp>
 
@@ -32,6 +33,7 @@ struct PipelineSettings {
     HostListSettings hosts;                   // seed and threads are taken from census.draws
     nlohmann::json options;                   // every option value of the command (optionValuesJson)
     bool show_progress = false;               // one line per stage on `log` (set when stderr is a terminal)
+    ChecksumAlgorithm checksum = ChecksumAlgorithm::Xxh128; // input fingerprints in provenance.json
 };
 
 struct PipelineTimings {

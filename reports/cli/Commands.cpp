@@ -245,6 +245,10 @@ int runCommand(const std::vector<std::string>& arguments) {
     bool no_report = false;
     add("no-report", po::bool_switch(&no_report),
         "skip report.html and figures/ (write them later with starcensus report DIR)");
+    std::string checksum_name = "xxh128";
+    add("checksum", po::value(&checksum_name)->default_value(checksum_name)->value_name("ALGORITHM"),
+        "fingerprint of each input in provenance.json: xxh128 (as xxh128sum prints it), sha256 (as "
+        "sha256sum), or none");
     reports::HostListSettings hosts;
     po::options_description options;
     options.add(commonOptions(common))
@@ -273,6 +277,7 @@ int runCommand(const std::vector<std::string>& arguments) {
     census::validate(luminosity_settings);
     settings.luminosity = luminosity_settings;
     settings.hosts = hosts;
+    settings.checksum = reports::checksumAlgorithmNamed(checksum_name);
     settings.options = reports::optionValuesJson(values);
     settings.show_progress = photometry::stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);

@@ -51,11 +51,12 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         const char* arguments;
         const char* expected; // part of the message
     };
-    const std::array<Case, 6> cases = {{
+    const std::array<Case, 7> cases = {{
         {"run missing.fits --out out", "missing.fits"},
         {"run notes.fits --out out", "notes.fits"},
         {"run notes.fits --radius -5 --out out", "--radius"},
         {"run notes.fits --draws 0 --out out", "--draws"},
+        {"run notes.fits --checksum md5 --out out", "--checksum"},
         {"run notes.fits --no-such-option 1 --out out", "no-such-option"},
         {"inspect", "--input"},
     }};

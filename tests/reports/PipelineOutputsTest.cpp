@@ -110,8 +110,9 @@ TEST_CASE(
     CHECK(provenance["schema"] == "starcensus.provenance/1");
     CHECK(provenance["seed"] == 5);
     CHECK(provenance["inputs"][0]["size_bytes"] == std::filesystem::file_size(scratch.path() / "mock.fits"));
-    CHECK(provenance["inputs"][0]["sha256"] ==
-          runReferencePython("sha256_file.py", (scratch.path() / "mock.fits").string()).substr(0, 64));
+    CHECK(provenance["inputs"][0]["xxh128"] ==
+          runReferencePython("checksum_file.py", "xxh128 " + (scratch.path() / "mock.fits").string())
+              .substr(0, 32));
     CHECK(provenance["command_options"]["options"]["radius"] == "4,6");
     CHECK(provenance["timings_s"]["draws"].get<double>() > 0.0);
     std::ifstream priors_file(settings.output_directory / "priors.json");

@@ -11,19 +11,25 @@
 
 using namespace starcensus;
 
-TEST_CASE("SHA-256 matches the published test vectors and Python's hashlib") {
-    // FIPS 180-2, Appendix B.1 ("abc") and B.2 (the 448-bit message).
+TEST_CASE("checksums match the published test vectors, hashlib and the xxhash binding") {
+    // SHA-256: FIPS 180-2, Appendix B.1 ("abc") and B.2 (the 448-bit message).
     CHECK(reports::sha256Hex("abc") == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
     CHECK(reports::sha256Hex("abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq") ==
           "248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1");
     // The empty message (FIPS 180-4 examples, from memory).
     CHECK(reports::sha256Hex("") == "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
+    // XXH128 of "" and "abc" as `xxh128sum` (Debian package xxhash 0.8.1) prints them.
+    CHECK(reports::xxh128Hex("") == "99aa06d3014798d86001c324468d497f");
+    CHECK(reports::xxh128Hex("abc") == "06b05ab6733a618578af5f94892f3950");
 
-    testing::ScratchDirectory scratch("starcensus-sha256");
+    testing::ScratchDirectory scratch("starcensus-checksums");
     const auto path = scratch.path() / "abc.txt";
     std::ofstream(path, std::ios::binary) << "abc";
-    CHECK(reports::sha256File(path) == reports::sha256Hex("abc"));
-    // A file larger than the 1 MiB read block, against /usr/bin/python3 hashlib.
+    using reports::ChecksumAlgorithm;
+    CHECK(reports::fileChecksum(path, ChecksumAlgorithm::Sha256) == reports::sha256Hex("abc"));
+    CHECK(reports::fileChecksum(path, ChecksumAlgorithm::Xxh128) == reports::xxh128Hex("abc"));
+    CHECK(reports::fileChecksum(path, ChecksumAlgorithm::None).empty());
+    // A file larger than the 1 MiB read block, against /usr/bin/python3 hashlib and python3-xxhash.
     const auto big = scratch.path() / "big.bin";
     {
         std::ofstream out(big, std::ios::binary);
@@ -31,10 +37,16 @@ TEST_CASE("SHA-256 matches the published test vectors and Python's hashlib") {
             out.put(static_cast<char>((i * 7919) % 251));
         }
     }
-    CHECK(reports::sha256File(big) ==
-          testing::runReferencePython("sha256_file.py", big.string()).substr(0, 64));
-    CHECK_THROWS_WITH_AS(reports::sha256File(scratch.path() / "missing"), doctest::Contains("missing"),
-                         InputError);
+    for (const ChecksumAlgorithm algorithm : {ChecksumAlgorithm::Sha256, ChecksumAlgorithm::Xxh128}) {
+        const std::string name = reports::checksumAlgorithmName(algorithm);
+        const std::string expected =
+            testing::runReferencePython("checksum_file.py", name + " " + big.string());
+        CHECK(reports::fileChecksum(big, algorithm) == expected.substr(0, expected.find('\n')));
+        CHECK(reports::checksumAlgorithmNamed(name) == algorithm);
+    }
+    CHECK_THROWS_WITH_AS(reports::fileChecksum(scratch.path() / "missing", ChecksumAlgorithm::Xxh128),
+                         doctest::Contains("missing"), InputError);
+    CHECK_THROWS_WITH_AS(reports::checksumAlgorithmNamed("md5"), doctest::Contains("--checksum"), InputError);
 }
 
 TEST_CASE("every option value is recorded, with the ones given on the command line") {
