@@ -13,6 +13,7 @@ std::vector<CatalogInspection> inspectCatalogs(const std::vector<std::string>& p
                                                const ScanSettings& settings) {
     ScanSettings counting = settings;
     counting.keep_candidates = false;
+    counting.null_counts_over_all_rows = true;
     std::vector<CatalogInspection> inspections;
     for (const auto& path : paths) {
         CatalogInspection inspection;

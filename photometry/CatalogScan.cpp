@@ -58,7 +58,9 @@ double CatalogRow::*rowMember(CatalogField field) {
 
 ScanAccumulator::ScanAccumulator(FileScanResult& result, const ScanSettings& settings)
     : result_(result), min_parallax_mas_(settings.min_parallax_mas),
-      candidate_sigma_(settings.candidate_sigma), keep_candidates_(settings.keep_candidates) {
+      candidate_sigma_(settings.candidate_sigma), keep_candidates_(settings.keep_candidates),
+      null_counts_over_all_rows_(settings.null_counts_over_all_rows) {
+    result.report.null_counts_over_all_rows = null_counts_over_all_rows_;
     for (const auto& resolved : result.report.mapping.fields) {
         if (!resolved) {
             continue;
@@ -85,6 +87,9 @@ void ScanAccumulator::countNulls(const CatalogRow& row) {
 }
 
 void ScanAccumulator::keep(const CatalogRow& row) {
+    if (!null_counts_over_all_rows_) {
+        countNulls(row);
+    }
     ScanCounts& counts = result_.report.counts;
     ++counts.candidates;
     counts.candidates_nonpositive_parallax += row.parallax_mas <= 0.0 ? 1 : 0;
@@ -105,11 +110,14 @@ void ScanAccumulator::finish(const std::string& where) {
         report.warnings.push_back(where + ": the table has zero rows; no candidates");
         return;
     }
+    const bool all_rows = report.null_counts_over_all_rows;
+    const std::int64_t counted = all_rows ? report.counts.rows_read : report.counts.candidates;
     for (const auto& resolved : report.mapping.fields) {
-        if (resolved &&
-            report.null_counts[static_cast<std::size_t>(resolved->field)] == report.counts.rows_read) {
+        if (resolved && counted > 0 &&
+            report.null_counts[static_cast<std::size_t>(resolved->field)] == counted) {
             report.warnings.push_back(where + ": column " + resolved->column_name + " (" +
-                                      std::string(fieldName(resolved->field)) + ") is null in every row");
+                                      std::string(fieldName(resolved->field)) + ") is null in every " +
+                                      (all_rows ? "row" : "candidate"));
         }
     }
 }

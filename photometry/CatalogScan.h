@@ -37,8 +37,11 @@ struct ScanSettings {
     unsigned threads = 0; // scanning threads; 0 = std::thread::hardware_concurrency(). Files are scanned
                           // in parallel; with fewer files than threads, uncompressed FITS files are also
                           // split into row ranges scanned in parallel
-    bool keep_candidates = true;          // false: only count and report (used by inspect)
-    ProgressCounters* progress = nullptr; // optional: rows read and files finished (photometry/Progress.h)
+    bool keep_candidates = true;            // false: only count and report (used by inspect)
+    bool null_counts_over_all_rows = false; // true: FileScanReport::null_counts over every row (inspect);
+                                            // false: over the candidates only, which spares the scan a
+                                            // pass over every mapped field of every row
+    ProgressCounters* progress = nullptr;   // optional: rows read and files finished (photometry/Progress.h)
 };
 
 /// Row counts of one file or of all files. Photometry counts refer to the candidates.
@@ -68,14 +71,15 @@ struct FileScanReport {
     std::string hdu_name; // EXTNAME, "" if none; "CSV" for CSV input
     std::int64_t rows = 0;
     ColumnMapping mapping;
-    // Null values per field over all rows (missing, NaN, TNULL, or a flux-over-error <= 0); only fields
-    // that are mapped can be non-zero.
+    // Null values per field (missing, NaN, TNULL, or a flux-over-error <= 0) over every row, or over the
+    // candidates (ScanSettings::null_counts_over_all_rows); only fields that are mapped can be non-zero.
     std::array<std::int64_t, kCatalogFieldCount> null_counts{};
+    bool null_counts_over_all_rows = false;
     double parallax_min_mas = std::numeric_limits<double>::quiet_NaN(); // over rows with a parallax
     double parallax_max_mas = std::numeric_limits<double>::quiet_NaN();
     ScanCounts counts;
     // Expected but notable outcomes for the caller to print: zero rows, a mapped column that is null in
-    // every row, every parallax missing.
+    // every row (or every candidate), every parallax missing.
     std::vector<std::string> warnings;
 };
 

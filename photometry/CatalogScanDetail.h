@@ -25,7 +25,9 @@ class ScanAccumulator {
 
     /// One decoded row: every mapped field filled (canonical units), the others missing.
     void add(const CatalogRow& row) {
-        countNulls(row);
+        if (null_counts_over_all_rows_) {
+            countNulls(row);
+        }
         if (passes(row.parallax_mas, row.parallax_error_mas)) {
             keep(row);
         }
@@ -57,7 +59,8 @@ class ScanAccumulator {
         }
         return true;
     }
-    /// A row that passed: counts its missing photometry and keeps it (unless only counting).
+    /// A row that passed: counts its missing photometry (and its nulls, when they are counted over the
+    /// candidates) and keeps it (unless only counting).
     void keep(const CatalogRow& row);
     /// Adds the warnings that depend on the whole file; `where` names the file (and HDU).
     void finish(const std::string& where);
@@ -76,6 +79,7 @@ class ScanAccumulator {
     double min_parallax_mas_;
     double candidate_sigma_;
     bool keep_candidates_;
+    bool null_counts_over_all_rows_;
 };
 
 /// Adds a part of a file scanned separately (the rows after those already in `whole`): counts, null

@@ -775,21 +775,27 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
     std::vector<double> parallax(slice_rows);
     std::vector<double> parallax_error(slice_rows);
     auto& null_counts = result.report.null_counts;
+    const bool all_row_nulls = settings.null_counts_over_all_rows;
     for (LONGLONG block_first = first; block_first < first + count; block_first += rows_per_block) {
         const auto rows = static_cast<std::size_t>(std::min(rows_per_block, first + count - block_first));
         const unsigned char* raw = read(window, block_first, static_cast<LONGLONG>(rows));
         for (std::size_t slice_first = 0; slice_first < rows; slice_first += slice_rows) {
             const std::size_t slice = std::min(slice_rows, rows - slice_first);
             const unsigned char* slice_raw = raw + slice_first * row_bytes;
-            for (std::size_t f = 0; f < plan.fields.size(); ++f) {
-                const MappedField& field = plan.fields[f];
-                null_counts[field.field_index] +=
-                    f == plan.parallax ? decodeColumn(field, slice_raw, row_bytes, slice, parallax.data())
-                    : f == plan.parallax_error
-                        ? decodeColumn(field, slice_raw, row_bytes, slice, parallax_error.data())
-                        : countNulls(field, slice_raw, row_bytes, slice);
+            const std::int64_t parallax_nulls =
+                decodeColumn(plan.fields[plan.parallax], slice_raw, row_bytes, slice, parallax.data());
+            const std::int64_t parallax_error_nulls = decodeColumn(
+                plan.fields[plan.parallax_error], slice_raw, row_bytes, slice, parallax_error.data());
+            if (all_row_nulls) {
+                for (std::size_t f = 0; f < plan.fields.size(); ++f) {
+                    const MappedField& field = plan.fields[f];
+                    null_counts[field.field_index] += f == plan.parallax ? parallax_nulls
+                                                      : f == plan.parallax_error
+                                                          ? parallax_error_nulls
+                                                          : countNulls(field, slice_raw, row_bytes, slice);
+                }
             }
-            if (plan.source_id) {
+            if (all_row_nulls && plan.source_id) {
                 forEachValue(*plan.source_id, slice_raw, row_bytes, slice, [&](const unsigned char* at) {
                     null_counts[static_cast<std::size_t>(CatalogField::SourceId)] +=
                         plan.source_id->identifier(at - plan.source_id->offset) == kMissingSourceId ? 1 : 0;

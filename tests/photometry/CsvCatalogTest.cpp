@@ -31,6 +31,7 @@ TEST_CASE("CSV rows round-trip, with Gaia names implying mas and missing fields 
     CHECK(isCsvPath(path));
     ScanSettings settings;
     settings.min_parallax_mas = 0.5;
+    settings.null_counts_over_all_rows = true;
     const CatalogScan scan = scanCatalogs({path}, settings);
     const FileScanReport& report = scan.files[0];
     CHECK(report.hdu_name == "CSV");

@@ -41,6 +41,7 @@ FixtureTable smallGaiaTable() {
 ScanSettings everything() {
     ScanSettings settings;
     settings.min_parallax_mas = -std::numeric_limits<double>::infinity();
+    settings.null_counts_over_all_rows = true;
     return settings;
 }
 
@@ -52,6 +53,7 @@ TEST_CASE("known values come back exactly, in canonical units, with the mapping 
     writeFitsTable(path, smallGaiaTable());
     ScanSettings settings;
     settings.min_parallax_mas = 1.0; // 1 kpc
+    settings.null_counts_over_all_rows = true;
     const CatalogScan scan = scanCatalogs({path}, settings);
 
     REQUIRE(scan.files.size() == 1);
@@ -177,6 +179,7 @@ TEST_CASE("the fast block scan equals the column-by-column reference, also from 
     ScanSettings settings;
     settings.min_parallax_mas = 5.0;
     settings.block_bytes = 1000; // ~8 rows per block: many blocks and a short last one
+    settings.null_counts_over_all_rows = true;
     const CatalogScan scan = scanCatalogs({path}, settings);
     const FileScanReport& report = scan.files[0];
     CHECK(report.mapping[CatalogField::Parallax]->route == MappingRoute::Ucd);
@@ -199,6 +202,17 @@ TEST_CASE("the fast block scan equals the column-by-column reference, also from 
     CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::Bp)] ==
           static_cast<std::int64_t>(null_bp));
     CHECK(null_bp > 200);
+    // Without the all-row pass (what run does), the nulls are those of the candidates.
+    settings.null_counts_over_all_rows = false;
+    const CatalogScan candidates_only = scanCatalogs({path}, settings);
+    checkSameRows(candidates_only.candidates, expected);
+    CHECK(candidates_only.totals == scan.totals);
+    const auto null_bp_candidates = std::count_if(
+        expected.begin(), expected.end(), [](const CatalogRow& row) { return std::isnan(row.bp_mag); });
+    CHECK(candidates_only.files[0].null_counts[static_cast<std::size_t>(CatalogField::Bp)] ==
+          null_bp_candidates);
+    CHECK(null_bp_candidates > 20);
+    settings.null_counts_over_all_rows = true;
 
     const CatalogScan from_gz = scanCatalogs({gz_path}, settings);
     checkSameRows(from_gz.candidates, expected);
@@ -224,10 +238,12 @@ TEST_CASE("every read path gives the reference rows: mapped, gzip-streamed, bzip
     const std::string bz2_path = directory.file("two.fits.bz2");
     runReferencePython("bzip2_file.py", "'" + path + "' '" + bz2_path + "'");
 
-    for (const std::string hdu : {"", "2", "second"}) {
+    for (const auto& [hdu, all_row_nulls] :
+         std::vector<std::pair<std::string, bool>>{{"", true}, {"2", true}, {"second", false}}) {
         CAPTURE(hdu);
         ScanSettings settings;
         settings.hdu = hdu;
+        settings.null_counts_over_all_rows = all_row_nulls;
         settings.min_parallax_mas = 5.0;
         settings.block_bytes = 1000; // ~8 rows per block: many blocks, slices and a short last one
         settings.threads = 1;
@@ -452,8 +468,12 @@ TEST_CASE("empty tables, missing and negative parallaxes and all-null photometry
     CHECK(scan.candidates[1].parallax_mas == 0.0);
     CHECK(scan.candidates[1].file_index == 1);
     REQUIRE(scan.files[1].warnings.size() == 1);
-    CHECK(scan.files[1].warnings[0] == odd + " [HDU 1]: column bpmag (bp) is null in every row");
+    CHECK(scan.files[1].warnings[0] == odd + " [HDU 1]: column bpmag (bp) is null in every candidate");
     CHECK(scan.files[1].parallax_min_mas == -50.0);
+    settings.null_counts_over_all_rows = true;
+    const CatalogScan all_rows = scanCatalogs({odd}, settings);
+    REQUIRE(all_rows.files[0].warnings.size() == 1);
+    CHECK(all_rows.files[0].warnings[0] == odd + " [HDU 1]: column bpmag (bp) is null in every row");
 }
 
 TEST_CASE("inspect reports HDUs, mapping routes, units, null counts and the parallax range") {
