@@ -63,7 +63,10 @@ InitialMassFunction::InitialMassFunction(const ImfSettings& settings) : settings
         piece.low = std::max(piece.low, settings.mass_min_msun);
         piece.high = std::min(piece.high, settings.mass_max_msun);
         if (piece.low < piece.high) {
-            piece.integral = integrate(piece, piece.low, piece.high);
+            piece.ln_low = std::log(piece.low);
+            piece.ln_high = std::log(piece.high);
+            piece.primitive_low = primitive(piece, piece.ln_low);
+            piece.integral = primitive(piece, piece.ln_high) - piece.primitive_low;
             total_ += piece.integral;
             pieces_.push_back(piece);
         }
@@ -76,19 +79,22 @@ InitialMassFunction::InitialMassFunction(const ImfSettings& settings) : settings
     cumulative_.back() = 1.0;
 }
 
-double InitialMassFunction::integrate(const Piece& piece, double low, double high) {
+double InitialMassFunction::primitive(const Piece& piece, double ln_mass) {
     if (piece.log_normal) {
         // ∫ A exp(-(l-mu)^2 / 2 sigma^2) dl over l = log10 m.
         const double scale = piece.sigma * std::numbers::sqrt2;
         return piece.coefficient * piece.sigma * std::sqrt(std::numbers::pi / 2.0) *
-               (std::erf((std::log10(high) - piece.mu) / scale) -
-                std::erf((std::log10(low) - piece.mu) / scale));
+               std::erf((ln_mass / std::numbers::ln10 - piece.mu) / scale);
     }
     const double power = 1.0 - piece.slope;
     if (std::abs(power) < 1e-12) {
-        return piece.coefficient * std::log(high / low);
+        return piece.coefficient * ln_mass;
     }
-    return piece.coefficient * (std::pow(high, power) - std::pow(low, power)) / power;
+    return piece.coefficient * std::exp(power * ln_mass) / power;
+}
+
+double InitialMassFunction::integrate(const Piece& piece, double low, double high) {
+    return primitive(piece, std::log(high)) - primitive(piece, std::log(low));
 }
 
 double InitialMassFunction::densityOf(const Piece& piece, double mass_msun) {
@@ -120,13 +126,13 @@ double InitialMassFunction::fractionBetween(double low_msun, double high_msun) c
     return sum / total_;
 }
 
-double InitialMassFunction::fractionBelow(double mass_msun) const {
+double InitialMassFunction::fractionBelowLn(double ln_mass_msun) const {
     double sum = 0.0;
     for (const Piece& piece : pieces_) {
-        if (mass_msun >= piece.high) {
+        if (ln_mass_msun >= piece.ln_high) {
             sum += piece.integral;
-        } else if (mass_msun > piece.low) {
-            sum += integrate(piece, piece.low, mass_msun);
+        } else if (ln_mass_msun > piece.ln_low) {
+            sum += primitive(piece, ln_mass_msun) - piece.primitive_low;
         }
     }
     return sum / total_;

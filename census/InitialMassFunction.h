@@ -8,6 +8,7 @@
 //     dN/dlog10(m) ∝ m^-1.3 (Salpeter-like x = 1.3) above.
 #include "census/Random.h"
 
+#include <cmath>
 #include <cstdint>
 #include <string>
 #include <vector>
@@ -51,7 +52,10 @@ class InitialMassFunction {
     /// The fraction of systems with mass in [low, high] (exact integral of density()).
     double fractionBetween(double low_msun, double high_msun) const;
     /// The fraction of systems with mass below `mass_msun` (fractionBetween(0, mass_msun)).
-    double fractionBelow(double mass_msun) const;
+    double fractionBelow(double mass_msun) const { return fractionBelowLn(std::log(mass_msun)); }
+    /// The same at ln(mass / Msun), for callers that evaluate fixed masses under many IMFs (one exp or
+    /// erf per piece instead of a pow).
+    double fractionBelowLn(double ln_mass_msun) const;
     /// One mass (Msun), by exact inversion (power-law pieces) or truncated-normal rejection (log-normal).
     double sample(Xoshiro256& random) const;
 
@@ -69,7 +73,13 @@ class InitialMassFunction {
         double mu = 0.0;
         double sigma = 1.0;
         double integral = 0.0; // number in the piece before normalisation
+        double ln_low = 0.0;   // ln(low), ln(high)
+        double ln_high = 0.0;
+        double primitive_low = 0.0; // primitive() at low
     };
+    /// The antiderivative of dN/dm at ln(m): power law coefficient m^(1-slope) / (1-slope) (or
+    /// coefficient ln m), log-normal coefficient sigma sqrt(pi/2) erf((log10 m - mu) / (sigma sqrt 2)).
+    static double primitive(const Piece& piece, double ln_mass);
     static double integrate(const Piece& piece, double low, double high);
     static double densityOf(const Piece& piece, double mass_msun);
 

@@ -153,6 +153,9 @@ LuminosityModel::LuminosityModel(double mass_min_msun, double mass_max_msun,
         edges_msun_.push_back(std::pow(10.0, log_min + j * log_step));
     }
     edges_msun_.back() = mass_max_msun;
+    for (const double edge : edges_msun_) {
+        ln_edges_msun_.push_back(std::log(edge));
+    }
     const auto add = [&](int cell, double code, float weight) {
         const double abs_g = photometry.dwarf(code).g;
         if (std::isfinite(abs_g)) {
@@ -185,9 +188,9 @@ std::vector<double> LuminosityModel::cellShares(const InitialMassFunction& imf) 
     // at every fit iteration and every completeness-correction draw). The cells are wide enough (1200
     // over four decades of mass) that the cancellation costs nothing measurable.
     std::vector<double> shares(cells());
-    double below = imf.fractionBelow(edges_msun_.front());
+    double below = imf.fractionBelowLn(ln_edges_msun_.front());
     for (std::size_t j = 0; j < shares.size(); ++j) {
-        const double next = imf.fractionBelow(edges_msun_[j + 1]);
+        const double next = imf.fractionBelowLn(ln_edges_msun_[j + 1]);
         shares[j] = next - below;
         below = next;
     }

@@ -76,6 +76,7 @@ class LuminosityModel {
   private:
     LuminosityModelSettings settings_;
     std::vector<double> edges_msun_;
+    std::vector<double> ln_edges_msun_; // ln of edges_msun_, for cellShares()
     std::vector<Element> elements_;
 };
 
