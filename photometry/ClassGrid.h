@@ -26,12 +26,14 @@ class ClassGrid {
     using ColourClassifier = std::function<Category(double bp_rp_mag, double abs_g_mag)>;
     using MagnitudeClassifier = std::function<Category(double abs_g_mag)>;
 
-    /// Evaluates the classifiers at every cell centre.
+    /// Evaluates the classifiers at every cell centre, on `threads` threads (0: one per hardware thread;
+    /// the classifiers must then be safe to call concurrently).
     ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_colour,
-              const MagnitudeClassifier& magnitude_only);
+              const MagnitudeClassifier& magnitude_only, unsigned threads = 1);
 
-    /// Classifier::classifyAbsolute() on (BP-RP, M_G), and on M_G alone for the 1-D grid.
-    static ClassGrid fromClassifier(const Classifier& classifier, const ClassGridAxes& axes = {});
+    /// Classifier::classifyClassOnly() on (BP-RP, M_G), and on M_G alone for the 1-D grid.
+    static ClassGrid fromClassifier(const Classifier& classifier, unsigned threads = 1,
+                                    const ClassGridAxes& axes = {});
 
     Category lookup(float bp_rp_mag, float abs_g_mag) const noexcept {
         const int row = cell(abs_g_mag, magnitude_min_, magnitude_cells_);

@@ -85,6 +85,30 @@ Classification Classifier::classify(const PhotometricInput& input) const {
 
 Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag,
                                             double abs_j_mag, double j_ks_mag) const {
+    Classification result = classOf(abs_g_mag, bp_rp_mag, g_rp_mag, abs_j_mag, j_ks_mag);
+    if (result.stellar_class == StellarClass::WhiteDwarf) {
+        // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
+        // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
+        const WhiteDwarfParameters parameters = white_dwarfs_.fromColourMagnitude(
+            result.bp_rp_mag, result.abs_g_mag, WhiteDwarfAtmosphere::Hydrogen);
+        result.teff_k = parameters.teff_k;
+        result.mass_msun = parameters.mass_msun;
+        if (!parameters.inside_grid) {
+            result.flags |= bit(ClassificationFlag::OutsideLocus);
+        }
+    } else if (result.stellar_class != StellarClass::Evolved && !std::isnan(result.spectral_code)) {
+        result.teff_k = locus_.valueAtCode(LocusQuantity::TeffK, result.spectral_code);
+        result.mass_msun = locus_.valueAtCode(LocusQuantity::MassMsun, result.spectral_code);
+    }
+    return result;
+}
+
+Classification Classifier::classifyClassOnly(double abs_g_mag, double bp_rp_mag) const {
+    return classOf(abs_g_mag, bp_rp_mag, kNaN, kNaN, kNaN);
+}
+
+Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
+                                   double j_ks_mag) const {
     Classification result;
     result.abs_g_mag = abs_g_mag;
     result.bp_rp_mag = bp_rp_mag;
@@ -113,8 +137,6 @@ void Classifier::setDwarf(Classification& result, double spectral_code) const {
     result.spectral_code = spectral_code;
     result.stellar_class =
         std::isnan(spectral_code) ? StellarClass::Unclassified : dwarfClassOfCode(spectral_code);
-    result.teff_k = locus_.valueAtCode(LocusQuantity::TeffK, spectral_code);
-    result.mass_msun = locus_.valueAtCode(LocusQuantity::MassMsun, spectral_code);
 }
 
 void Classifier::classifyWithColour(Classification& result) const {
@@ -127,15 +149,6 @@ void Classifier::classifyWithColour(Classification& result) const {
 
     if (colour <= settings_.white_dwarf_max_bp_rp_mag && abs_g > white_dwarf_boundary_.absGMag(colour)) {
         result.stellar_class = StellarClass::WhiteDwarf;
-        // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
-        // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
-        const WhiteDwarfParameters parameters =
-            white_dwarfs_.fromColourMagnitude(colour, abs_g, WhiteDwarfAtmosphere::Hydrogen);
-        result.teff_k = parameters.teff_k;
-        result.mass_msun = parameters.mass_msun;
-        if (!parameters.inside_grid) {
-            result.flags |= bit(ClassificationFlag::OutsideLocus);
-        }
         return;
     }
     if (colour < blue_end) {

@@ -142,7 +142,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     start = Clock::now();
     progress.begin("draws");
-    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
+    const auto grid = photometry::ClassGrid::fromClassifier(classifier, census.draws.threads);
     photometry::ProgressCounters draw_progress;
     census::DrawSettings draw_settings = census.draws;
     draw_settings.progress = &draw_progress;
