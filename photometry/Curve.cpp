@@ -12,11 +12,19 @@ double Curve::at(double at_x) const {
     if (x.empty() || !(at_x >= x.front() && at_x <= x.back())) {
         return kNaN;
     }
-    const auto upper = std::upper_bound(x.begin(), x.end(), at_x);
-    if (upper == x.end()) {
-        return y.back(); // at_x == x.back()
+    if (at_x == x.back()) {
+        return y.back();
     }
-    const auto i = static_cast<std::size_t>(std::distance(x.begin(), upper));
+    // The first x above at_x (std::upper_bound) by a branch-free halving search: the classifier calls
+    // this several times per star and re-measurement, and the comparisons are unpredictable.
+    const double* base = x.data();
+    std::size_t length = x.size();
+    while (length > 1) {
+        const std::size_t half = length / 2;
+        base = base[half - 1] <= at_x ? base + half : base;
+        length -= half;
+    }
+    const auto i = static_cast<std::size_t>(base - x.data()) + (*base <= at_x ? 1 : 0);
     const double fraction = (at_x - x[i - 1]) / (x[i] - x[i - 1]);
     return y[i - 1] + fraction * (y[i] - y[i - 1]);
 }
