@@ -155,18 +155,25 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     for (std::size_t r = 0; r < census.radii_pc.size(); ++r) {
         expected.push_back(sample.expectedCount(r));
     }
-    result.estimates = census::estimateFractions(tallies, census.radii_pc,
-                                                 hardCutCounts(rows, census.radii_pc, census.membership),
-                                                 expected, census.groups, {.seed = census.draws.seed});
-    result.priors =
-        census::estimatePriors(tallies, census.radii_pc, census.groups, {.seed = census.draws.seed});
     result.timings.draws_s = secondsSince(start);
 
     start = Clock::now();
     progress.begin("outputs");
-    // Completeness, luminosity function, mass-function fits and the corrected fractions.
+    // Three independent analyses of the draws at once: the host re-measurements (on the Monte Carlo's
+    // threads), the fractions and priors, and (here) the luminosity function, mass-function fits and
+    // corrected fractions. Each is deterministic for the seed, so the order they finish in is irrelevant.
+    std::future<HostMeasurements> host_measurements = std::async(
+        std::launch::async, [&] { return measureHosts(rows, sample, classifier, census.membership, hosts); });
+    std::future<void> fractions_and_priors = std::async(std::launch::async, [&] {
+        result.estimates = census::estimateFractions(tallies, census.radii_pc,
+                                                     hardCutCounts(rows, census.radii_pc, census.membership),
+                                                     expected, census.groups, {.seed = census.draws.seed});
+        result.priors =
+            census::estimatePriors(tallies, census.radii_pc, census.groups, {.seed = census.draws.seed});
+    });
     const LuminosityAnalysis luminosity =
         analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
+    fractions_and_priors.get();
     for (const auto& fit : luminosity.fits) {
         if (!fit.converged) {
             log << "starcensus: warning: " << census::fitModelName(fit.family) << " fit: " << fit.message
@@ -196,7 +203,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
     writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
-                                  census.quality.min_parallax_snr_to_classify, census.membership, hosts);
+                                  census.quality.min_parallax_snr_to_classify, census.membership, hosts,
+                                  host_measurements.get());
     result.timings.outputs_s = secondsSince(start);
     writeJsonFile(directory / "provenance.json",
                   provenanceJson(settings, paths, input_files.get(), result.timings,

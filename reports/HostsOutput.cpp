@@ -25,11 +25,6 @@ using photometry::FitsColumnType;
 constexpr std::uint64_t kHostStreamBase = 0x4057000000000000ULL;
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-struct Uncertainty {
-    double teff_k = kNaN;
-    double mass_msun = kNaN;
-};
-
 double halfCentral68(std::vector<double>& values, std::size_t realisations) {
     if (2 * values.size() < realisations) {
         return kNaN;
@@ -42,9 +37,10 @@ double perturbed(double value, double error, census::Xoshiro256& random) {
     return std::isfinite(error) ? value + error * random.normal() : value;
 }
 
-Uncertainty teffMassUncertainty(const photometry::CatalogRow& row, const photometry::Classifier& classifier,
-                                const census::MembershipSettings& membership,
-                                const HostListSettings& settings, std::size_t stream) {
+HostUncertainty teffMassUncertainty(const photometry::CatalogRow& row,
+                                    const photometry::Classifier& classifier,
+                                    const census::MembershipSettings& membership,
+                                    const HostListSettings& settings, std::size_t stream) {
     if (!std::isfinite(row.parallax_mas) || !std::isfinite(row.parallax_error_mas)) {
         return {};
     }
@@ -141,32 +137,43 @@ std::size_t hostRadiusIndex(const HostListSettings& settings, const std::vector<
     return static_cast<std::size_t>(found - radii_pc.begin());
 }
 
-std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
-                           const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                           const photometry::Classifier& classifier, double min_parallax_snr_to_classify,
-                           const census::MembershipSettings& membership, const HostListSettings& settings) {
-    const std::size_t r = hostRadiusIndex(settings, sample.radii());
-    std::vector<std::size_t> hosts;
+HostMeasurements measureHosts(std::span<const photometry::CatalogRow> rows,
+                              const census::PreparedSample& sample, const photometry::Classifier& classifier,
+                              const census::MembershipSettings& membership,
+                              const HostListSettings& settings) {
+    HostMeasurements measured;
+    measured.radius_index = hostRadiusIndex(settings, sample.radii());
     for (std::size_t s = 0; s < rows.size(); ++s) {
-        if (sample.probabilityWithin(s, r) >= settings.min_probability) {
-            hosts.push_back(s);
+        if (sample.probabilityWithin(s, measured.radius_index) >= settings.min_probability) {
+            measured.rows.push_back(s);
         }
     }
     // Each host has its own stream, so the result does not depend on the thread count.
-    std::vector<Uncertainty> uncertainties(hosts.size());
+    const std::vector<std::size_t>& hosts = measured.rows;
+    measured.uncertainties.resize(hosts.size());
     const unsigned threads = resolveThreadCount(settings.threads);
     {
         std::vector<std::jthread> workers;
         for (unsigned t = 0; t < threads; ++t) {
             workers.emplace_back([&, t] {
                 for (std::size_t h = t; h < hosts.size(); h += threads) {
-                    uncertainties[h] =
+                    measured.uncertainties[h] =
                         teffMassUncertainty(rows[hosts[h]], classifier, membership, settings, hosts[h]);
                 }
             });
         }
     }
+    return measured;
+}
 
+std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
+                           const census::PreparedSample& sample, const census::DrawTallies& tallies,
+                           const photometry::Classifier& classifier, double min_parallax_snr_to_classify,
+                           const census::MembershipSettings& membership, const HostListSettings& settings,
+                           const HostMeasurements& measured) {
+    const std::size_t r = measured.radius_index;
+    const std::vector<std::size_t>& hosts = measured.rows;
+    const std::vector<HostUncertainty>& uncertainties = measured.uncertainties;
     photometry::FitsTableWriter writer(
         path, "HOSTS", hostColumns(),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"},

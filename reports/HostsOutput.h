@@ -16,7 +16,9 @@
 
 #include <cstdint>
 #include <filesystem>
+#include <limits>
 #include <span>
+#include <vector>
 
 namespace starcensus::reports {
 
@@ -32,10 +34,31 @@ struct HostListSettings {
 /// it is not one of them.
 std::size_t hostRadiusIndex(const HostListSettings& settings, const std::vector<double>& radii_pc);
 
-/// Writes the host list; returns the number of hosts.
+struct HostUncertainty {
+    double teff_k = std::numeric_limits<double>::quiet_NaN();
+    double mass_msun = std::numeric_limits<double>::quiet_NaN();
+};
+
+/// The hosts (indices into the rows) and their re-measured uncertainties. Computed apart from the
+/// writing so that the pipeline can run it beside the luminosity-function fit.
+struct HostMeasurements {
+    std::size_t radius_index = 0;
+    std::vector<std::size_t> rows;
+    std::vector<HostUncertainty> uncertainties; // one per host
+};
+
+/// Selects the hosts and re-measures them (settings.threads threads; the result does not depend on the
+/// count); InputError naming --hosts-radius for a radius that is not a census radius.
+HostMeasurements measureHosts(std::span<const photometry::CatalogRow> rows,
+                              const census::PreparedSample& sample, const photometry::Classifier& classifier,
+                              const census::MembershipSettings& membership, const HostListSettings& settings);
+
+/// Writes the host list of `measured` (from measureHosts() with the same settings); returns the number
+/// of hosts.
 std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
                            const photometry::Classifier& classifier, double min_parallax_snr_to_classify,
-                           const census::MembershipSettings& membership, const HostListSettings& settings);
+                           const census::MembershipSettings& membership, const HostListSettings& settings,
+                           const HostMeasurements& measured);
 
 } // namespace starcensus::reports
