@@ -52,6 +52,15 @@ IntervalSummary summarizeDraws(std::span<double> draws) {
     return summary;
 }
 
+std::array<double, 2> centralInterval(std::span<double> values, double probability) {
+    if (values.empty()) {
+        return {std::nan(""), std::nan("")};
+    }
+    std::size_t first = 0;
+    const double low = quantileFrom(values, first, 0.5 - probability / 2);
+    return {low, quantileFrom(values, first, 0.5 + probability / 2)};
+}
+
 IntervalSummary poissonInterval(double count) {
     const auto lower_limit = [count](double probability) {
         const double tail = (1.0 - probability) / 2.0;

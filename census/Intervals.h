@@ -1,6 +1,7 @@
 #pragma once
 // Summaries of uncertain quantities: sample quantiles of Monte Carlo draws, and exact Poisson confidence
 // limits for small counts.
+#include <array>
 #include <span>
 #include <vector>
 
@@ -25,6 +26,10 @@ double sampleQuantile(std::span<double> values, double q);
 
 /// Median, 68% and 95% central intervals of the draws (reorders them).
 IntervalSummary summarizeDraws(std::span<double> draws);
+
+/// The central interval holding `probability` of the values: the quantiles (1 -+ probability) / 2
+/// (reorders them; NaN for none).
+std::array<double, 2> centralInterval(std::span<double> values, double probability);
 
 /// Exact (Garwood) confidence limits for a Poisson mean given an observed count n, as tabulated by
 /// Gehrels 1986, ApJ 303, 336 (Eqs. 1-2 with chi-square / gamma quantiles): lower = Q_gamma(n, a/2),
