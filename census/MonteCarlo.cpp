@@ -6,8 +6,10 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <limits>
 #include <numeric>
+#include <optional>
 #include <thread>
 
 namespace starcensus::census {
@@ -27,7 +29,7 @@ void forEachBlock(std::size_t count, unsigned threads, Body&& body) {
     const std::size_t blocks = (count + kBlockStars - 1) / kBlockStars;
     const auto run = [&](unsigned thread) {
         for (std::size_t block = thread; block < blocks; block += threads) {
-            body(block, block * kBlockStars, std::min(count, (block + 1) * kBlockStars), thread);
+            body(block * kBlockStars, std::min(count, (block + 1) * kBlockStars), thread);
         }
     };
     if (threads <= 1 || blocks <= 1) {
@@ -65,41 +67,40 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     if (classifier != nullptr) {
         colourless_categories_.resize(n * kQuantiles);
     }
-    forEachBlock(
-        n, resolveThreadCount(threads), [&](std::size_t, std::size_t begin, std::size_t end, unsigned) {
-            for (std::size_t s = begin; s < end; ++s) {
-                const photometry::CatalogRow& row = rows[s];
-                const bool classifiable =
-                    row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas;
-                g_mag_[s] =
-                    classifiable ? static_cast<float>(row.g_mag) : std::numeric_limits<float>::quiet_NaN();
-                g_error_mag_[s] = finiteOrZero(row.g_error_mag);
-                colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
-                colour_error_mag_[s] =
-                    quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
-                const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
-                for (std::size_t r = 0; r < radii_pc_.size(); ++r) {
-                    probability_within_[s * radii_pc_.size() + r] =
-                        static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
-                }
-                std::copy(posterior.distanceModulusQuantiles().begin(),
-                          posterior.distanceModulusQuantiles().end(),
-                          modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
-                if (classifier != nullptr && std::isnan(colour_mag_[s]) && std::isfinite(g_mag_[s])) {
-                    for (std::size_t k = 0; k < kQuantiles; ++k) {
-                        const photometry::PhotometricInput input{.g_mag = row.g_mag,
-                                                                 .rp_mag = row.rp_mag,
-                                                                 .j_mag = row.j_mag,
-                                                                 .ks_mag = row.ks_mag,
-                                                                 .distance_modulus_mag =
-                                                                     posterior.distanceModulusQuantiles()[k]};
-                        const auto result = classifier->classify(input);
-                        colourless_categories_[s * kQuantiles + k] =
-                            photometry::categoryOf(result.stellar_class, result.spectral_code);
-                    }
+    forEachBlock(n, resolveThreadCount(threads), [&](std::size_t begin, std::size_t end, unsigned) {
+        for (std::size_t s = begin; s < end; ++s) {
+            const photometry::CatalogRow& row = rows[s];
+            const bool classifiable =
+                row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas;
+            g_mag_[s] =
+                classifiable ? static_cast<float>(row.g_mag) : std::numeric_limits<float>::quiet_NaN();
+            g_error_mag_[s] = finiteOrZero(row.g_error_mag);
+            colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
+            colour_error_mag_[s] =
+                quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
+            const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
+            for (std::size_t r = 0; r < radii_pc_.size(); ++r) {
+                probability_within_[s * radii_pc_.size() + r] =
+                    static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
+            }
+            std::copy(posterior.distanceModulusQuantiles().begin(),
+                      posterior.distanceModulusQuantiles().end(),
+                      modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
+            if (classifier != nullptr && std::isnan(colour_mag_[s]) && std::isfinite(g_mag_[s])) {
+                for (std::size_t k = 0; k < kQuantiles; ++k) {
+                    const photometry::PhotometricInput input{.g_mag = row.g_mag,
+                                                             .rp_mag = row.rp_mag,
+                                                             .j_mag = row.j_mag,
+                                                             .ks_mag = row.ks_mag,
+                                                             .distance_modulus_mag =
+                                                                 posterior.distanceModulusQuantiles()[k]};
+                    const auto result = classifier->classify(input);
+                    colourless_categories_[s * kQuantiles + k] =
+                        photometry::categoryOf(result.stellar_class, result.spectral_code);
                 }
             }
-        });
+        }
+    });
 }
 
 std::uint32_t DrawTallies::classCount(int draw, std::size_t r, photometry::StellarClass c) const {
@@ -141,14 +142,13 @@ class SampleDrawer {
         if (settings_.progress != nullptr) {
             settings_.progress->items_total = static_cast<std::int64_t>(sample_.size()) * settings_.draws;
         }
-        forEachBlock(
-            sample_.size(), threads, [&](std::size_t block, std::size_t begin, std::size_t end, unsigned t) {
-                drawBlock(block, begin, end, per_thread[t], tallies.star_classes);
-                if (settings_.progress != nullptr) {
-                    settings_.progress->items_done.fetch_add(
-                        static_cast<std::int64_t>(end - begin) * settings_.draws, std::memory_order_relaxed);
-                }
-            });
+        forEachBlock(sample_.size(), threads, [&](std::size_t begin, std::size_t end, unsigned t) {
+            drawBlock(begin, end, per_thread[t], tallies.star_classes);
+            if (settings_.progress != nullptr) {
+                settings_.progress->items_done.fetch_add(
+                    static_cast<std::int64_t>(end - begin) * settings_.draws, std::memory_order_relaxed);
+            }
+        });
         tallies.counts.assign(tally_size, 0);
         for (const auto& partial : per_thread) {
             std::transform(partial.begin(), partial.end(), tallies.counts.begin(), tallies.counts.begin(),
@@ -158,12 +158,13 @@ class SampleDrawer {
     }
 
   private:
-    void drawBlock(std::size_t block, std::size_t begin, std::size_t end, std::vector<std::uint32_t>& counts,
+    void drawBlock(std::size_t begin, std::size_t end, std::vector<std::uint32_t>& counts,
                    std::vector<std::uint32_t>& star_classes) const {
-        Xoshiro256 random(settings_.seed, block);
         const std::size_t radii = sample_.radii_pc_.size();
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
         for (std::size_t s = begin; s < end; ++s) {
+            // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
+            Xoshiro256 random(settings_.seed, s);
             const float* quantiles = &sample_.modulus_quantiles_[s * PreparedSample::kQuantiles];
             const float* within = &sample_.probability_within_[s * radii];
             const float g = sample_.g_mag_[s];
@@ -178,6 +179,24 @@ class SampleDrawer {
                     : &sample_.colourless_categories_[s * PreparedSample::kQuantiles];
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
             const auto draws = static_cast<std::size_t>(settings_.draws);
+            if (const auto category = certainCategory(s, quantiles, within, colourless)) {
+                // Every draw gives this category, and each radius counts the star in every draw or in
+                // none: the tallies follow without drawing (the same numbers the loop below would give).
+                for (std::size_t r = 0; r < radii; ++r) {
+                    if (within[r] >= 1.0f) {
+                        std::uint32_t* draw_counts =
+                            &counts[(r * photometry::kCategoryCount + *category) * draws];
+                        for (std::size_t d = 0; d < draws; ++d) {
+                            ++draw_counts[d];
+                        }
+                    }
+                }
+                classes_seen[static_cast<std::size_t>(photometry::classOfCategory(*category))] =
+                    static_cast<std::uint32_t>(draws);
+                std::copy(classes_seen.begin(), classes_seen.end(),
+                          star_classes.begin() + static_cast<std::ptrdiff_t>(s * photometry::kClassCount));
+                continue;
+            }
             for (int d = 0; d < settings_.draws; ++d) {
                 const std::uint64_t bits_distance = random();
                 const std::uint64_t bits_photometry = random();
@@ -209,6 +228,42 @@ class SampleDrawer {
             std::copy(classes_seen.begin(), classes_seen.end(),
                       star_classes.begin() + static_cast<std::ptrdiff_t>(s * photometry::kClassCount));
         }
+    }
+
+    /// The category every draw of star s must give, when no draw can change it: membership certain at
+    /// every radius (probability exactly 0 or 1) and the star's whole range of outcomes (the extreme
+    /// distance quantiles, normal deviates up to FastNormal's largest) inside cells of one category.
+    std::optional<photometry::Category> certainCategory(std::size_t s, const float* quantiles,
+                                                        const float* within,
+                                                        const photometry::Category* colourless) const {
+        for (std::size_t r = 0; r < sample_.radii_pc_.size(); ++r) {
+            if (within[r] > 0.0f && within[r] < 1.0f) {
+                return std::nullopt;
+            }
+        }
+        const float g = sample_.g_mag_[s];
+        if (!std::isfinite(g)) {
+            return kUnclassified;
+        }
+        const float colour = sample_.colour_mag_[s];
+        if (!std::isfinite(colour) && colourless != nullptr) {
+            const bool same = std::all_of(colourless, colourless + PreparedSample::kQuantiles,
+                                          [&](photometry::Category c) { return c == colourless[0]; });
+            return same ? std::optional(colourless[0]) : std::nullopt;
+        }
+        // Float rounding in the loop can move a value by a few ulps past these bounds: widen them.
+        constexpr float kMarginMag = 1e-3f;
+        const auto [nearest, farthest] =
+            std::minmax_element(quantiles, quantiles + PreparedSample::kQuantiles);
+        const float g_reach = sample_.g_error_mag_[s] * normal_.largestMagnitude() + kMarginMag;
+        const float magnitude_low = g - g_reach - *farthest;
+        const float magnitude_high = g + g_reach - *nearest;
+        if (!std::isfinite(colour)) {
+            return classes_.uniformMagnitudeOnlyCategory(magnitude_low, magnitude_high);
+        }
+        const float colour_reach = sample_.colour_error_mag_[s] * normal_.largestMagnitude() + kMarginMag;
+        return classes_.uniformCategory(colour - colour_reach, colour + colour_reach, magnitude_low,
+                                        magnitude_high);
     }
 
     const PreparedSample& sample_;

@@ -4,8 +4,10 @@
 // absolute magnitude and class are recomputed and counted.
 //
 // Layout for speed: a structure of arrays built once (PreparedSample), processed star-major (each star's
-// tables stay in cache while all its draws are made), per-thread tallies summed at the end. Each block of
-// stars has its own random stream (seed, block), so the result is identical for any thread count.
+// tables stay in cache while all its draws are made), per-thread tallies summed at the end. Each star has
+// its own random stream (seed, star index), so the result is identical for any thread count. A star whose
+// draws cannot differ (membership probability exactly 0 or 1 at every radius, and every outcome its errors
+// allow inside cells of one category) is tallied without drawing: the numbers the draws would give.
 #include "census/Membership.h"
 #include "photometry/CatalogRow.h"
 #include "photometry/ClassGrid.h"
@@ -22,7 +24,7 @@ namespace starcensus::census {
 /// Monte Carlo settings.
 struct DrawSettings {
     int draws = 1000;       // number of realisations of the sample
-    std::uint64_t seed = 1; // master seed; each block of stars draws from stream (seed, block)
+    std::uint64_t seed = 1; // master seed; each star draws from stream (seed, star index)
     unsigned threads = 0;   // 0 = all hardware threads
     // Optional: star-draws done (items_done, advanced once per block of stars) and to do (items_total),
     // for a caller's display (photometry/Progress.h). Never read by the draws.

@@ -40,6 +40,46 @@ ClassGrid::ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_col
     fill_rows(0, workers);
 }
 
+std::optional<Category> ClassGrid::uniformCategory(float colour_low, float colour_high, float magnitude_low,
+                                                   float magnitude_high) const noexcept {
+    const int first_column = cell(colour_low, colour_min_, colour_cells_);
+    const int last_column = cell(colour_high, colour_min_, colour_cells_);
+    const int first_row = cell(magnitude_low, magnitude_min_, magnitude_cells_);
+    const int last_row = cell(magnitude_high, magnitude_min_, magnitude_cells_);
+    if ((first_column | last_column | first_row | last_row) < 0) {
+        return std::nullopt;
+    }
+    const auto at = [&](int row, int column) {
+        return by_colour_[static_cast<std::size_t>(row) * static_cast<std::size_t>(colour_cells_) +
+                          static_cast<std::size_t>(column)];
+    };
+    const Category category = at(first_row, first_column);
+    for (int row = first_row; row <= last_row; ++row) {
+        for (int column = first_column; column <= last_column; ++column) {
+            if (at(row, column) != category) {
+                return std::nullopt;
+            }
+        }
+    }
+    return category;
+}
+
+std::optional<Category> ClassGrid::uniformMagnitudeOnlyCategory(float magnitude_low,
+                                                                float magnitude_high) const noexcept {
+    const int first_row = cell(magnitude_low, magnitude_min_, magnitude_cells_);
+    const int last_row = cell(magnitude_high, magnitude_min_, magnitude_cells_);
+    if ((first_row | last_row) < 0) {
+        return std::nullopt;
+    }
+    const Category category = by_magnitude_[static_cast<std::size_t>(first_row)];
+    for (int row = first_row + 1; row <= last_row; ++row) {
+        if (by_magnitude_[static_cast<std::size_t>(row)] != category) {
+            return std::nullopt;
+        }
+    }
+    return category;
+}
+
 ClassGrid ClassGrid::fromClassifier(const Classifier& classifier, unsigned threads,
                                     const ClassGridAxes& axes) {
     const auto category = [](const Classification& result) {

@@ -6,6 +6,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <optional>
 #include <vector>
 
 namespace starcensus::photometry {
@@ -48,6 +49,15 @@ class ClassGrid {
         const int row = cell(abs_g_mag, magnitude_min_, magnitude_cells_);
         return row < 0 ? kOutside : by_magnitude_[static_cast<std::size_t>(row)];
     }
+
+    /// The category of every lookup() with BP-RP in [colour_low, colour_high] and M_G in
+    /// [magnitude_low, magnitude_high] (mag), if all the cells the box touches share one and the box lies
+    /// inside the grid; otherwise nothing. Lets the Monte Carlo skip stars whose class cannot change.
+    std::optional<Category> uniformCategory(float colour_low, float colour_high, float magnitude_low,
+                                            float magnitude_high) const noexcept;
+    /// The same for lookupMagnitudeOnly() over [magnitude_low, magnitude_high].
+    std::optional<Category> uniformMagnitudeOnlyCategory(float magnitude_low,
+                                                         float magnitude_high) const noexcept;
 
     const ClassGridAxes& axes() const { return axes_; }
     /// Cell size (mag) on both axes.

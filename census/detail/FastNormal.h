@@ -3,6 +3,7 @@
 // 4096 equally probable cells, linearly interpolated with the remaining 20 bits. Tails are truncated at
 // |z| = 3.7 (probability 2e-4 per draw moved inward); good enough for photometric noise in a Monte Carlo
 // over classes, and several times faster than an exact method.
+#include <algorithm>
 #include <array>
 #include <cmath>
 #include <cstdint>
@@ -29,6 +30,9 @@ class FastNormal {
         const float low = table_[index];
         return low + fraction * (table_[index + 1] - low);
     }
+
+    /// The largest |deviate| operator() can return (the outermost table nodes).
+    float largestMagnitude() const noexcept { return std::max(-table_.front(), table_.back()); }
 
     // Acklam's rational approximation refined by one Halley step (relative error ~1e-15); used to fill
     // tables, not in hot loops.

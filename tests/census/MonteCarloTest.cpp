@@ -102,3 +102,48 @@ TEST_CASE("stars too noisy to classify, or without colour, take the documented c
     CHECK(census::drawSample(strict, grid, {.draws = 20, .seed = 1, .threads = 1})
               .classCount(3, 0, StellarClass::Unclassified) == 2);
 }
+
+TEST_CASE("stars whose draws cannot differ are tallied in every draw; stars on a boundary are drawn") {
+    // Toy grid: K brighter than M_G = 8, M fainter. Star 0 sits at M_G 11.5 (5 pc) with errors far too
+    // small to reach the boundary and membership certain at 10 and 20 pc: it counts as M in every draw
+    // at both radii (the tallies the shortcut writes). Star 1 sits at 50 +- 2 mas (the 20 pc boundary;
+    // 25 sigma beyond 10 pc) and on the K/M boundary (M_G 8.0) with 0.3 mag errors: it is drawn, and splits
+    // between inside and outside 20 pc and between K and M.
+    std::vector<photometry::CatalogRow> rows(2);
+    rows[0].parallax_mas = 200.0;
+    rows[0].parallax_error_mas = 0.01;
+    rows[0].g_mag = 10.0;
+    rows[0].g_error_mag = 0.001;
+    rows[0].bp_mag = 10.5;
+    rows[0].rp_mag = 9.2;
+    rows[0].bp_error_mag = 0.001;
+    rows[0].rp_error_mag = 0.001;
+    rows[1] = rows[0];
+    rows[1].parallax_mas = 50.0; // 20 pc: M_G = g - 5 log10(20 / 10) = g - 1.505
+    rows[1].parallax_error_mas = 2.0;
+    rows[1].g_mag = 9.505;
+    rows[1].g_error_mag = 0.3;
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 1);
+    REQUIRE(sample.probabilityWithin(0, 0) == 1.0f);
+    REQUIRE(sample.probabilityWithin(0, 1) == 1.0f);
+    const int draws = 400;
+    const auto tallies = census::drawSample(sample, toyGrid(), {.draws = draws, .seed = 3, .threads = 1});
+    const auto m = photometry::categoryOf(StellarClass::M, 63.0);
+    const auto k = photometry::categoryOf(StellarClass::K, 55.0);
+    int star1_k_within_20 = 0;
+    int star1_within_20 = 0;
+    for (int d = 0; d < draws; ++d) {
+        CHECK(tallies.count(d, 0, m) == 1); // only star 0 is within 10 pc
+        CHECK(tallies.count(d, 0, k) == 0);
+        star1_k_within_20 += static_cast<int>(tallies.count(d, 1, k));
+        star1_within_20 += static_cast<int>(tallies.count(d, 1, k) + tallies.count(d, 1, m)) - 1;
+    }
+    CHECK(tallies.star_classes[static_cast<std::size_t>(StellarClass::M)] ==
+          static_cast<std::uint32_t>(draws));
+    // Star 1: about half its draws within 20 pc (binomial, 400 draws: 0.5 +- 0.025; allow 5 sigma), some
+    // of them K and some M.
+    const auto share = [&](int n) { return static_cast<double>(n) / draws; };
+    CHECK(share(star1_within_20) == doctest::Approx(0.5).epsilon(0.25));
+    CHECK(star1_k_within_20 > 0);
+    CHECK(star1_k_within_20 < star1_within_20);
+}
