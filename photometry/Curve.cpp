@@ -15,18 +15,43 @@ double Curve::at(double at_x) const {
     if (at_x == x.back()) {
         return y.back();
     }
-    // The first x above at_x (std::upper_bound) by a branch-free halving search: the classifier calls
-    // this several times per star and re-measurement, and the comparisons are unpredictable.
-    const double* base = x.data();
-    std::size_t length = x.size();
-    while (length > 1) {
-        const std::size_t half = length / 2;
-        base = base[half - 1] <= at_x ? base + half : base;
-        length -= half;
+    // i: the first x above at_x (what std::upper_bound gives), found from the bucket's guess by stepping
+    // either way; without an index, by binary search.
+    std::size_t i = 0;
+    if (!bucket_first_.empty()) {
+        const auto bucket =
+            std::min(static_cast<std::size_t>((at_x - x.front()) * bucket_scale_), bucket_first_.size() - 1);
+        i = bucket_first_[bucket];
+        while (i > 0 && x[i - 1] > at_x) {
+            --i;
+        }
+        while (x[i] <= at_x) {
+            ++i;
+        }
+    } else {
+        i = static_cast<std::size_t>(std::upper_bound(x.begin(), x.end(), at_x) - x.begin());
     }
-    const auto i = static_cast<std::size_t>(base - x.data()) + (*base <= at_x ? 1 : 0);
     const double fraction = (at_x - x[i - 1]) / (x[i] - x[i - 1]);
     return y[i - 1] + fraction * (y[i] - y[i - 1]);
+}
+
+void Curve::buildIndex() {
+    bucket_first_.clear();
+    if (x.size() < 2) {
+        return;
+    }
+    // Four buckets per segment on average: one or two steps for near-uniform spacing.
+    const std::size_t buckets = 4 * (x.size() - 1);
+    bucket_scale_ = static_cast<double>(buckets) / (x.back() - x.front());
+    bucket_first_.resize(buckets);
+    std::size_t i = 1;
+    for (std::size_t b = 0; b < buckets; ++b) {
+        const double start = x.front() + static_cast<double>(b) / bucket_scale_;
+        while (i + 1 < x.size() && x[i] <= start) {
+            ++i;
+        }
+        bucket_first_[b] = static_cast<std::uint32_t>(i);
+    }
 }
 
 Curve runningMaximumCurve(const std::vector<double>& x, const std::vector<double>& y) {
@@ -40,6 +65,7 @@ Curve runningMaximumCurve(const std::vector<double>& x, const std::vector<double
             curve.y.push_back(y[i]);
         }
     }
+    curve.buildIndex();
     return curve;
 }
 

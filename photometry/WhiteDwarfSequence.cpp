@@ -285,6 +285,7 @@ WhiteDwarfBoundary::WhiteDwarfBoundary(const DwarfLocus& locus, const WhiteDwarf
         curve_.x.push_back(colour);
         curve_.y.push_back(dwarf_g + last_offset_mag);
     }
+    curve_.buildIndex();
 }
 
 WhiteDwarfParameters WhiteDwarfSequence::fromColourMagnitude(double bp_rp_mag, double abs_g_mag,
