@@ -2,6 +2,7 @@
 
 #include "census/Fractions.h"
 #include "census/Random.h"
+#include "photometry/Threads.h"
 
 #include <Eigen/Dense>
 
@@ -10,6 +11,7 @@
 #include <limits>
 #include <map>
 #include <random>
+#include <thread>
 
 namespace starcensus::census {
 
@@ -91,7 +93,8 @@ std::vector<double> drawParameters(const MassFunctionFitResult& fit, const Eigen
 std::vector<CorrectedRadius>
 correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                        const std::vector<ClassGroup>& groups, const LuminosityModel& model,
-                       const MassFunctionFitResult& fit, const MagnitudeLimits& limits, std::uint64_t seed) {
+                       const MassFunctionFitResult& fit, const MagnitudeLimits& limits, std::uint64_t seed,
+                       unsigned threads) {
     if (!fit.converged) {
         return {};
     }
@@ -109,15 +112,17 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
     everything.categories.set();
 
     // [radius][group][draw] corrected counts and missing numbers, [radius][draw] corrected totals.
-    std::vector<std::vector<std::vector<double>>> counts(radii,
-                                                         std::vector<std::vector<double>>(groups.size()));
+    std::vector<std::vector<std::vector<double>>> counts(
+        radii, std::vector<std::vector<double>>(groups.size(), std::vector<double>(draws)));
     auto missing = counts;
-    std::vector<std::vector<double>> totals(radii);
+    std::vector<std::vector<double>> totals(radii, std::vector<double>(draws));
     std::vector<std::vector<UnseenTerm>> unseen_terms;
     for (const double radius : radii_pc) {
         unseen_terms.push_back(unseenTerms(model, radius, limits));
     }
-    for (std::size_t d = 0; d < draws; ++d) {
+    // Each draw has its own stream and its own slots: threads take interleaved draws and the result does
+    // not depend on their number.
+    const auto correct_draw = [&](std::size_t d) {
         Xoshiro256 random(seed, kCorrectionStreamBase + d);
         const std::vector<double> theta = drawParameters(fit, factor, random);
         const std::vector<double> shares =
@@ -134,15 +139,29 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
                 }
             }
             const int draw = static_cast<int>(d);
-            totals[r].push_back(groupCount(tallies, draw, r, everything) + unseen_total);
+            totals[r][d] = groupCount(tallies, draw, r, everything) + unseen_total;
             for (std::size_t g = 0; g < groups.size(); ++g) {
                 double group_unseen = 0.0;
                 for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
                     group_unseen += groups[g].categories.test(k) ? unseen[k] : 0.0;
                 }
-                missing[r][g].push_back(group_unseen);
-                counts[r][g].push_back(groupCount(tallies, draw, r, groups[g]) + group_unseen);
+                missing[r][g][d] = group_unseen;
+                counts[r][g][d] = groupCount(tallies, draw, r, groups[g]) + group_unseen;
             }
+        }
+    };
+    const unsigned workers = std::max(1u, std::min<unsigned>(resolveThreadCount(threads), 64));
+    {
+        std::vector<std::jthread> pool;
+        for (unsigned t = 1; t < workers; ++t) {
+            pool.emplace_back([&, t] {
+                for (std::size_t d = t; d < draws; d += workers) {
+                    correct_draw(d);
+                }
+            });
+        }
+        for (std::size_t d = 0; d < draws; d += workers) {
+            correct_draw(d);
         }
     }
 

@@ -35,10 +35,12 @@ struct CorrectedRadius {
 };
 
 /// Empty when the fit did not converge. `limits` are the limits the correction fills in (the pipeline
-/// passes only the faint one: see README, Methods).
+/// passes only the faint one: see README, Methods). `threads`: 0 = one per hardware thread; the result
+/// does not depend on it.
 std::vector<CorrectedRadius>
 correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                        const std::vector<ClassGroup>& groups, const LuminosityModel& model,
-                       const MassFunctionFitResult& fit, const MagnitudeLimits& limits, std::uint64_t seed);
+                       const MassFunctionFitResult& fit, const MagnitudeLimits& limits, std::uint64_t seed,
+                       unsigned threads = 1);
 
 } // namespace starcensus::census

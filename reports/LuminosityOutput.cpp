@@ -125,9 +125,9 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
         }
         // Only the faint limit is filled in: stars brighter than the bright limit are usually in the
         // input anyway (see README, Methods), and the census counts every member.
-        analysis.corrected =
-            census::correctForCompleteness(tallies, radii, census.groups, model, fit,
-                                           {analysis.limits.faint_g_mag, -kInfinity}, census.draws.seed);
+        analysis.corrected = census::correctForCompleteness(tallies, radii, census.groups, model, fit,
+                                                            {analysis.limits.faint_g_mag, -kInfinity},
+                                                            census.draws.seed, census.draws.threads);
     }
     return analysis;
 }

@@ -146,4 +146,14 @@ TEST_CASE("corrected fractions of a mock whose faint limit hides the L and T dwa
         CHECK(
             std::isnan(corrected[r].groups[static_cast<std::size_t>(StellarClass::WhiteDwarf)].completeness));
     }
+    // Draws spread over three threads give the same numbers (each draw has its own stream).
+    const auto threaded = correctForCompleteness(tallies, radii, groups, model, fit, {17.0, -1e9}, 5, 3);
+    for (std::size_t r = 0; r < radii.size(); ++r) {
+        for (std::size_t g = 0; g < groups.size(); ++g) {
+            CHECK(threaded[r].groups[g].count.median == corrected[r].groups[g].count.median);
+            CHECK(threaded[r].groups[g].fraction.lo95 == corrected[r].groups[g].fraction.lo95);
+            CHECK(threaded[r].groups[g].missing.hi68 == corrected[r].groups[g].missing.hi68);
+        }
+        CHECK(threaded[r].total.hi95 == corrected[r].total.hi95);
+    }
 }
