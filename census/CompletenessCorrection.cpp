@@ -120,6 +120,15 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
     for (const double radius : radii_pc) {
         unseen_terms.push_back(unseenTerms(model, radius, limits));
     }
+    // The catalogued counts per radius, group and draw, to which each draw adds its unseen objects.
+    std::vector<std::vector<std::vector<double>>> seen(radii);
+    std::vector<std::vector<double>> seen_totals(radii);
+    for (std::size_t r = 0; r < radii; ++r) {
+        seen_totals[r] = groupCountsByDraw(tallies, r, everything);
+        for (const ClassGroup& group : groups) {
+            seen[r].push_back(groupCountsByDraw(tallies, r, group));
+        }
+    }
     // Each draw has its own stream and its own slots: threads take interleaved draws and the result does
     // not depend on their number.
     const auto correct_draw = [&](std::size_t d) {
@@ -138,15 +147,14 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
                     unseen_total += unseen[k];
                 }
             }
-            const int draw = static_cast<int>(d);
-            totals[r][d] = groupCount(tallies, draw, r, everything) + unseen_total;
+            totals[r][d] = seen_totals[r][d] + unseen_total;
             for (std::size_t g = 0; g < groups.size(); ++g) {
                 double group_unseen = 0.0;
                 for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
                     group_unseen += groups[g].categories.test(k) ? unseen[k] : 0.0;
                 }
                 missing[r][g][d] = group_unseen;
-                counts[r][g][d] = groupCount(tallies, draw, r, groups[g]) + group_unseen;
+                counts[r][g][d] = seen[r][g][d] + group_unseen;
             }
         }
     };

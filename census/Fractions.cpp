@@ -35,15 +35,20 @@ double sphereVolumePc3(double radius_pc) {
     return 4.0 / 3.0 * std::numbers::pi * radius_pc * radius_pc * radius_pc;
 }
 
-std::uint32_t groupCount(const DrawTallies& tallies, int draw, std::size_t radius_index,
-                         const ClassGroup& group) {
-    std::uint32_t total = 0;
+std::vector<double> groupCountsByDraw(const DrawTallies& tallies, std::size_t radius_index,
+                                      const ClassGroup& group) {
+    const auto draws = static_cast<std::size_t>(tallies.draws);
+    std::vector<double> counts(draws, 0.0);
     for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
         if (group.categories.test(c)) {
-            total += tallies.count(draw, radius_index, static_cast<photometry::Category>(c));
+            const std::uint32_t* run =
+                &tallies.counts[(radius_index * photometry::kCategoryCount + c) * draws];
+            for (std::size_t d = 0; d < draws; ++d) {
+                counts[d] += run[d];
+            }
         }
     }
-    return total;
+    return counts;
 }
 
 PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,
@@ -121,21 +126,17 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         estimate.volume_pc3 = sphereVolumePc3(radii_pc[r]);
         estimate.expected_members = expected_members[r];
         estimate.hard_cut_members = hard_cut_members[r];
-        std::vector<double> totals(draws);
-        for (std::size_t d = 0; d < draws; ++d) {
-            totals[d] = groupCount(tallies, static_cast<int>(d), r, everything);
-        }
+        const std::vector<double> totals = groupCountsByDraw(tallies, r, everything);
         std::vector<double> sorted_totals = totals;
         estimate.members = summarizeDraws(sorted_totals);
 
         PopulationDeviates population = populationDeviates(tallies, r, groups, settings);
         for (std::size_t g = 0; g < groups.size(); ++g) {
-            std::vector<double> fraction(draws), count(draws), density(draws);
+            std::vector<double> count = groupCountsByDraw(tallies, r, groups[g]);
+            std::vector<double> fraction(draws), density(draws);
             for (std::size_t d = 0; d < draws; ++d) {
-                const double n = groupCount(tallies, static_cast<int>(d), r, groups[g]);
-                fraction[d] = totals[d] > 0 ? n / totals[d] : 0.0;
-                count[d] = n;
-                density[d] = n / estimate.volume_pc3;
+                fraction[d] = totals[d] > 0 ? count[d] / totals[d] : 0.0;
+                density[d] = count[d] / estimate.volume_pc3;
             }
             std::vector<double> population_density = population.count[g];
             for (double& value : population_density) {

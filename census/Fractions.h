@@ -71,8 +71,9 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
                                               const std::vector<ClassGroup>& groups,
                                               const FractionSettings& settings);
 
-/// Member count of a group in one draw.
-std::uint32_t groupCount(const DrawTallies& tallies, int draw, std::size_t radius_index,
-                         const ClassGroup& group);
+/// Member count of a group in every draw at one radius ([draw]). The tallies are draw-fastest, so this
+/// reads each of the group's categories as one contiguous run.
+std::vector<double> groupCountsByDraw(const DrawTallies& tallies, std::size_t radius_index,
+                                      const ClassGroup& group);
 
 } // namespace starcensus::census

@@ -61,11 +61,17 @@ void forEachDraw(const census::DrawTallies& tallies, const std::vector<census::C
     const census::ClassGroup everything{"all", std::bitset<photometry::kCategoryCount>().set()};
     std::vector<std::uint32_t> counts(groups.size());
     for (std::size_t r = 0; r < tallies.radii; ++r) {
+        const std::vector<double> members = census::groupCountsByDraw(tallies, r, everything);
+        std::vector<std::vector<double>> by_group;
+        for (const auto& group : groups) {
+            by_group.push_back(census::groupCountsByDraw(tallies, r, group));
+        }
         for (int d = 0; d < tallies.draws; ++d) {
+            const auto draw = static_cast<std::size_t>(d);
             for (std::size_t g = 0; g < groups.size(); ++g) {
-                counts[g] = census::groupCount(tallies, d, r, groups[g]);
+                counts[g] = static_cast<std::uint32_t>(by_group[g][draw]);
             }
-            row(r, d, census::groupCount(tallies, d, r, everything), counts);
+            row(r, d, static_cast<std::uint32_t>(members[draw]), counts);
         }
     }
 }
