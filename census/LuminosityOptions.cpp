@@ -26,7 +26,7 @@ po::options_description luminosityOptions(LuminosityRunSettings& settings) {
     add("lf-fit",
         po::value(&settings.fit_models_text)->default_value(settings.fit_models_text)->value_name("MODEL"),
         "mass function fitted to the luminosity function: chabrier (Chabrier 2003 log-normal + power law), "
-        "kroupa (Kroupa 2001 broken power law) or both");
+        "kroupa (Kroupa 2001 broken power law), both, or none (no fit and no completeness correction)");
     add("lf-fit-min", numberOption(settings.fit.fit_abs_g_min_mag, "MAG"),
         "brightest M_G of the fitted bins (mag)");
     add("lf-fit-max", numberOption(settings.fit.fit_abs_g_max_mag, "MAG"),
@@ -48,8 +48,10 @@ void validate(LuminosityRunSettings& settings) {
         settings.fit_models = {ImfFamily::Chabrier2003};
     } else if (text == "kroupa") {
         settings.fit_models = {ImfFamily::Kroupa2001};
+    } else if (text == "none") {
+        settings.fit_models.clear();
     } else {
-        throw InputError("--lf-fit: '" + text + "' is not one of chabrier, kroupa, both");
+        throw InputError("--lf-fit: '" + text + "' is not one of chabrier, kroupa, both, none");
     }
 }
 

@@ -17,7 +17,7 @@ struct LuminosityRunSettings {
     LuminositySettings luminosity;
     MassFunctionFitSettings fit; // fit.family is set per fitted model
     LuminosityModelSettings model;
-    std::string fit_models_text = "both"; // --lf-fit: chabrier, kroupa or both
+    std::string fit_models_text = "both"; // --lf-fit: chabrier, kroupa, both or none
 
     // Set by validate() from fit_models_text (the default is "both"):
     std::vector<ImfFamily> fit_models = {ImfFamily::Chabrier2003, ImfFamily::Kroupa2001};

@@ -162,8 +162,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     // Three independent analyses of the draws at once: the host re-measurements (on the Monte Carlo's
     // threads), the fractions and priors, and (here) the luminosity function, mass-function fits and
     // corrected fractions. Each is deterministic for the seed, so the order they finish in is irrelevant.
-    std::future<HostMeasurements> host_measurements = std::async(
-        std::launch::async, [&] { return measureHosts(rows, sample, classifier, census.membership, hosts); });
+    std::future<HostMeasurements> host_measurements = std::async(std::launch::async, [&] {
+        return hosts.enabled ? measureHosts(rows, sample, classifier, census.membership, hosts)
+                             : HostMeasurements{};
+    });
     std::future<void> fractions_and_priors = std::async(std::launch::async, [&] {
         result.estimates = census::estimateFractions(tallies, census.radii_pc,
                                                      hardCutCounts(rows, census.radii_pc, census.membership),
@@ -202,15 +204,22 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     writeJsonFile(directory / "priors.json", priorsJson(result.priors));
     writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
     writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
-    result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
-                                  census.quality.min_parallax_snr_to_classify, census.membership, hosts,
-                                  host_measurements.get());
+    const HostMeasurements measured_hosts = host_measurements.get();
+    if (hosts.enabled) {
+        result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
+                                      census.quality.min_parallax_snr_to_classify, census.membership, hosts,
+                                      measured_hosts);
+    }
     result.timings.outputs_s = secondsSince(start);
+    std::vector<std::string> outputs = {"sample.fits",       "fractions.json", "fractions.csv",
+                                        "priors.json",       "draws.fits",     "draws.csv",
+                                        "completeness.json", "lumfunc.csv",    "lumfunc_fit.json"};
+    if (hosts.enabled) {
+        outputs.push_back("hosts.fits");
+    }
+    outputs.push_back("provenance.json");
     writeJsonFile(directory / "provenance.json",
-                  provenanceJson(settings, paths, input_files.get(), result.timings,
-                                 {"sample.fits", "fractions.json", "fractions.csv", "priors.json",
-                                  "draws.fits", "draws.csv", "hosts.fits", "completeness.json", "lumfunc.csv",
-                                  "lumfunc_fit.json", "provenance.json"}));
+                  provenanceJson(settings, paths, input_files.get(), result.timings, outputs));
     progress.end();
     return result;
 }

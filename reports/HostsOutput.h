@@ -23,6 +23,7 @@
 namespace starcensus::reports {
 
 struct HostListSettings {
+    bool enabled = true;          // false (--no-hosts): no host list
     double radius_pc = 0.0;       // one of the census radii (pc); 0 = the largest
     double min_probability = 0.5; // membership probability threshold (inclusive)
     int realisations = 200;       // re-measurements per host for the Teff and mass uncertainties

@@ -97,6 +97,10 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
         census::completeAbsGRange(radii.back(), analysis.limits, completeness.bright_hole_volume_tolerance);
     analysis.table = census::estimateLuminosityFunction(
         stars, radii.back(), analysis.limits, completeness.bright_hole_volume_tolerance, settings.luminosity);
+    analysis.model_phi.assign(analysis.table.size(), std::numeric_limits<double>::quiet_NaN());
+    if (settings.fit_models.empty()) {
+        return analysis; // --lf-fit none: the luminosity function without a model or a correction
+    }
     const census::LuminosityModel model(settings.fit.start.mass_min_msun, settings.fit.start.mass_max_msun,
                                         settings.model, photometry);
     for (const census::ImfFamily family : settings.fit_models) {
@@ -110,7 +114,6 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
             analysis.correction_fit = analysis.fits.size() - 1;
         }
     }
-    analysis.model_phi.assign(analysis.table.size(), std::numeric_limits<double>::quiet_NaN());
     if (analysis.correction_fit) {
         const auto& fit = analysis.fits[*analysis.correction_fit];
         std::vector<std::array<double, 2>> bins;

@@ -148,6 +148,8 @@ void writeReportFor(const std::filesystem::path& directory) {
 po::options_description hostOptions(reports::HostListSettings& hosts) {
     po::options_description options("Host list (hosts.fits)");
     auto add = options.add_options();
+    add("no-hosts", po::bool_switch()->notifier([&hosts](bool off) { hosts.enabled = !off; }),
+        "skip the host list and its re-measurements");
     add("hosts-radius",
         po::value(&hosts.radius_pc)->default_value(hosts.radius_pc, "largest")->value_name("PC"),
         "census radius of the host list (pc); one of --radius, default the largest");

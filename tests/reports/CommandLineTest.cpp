@@ -3,6 +3,7 @@
 #include "tests/support/ReferencePython.h"
 
 #include <doctest/doctest.h>
+#include <nlohmann/json.hpp>
 
 #include <algorithm>
 #include <array>
@@ -85,4 +86,23 @@ TEST_CASE("a mock run end to end: simulate, inspect and run exit 0 and write com
     for (const auto& entry : std::filesystem::directory_iterator(dir / "out")) {
         CHECK(entry.path().string().find(".partial-") == std::string::npos); // no temporary left behind
     }
+    CHECK(std::filesystem::is_regular_file(dir / "out" / "hosts.fits"));
+
+    // Fractions only: no host list, no mass-function fit (so no corrected fractions), no checksum.
+    REQUIRE(runStarcensus("run mock.fits --radius 5,10 --draws 50 --no-report --no-hosts --lf-fit none "
+                          "--checksum none --out lean",
+                          dir)
+                .exit_code == 0);
+    CHECK_FALSE(std::filesystem::exists(dir / "lean" / "hosts.fits"));
+    CHECK(std::filesystem::is_regular_file(dir / "lean" / "lumfunc.csv"));
+    std::ifstream fit_file(dir / "lean" / "lumfunc_fit.json");
+    CHECK(nlohmann::json::parse(fit_file)["fits"].empty());
+    std::ifstream provenance_file(dir / "lean" / "provenance.json");
+    const auto provenance = nlohmann::json::parse(provenance_file);
+    CHECK_FALSE(provenance["inputs"][0].contains("xxh128"));
+    CHECK(std::find(provenance["outputs"].begin(), provenance["outputs"].end(), "hosts.fits") ==
+          provenance["outputs"].end());
+    // The report is still written from what the run left.
+    CHECK(runStarcensus("report lean", dir).exit_code == 0);
+    CHECK(std::filesystem::is_regular_file(dir / "lean" / "report.html"));
 }
