@@ -159,23 +159,26 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     start = Clock::now();
     progress.begin("outputs");
-    // Three independent analyses of the draws at once: the host re-measurements (on the Monte Carlo's
-    // threads), the fractions and priors, and (here) the luminosity function, mass-function fits and
+    // Four independent analyses of the draws at once: the host re-measurements (on the Monte Carlo's
+    // threads), the fractions, the priors, and (here) the luminosity function, mass-function fits and
     // corrected fractions. Each is deterministic for the seed, so the order they finish in is irrelevant.
     std::future<HostMeasurements> host_measurements = std::async(std::launch::async, [&] {
         return hosts.enabled ? measureHosts(rows, sample, classifier, census.membership, hosts)
                              : HostMeasurements{};
     });
-    std::future<void> fractions_and_priors = std::async(std::launch::async, [&] {
+    std::future<void> fraction_estimates = std::async(std::launch::async, [&] {
         result.estimates = census::estimateFractions(tallies, census.radii_pc,
                                                      hardCutCounts(rows, census.radii_pc, census.membership),
                                                      expected, census.groups, {.seed = census.draws.seed});
+    });
+    std::future<void> prior_fits = std::async(std::launch::async, [&] {
         result.priors =
             census::estimatePriors(tallies, census.radii_pc, census.groups, {.seed = census.draws.seed});
     });
     const LuminosityAnalysis luminosity =
         analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
-    fractions_and_priors.get();
+    fraction_estimates.get();
+    prior_fits.get();
     for (const auto& fit : luminosity.fits) {
         if (!fit.converged) {
             log << "starcensus: warning: " << census::fitModelName(fit.family) << " fit: " << fit.message
