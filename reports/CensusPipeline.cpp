@@ -99,6 +99,12 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     auto start = Clock::now();
     progress.begin("scan");
+    // The class grid depends on the classifier only: it is built while the catalogues are read, on the
+    // CPU time the scan leaves while it waits for memory.
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    std::future<photometry::ClassGrid> class_grid = std::async(std::launch::async, [&] {
+        return photometry::ClassGrid::fromClassifier(classifier, census.draws.threads);
+    });
     const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
     // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
     // the scan, so it runs beside the census instead of after it.
@@ -134,7 +140,6 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     start = Clock::now();
     progress.begin("posteriors");
-    const photometry::Classifier& classifier = photometry::Classifier::shipped();
     const census::PreparedSample sample(rows, census.radii_pc, census.membership,
                                         census.quality.min_parallax_snr_to_classify, census.draws.threads,
                                         &classifier);
@@ -142,7 +147,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     start = Clock::now();
     progress.begin("draws");
-    const auto grid = photometry::ClassGrid::fromClassifier(classifier, census.draws.threads);
+    const photometry::ClassGrid grid = class_grid.get();
     photometry::ProgressCounters draw_progress;
     census::DrawSettings draw_settings = census.draws;
     draw_settings.progress = &draw_progress;
@@ -177,18 +182,23 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     });
     const LuminosityAnalysis luminosity =
         analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
-    fraction_estimates.get();
-    prior_fits.get();
     for (const auto& fit : luminosity.fits) {
         if (!fit.converged) {
             log << "starcensus: warning: " << census::fitModelName(fit.family) << " fit: " << fit.message
                 << '\n';
         }
     }
+    // The outputs that need only the draws and the luminosity analysis first, while the other analyses
+    // may still be running.
     const std::filesystem::path& directory = settings.output_directory;
     std::filesystem::create_directories(directory);
     writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, census.membership,
                      census.quality.min_parallax_snr_to_classify);
+    writeLuminosityOutputs(directory, luminosity);
+    writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
+    writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
+    fraction_estimates.get();
+    prior_fits.get();
     nlohmann::json provenance = runProvenance(settings, paths);
     // What each quality cut removed or changed, for the report's table.
     provenance["candidates_before_cuts"] = result.scan_totals.candidates;
@@ -202,11 +212,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     addCompletenessToFractions(fractions, luminosity);
     result.corrected = luminosity.corrected;
     writeJsonFile(directory / "fractions.json", fractions);
-    writeLuminosityOutputs(directory, luminosity);
     writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
     writeJsonFile(directory / "priors.json", priorsJson(result.priors));
-    writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
-    writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     const HostMeasurements measured_hosts = host_measurements.get();
     if (hosts.enabled) {
         result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
