@@ -135,6 +135,9 @@ class SampleDrawer {
             static_cast<std::size_t>(settings_.draws) * radii * photometry::kCategoryCount;
         std::vector<std::vector<std::uint32_t>> per_thread(threads,
                                                            std::vector<std::uint32_t>(tally_size, 0));
+        // Stars tallied without drawing, per [radius][category]: the same count in every draw.
+        std::vector<std::vector<std::uint32_t>> certain_per_thread(
+            threads, std::vector<std::uint32_t>(radii * photometry::kCategoryCount, 0));
         DrawTallies tallies;
         tallies.draws = settings_.draws;
         tallies.radii = radii;
@@ -143,7 +146,7 @@ class SampleDrawer {
             settings_.progress->items_total = static_cast<std::int64_t>(sample_.size()) * settings_.draws;
         }
         forEachBlock(sample_.size(), threads, [&](std::size_t begin, std::size_t end, unsigned t) {
-            drawBlock(begin, end, per_thread[t], tallies.star_classes);
+            drawBlock(begin, end, per_thread[t], certain_per_thread[t], tallies.star_classes);
             if (settings_.progress != nullptr) {
                 settings_.progress->items_done.fetch_add(
                     static_cast<std::int64_t>(end - begin) * settings_.draws, std::memory_order_relaxed);
@@ -154,11 +157,21 @@ class SampleDrawer {
             std::transform(partial.begin(), partial.end(), tallies.counts.begin(), tallies.counts.begin(),
                            std::plus<>());
         }
+        const auto draws = static_cast<std::size_t>(settings_.draws);
+        for (const auto& certain : certain_per_thread) {
+            for (std::size_t slot = 0; slot < certain.size(); ++slot) {
+                if (certain[slot] != 0) {
+                    std::uint32_t* run = &tallies.counts[slot * draws];
+                    std::for_each(run, run + draws, [&](std::uint32_t& count) { count += certain[slot]; });
+                }
+            }
+        }
         return tallies;
     }
 
   private:
     void drawBlock(std::size_t begin, std::size_t end, std::vector<std::uint32_t>& counts,
+                   std::vector<std::uint32_t>& certain_counts,
                    std::vector<std::uint32_t>& star_classes) const {
         const std::size_t radii = sample_.radii_pc_.size();
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
@@ -183,13 +196,7 @@ class SampleDrawer {
                 // Every draw gives this category, and each radius counts the star in every draw or in
                 // none: the tallies follow without drawing (the same numbers the loop below would give).
                 for (std::size_t r = 0; r < radii; ++r) {
-                    if (within[r] >= 1.0f) {
-                        std::uint32_t* draw_counts =
-                            &counts[(r * photometry::kCategoryCount + *category) * draws];
-                        for (std::size_t d = 0; d < draws; ++d) {
-                            ++draw_counts[d];
-                        }
-                    }
+                    certain_counts[r * photometry::kCategoryCount + *category] += within[r] >= 1.0f ? 1u : 0u;
                 }
                 classes_seen[static_cast<std::size_t>(photometry::classOfCategory(*category))] =
                     static_cast<std::uint32_t>(draws);
