@@ -399,34 +399,6 @@ FieldDecoder decoderFor(const TableColumn& column, CatalogField field, const std
 
 } // namespace
 
-std::vector<HduSummary> listHdus(const std::string& path) {
-    FitsFile file(path);
-    std::vector<HduSummary> hdus;
-    const int count = file.hduCount();
-    for (int index = 0; index < count; ++index) {
-        const int type = file.moveTo(index);
-        HduSummary hdu;
-        hdu.index = index;
-        hdu.type = hduTypeName(type);
-        hdu.name = file.optionalText("EXTNAME").value_or("");
-        if (type == IMAGE_HDU) {
-            const auto axes = file.optionalKey<LONGLONG>("NAXIS").value_or(0);
-            for (LONGLONG axis = 1; axis <= axes; ++axis) {
-                const auto length = file.optionalKey<LONGLONG>("NAXIS" + std::to_string(axis)).value_or(0);
-                hdu.image_shape.append(axis == 1 ? "" : "x").append(std::to_string(length));
-            }
-            if (hdu.image_shape.empty()) {
-                hdu.image_shape = "none";
-            }
-        } else {
-            hdu.rows = file.optionalKey<LONGLONG>("NAXIS2").value_or(0);
-            hdu.columns = static_cast<int>(file.optionalKey<LONGLONG>("TFIELDS").value_or(0));
-        }
-        hdus.push_back(std::move(hdu));
-    }
-    return hdus;
-}
-
 namespace {
 
 using detail::appendPart;
@@ -565,73 +537,144 @@ bool equalIgnoringCase(const std::string& a, const std::string& b) {
            });
 }
 
+constexpr std::size_t kFitsRecordBytes = 2880; // FITS logical record (FITS Standard 4.0, section 3.1)
+
+/// The keywords of one FITS header that locate its HDU and its data (FITS Standard 4.0, section 4.4).
+struct StreamedHeader {
+    std::string xtension; // "" for the primary HDU
+    std::string extname;
+    long long bitpix = 0;
+    long long pcount = 0;
+    long long gcount = 1;
+    long long tfields = 0;
+    std::vector<long long> axes;
+
+    /// Data size with its padding to whole records: FITS Standard 4.0 section 4.4.1.1, Eq. 2,
+    /// |BITPIX| / 8 * GCOUNT * (PCOUNT + NAXIS1 * ... * NAXISm).
+    std::size_t paddedDataBytes() const {
+        long long elements = axes.empty() ? 0 : 1;
+        for (const long long length : axes) {
+            elements *= length;
+        }
+        const long long data_bytes = std::llabs(bitpix) / 8 * gcount * (pcount + elements);
+        return static_cast<std::size_t>((data_bytes + kFitsRecordBytes - 1) / kFitsRecordBytes *
+                                        kFitsRecordBytes);
+    }
+};
+
+/// Reads one header from the stream up to its END record, appending its bytes to `image`; nothing when
+/// the stream ends first (`*clean_end`, if given, says whether it ended before the header's first byte:
+/// the normal end of a file).
+std::optional<StreamedHeader> readStreamedHeader(GzipFile& gzip, std::vector<unsigned char>& image,
+                                                 const std::string& where, bool* clean_end = nullptr) {
+    constexpr std::size_t kCard = 80;
+    StreamedHeader header;
+    for (bool ended = false, first = true; !ended; first = false) {
+        const std::size_t at = image.size();
+        image.resize(at + kFitsRecordBytes);
+        const std::size_t got = gzip.read(image.data() + at, kFitsRecordBytes, where);
+        if (got != kFitsRecordBytes) {
+            if (clean_end != nullptr) {
+                *clean_end = first && got == 0;
+            }
+            return std::nullopt;
+        }
+        for (std::size_t card = at; card < at + kFitsRecordBytes && !ended; card += kCard) {
+            const std::string keyword = cardKeyword(&image[card]);
+            const auto number = [&] { return std::atoll(cardValue(&image[card]).c_str()); };
+            if (keyword == "END") {
+                ended = true;
+            } else if (keyword == "XTENSION") {
+                header.xtension = cardValue(&image[card]);
+            } else if (keyword == "EXTNAME") {
+                header.extname = cardValue(&image[card]);
+            } else if (keyword == "BITPIX") {
+                header.bitpix = number();
+            } else if (keyword == "PCOUNT") {
+                header.pcount = number();
+            } else if (keyword == "GCOUNT") {
+                header.gcount = number();
+            } else if (keyword == "TFIELDS") {
+                header.tfields = number();
+            } else if (keyword == "NAXIS") {
+                header.axes.resize(static_cast<std::size_t>(std::max(0LL, number())));
+            } else if (keyword.starts_with("NAXIS") && allDigits(keyword.substr(5))) {
+                const auto axis = static_cast<std::size_t>(std::atoll(keyword.c_str() + 5));
+                if (axis >= 1 && axis <= header.axes.size()) {
+                    header.axes[axis - 1] = number();
+                }
+            }
+        }
+    }
+    return header;
+}
+
 /// Reads a gzip-compressed FITS file up to the end of the header of the table `hdu` selects (the rules
 /// of ScanSettings::hdu), keeping every byte before it; the stream is left at the table's first data
 /// byte. Returns nothing when the stream ends first (no such table, not FITS): the caller then lets
 /// cfitsio open the file and say what is wrong.
 std::optional<std::vector<unsigned char>> readHeadersUpToTable(GzipFile& gzip, const std::string& hdu,
                                                                const std::string& where) {
-    constexpr std::size_t kRecord = 2880; // FITS logical record (FITS Standard 4.0, section 3.1)
-    constexpr std::size_t kCard = 80;
     std::vector<unsigned char> image;
     for (int index = 0;; ++index) {
-        std::string xtension;
-        std::string extname;
-        long long bitpix = 0;
-        long long pcount = 0;
-        long long gcount = 1;
-        std::vector<long long> axes;
-        bool ended = false;
-        while (!ended) {
-            const std::size_t at = image.size();
-            image.resize(at + kRecord);
-            if (gzip.read(image.data() + at, kRecord, where) != kRecord) {
-                return std::nullopt;
-            }
-            for (std::size_t card = at; card < at + kRecord && !ended; card += kCard) {
-                const std::string keyword = cardKeyword(&image[card]);
-                if (keyword == "END") {
-                    ended = true;
-                } else if (keyword == "XTENSION") {
-                    xtension = cardValue(&image[card]);
-                } else if (keyword == "EXTNAME") {
-                    extname = cardValue(&image[card]);
-                } else if (keyword == "BITPIX") {
-                    bitpix = std::atoll(cardValue(&image[card]).c_str());
-                } else if (keyword == "PCOUNT") {
-                    pcount = std::atoll(cardValue(&image[card]).c_str());
-                } else if (keyword == "GCOUNT") {
-                    gcount = std::atoll(cardValue(&image[card]).c_str());
-                } else if (keyword == "NAXIS") {
-                    axes.resize(
-                        static_cast<std::size_t>(std::max(0LL, std::atoll(cardValue(&image[card]).c_str()))));
-                } else if (keyword.starts_with("NAXIS") && allDigits(keyword.substr(5))) {
-                    const auto axis = static_cast<std::size_t>(std::atoll(keyword.c_str() + 5));
-                    if (axis >= 1 && axis <= axes.size()) {
-                        axes[axis - 1] = std::atoll(cardValue(&image[card]).c_str());
-                    }
-                }
-            }
+        const std::optional<StreamedHeader> header = readStreamedHeader(gzip, image, where);
+        if (!header) {
+            return std::nullopt;
         }
-        const bool table = xtension == "BINTABLE";
+        const bool table = header->xtension == "BINTABLE";
         const bool selected = hdu.empty()      ? table
                               : allDigits(hdu) ? index == std::atoi(hdu.c_str())
-                                               : table && equalIgnoringCase(extname, hdu);
+                                               : table && equalIgnoringCase(header->extname, hdu);
         if (selected) {
             return image;
         }
-        // Data size, FITS Standard 4.0 section 4.4.1.1, Eq. 2: |BITPIX| / 8 * GCOUNT * (PCOUNT + NAXIS1 *
-        // ... * NAXISm), padded to whole records.
-        long long elements = axes.empty() ? 0 : 1;
-        for (const long long length : axes) {
-            elements *= length;
-        }
-        const long long data_bytes = std::llabs(bitpix) / 8 * gcount * (pcount + elements);
-        const auto padded = static_cast<std::size_t>((data_bytes + kRecord - 1) / kRecord * kRecord);
+        const std::size_t padded = header->paddedDataBytes();
         const std::size_t at = image.size();
         image.resize(at + padded);
         if (gzip.read(image.data() + at, padded, where) != padded) {
             return std::nullopt;
+        }
+    }
+}
+
+/// listHdus() of a gzip-compressed file, streamed: headers are parsed as they are inflated and data are
+/// inflated into a bounded buffer and dropped, so memory does not grow with the file. Nothing when the
+/// stream is not a complete FITS file (cfitsio then says what is wrong).
+std::optional<std::vector<HduSummary>> listGzipHdus(const std::string& path) {
+    GzipFile gzip(path);
+    std::vector<HduSummary> hdus;
+    std::vector<unsigned char> header_bytes;
+    std::vector<unsigned char> discard(std::size_t{1} << 20);
+    for (int index = 0;; ++index) {
+        header_bytes.clear();
+        bool clean_end = false;
+        const std::optional<StreamedHeader> header = readStreamedHeader(gzip, header_bytes, path, &clean_end);
+        if (!header) {
+            return index > 0 && clean_end ? std::optional(hdus) : std::nullopt;
+        }
+        HduSummary hdu;
+        hdu.index = index;
+        hdu.name = header->extname;
+        if (header->xtension.empty() || header->xtension == "IMAGE") {
+            hdu.type = hduTypeName(IMAGE_HDU);
+            for (const long long length : header->axes) {
+                hdu.image_shape.append(hdu.image_shape.empty() ? "" : "x").append(std::to_string(length));
+            }
+            if (hdu.image_shape.empty()) {
+                hdu.image_shape = "none";
+            }
+        } else {
+            hdu.type = hduTypeName(header->xtension == "TABLE" ? ASCII_TBL : BINARY_TBL);
+            hdu.rows = header->axes.size() >= 2 ? header->axes[1] : 0;
+            hdu.columns = static_cast<int>(header->tfields);
+        }
+        hdus.push_back(std::move(hdu));
+        for (std::size_t left = header->paddedDataBytes(); left > 0;) {
+            const std::size_t chunk = std::min(left, discard.size());
+            if (gzip.read(discard.data(), chunk, path) != chunk) {
+                return std::nullopt;
+            }
+            left -= chunk;
         }
     }
 }
@@ -863,6 +906,40 @@ class PlainDataFile {
 };
 
 } // namespace
+
+std::vector<HduSummary> listHdus(const std::string& path) {
+    if (storageOf(path) == Storage::Gzip) {
+        requireRegularFile(path);
+        if (auto hdus = listGzipHdus(path)) {
+            return *hdus;
+        }
+    }
+    FitsFile file(path);
+    std::vector<HduSummary> hdus;
+    const int count = file.hduCount();
+    for (int index = 0; index < count; ++index) {
+        const int type = file.moveTo(index);
+        HduSummary hdu;
+        hdu.index = index;
+        hdu.type = hduTypeName(type);
+        hdu.name = file.optionalText("EXTNAME").value_or("");
+        if (type == IMAGE_HDU) {
+            const auto axes = file.optionalKey<LONGLONG>("NAXIS").value_or(0);
+            for (LONGLONG axis = 1; axis <= axes; ++axis) {
+                const auto length = file.optionalKey<LONGLONG>("NAXIS" + std::to_string(axis)).value_or(0);
+                hdu.image_shape.append(axis == 1 ? "" : "x").append(std::to_string(length));
+            }
+            if (hdu.image_shape.empty()) {
+                hdu.image_shape = "none";
+            }
+        } else {
+            hdu.rows = file.optionalKey<LONGLONG>("NAXIS2").value_or(0);
+            hdu.columns = static_cast<int>(file.optionalKey<LONGLONG>("TFIELDS").value_or(0));
+        }
+        hdus.push_back(std::move(hdu));
+    }
+    return hdus;
+}
 
 namespace detail {
 

@@ -22,9 +22,12 @@ struct HduSummary {
     std::int64_t rows = 0;   // tables: NAXIS2; images: 0
     int columns = 0;         // tables: TFIELDS; images: 0
     std::string image_shape; // images: "2048x4096", "none" without data; tables: ""
+
+    bool operator==(const HduSummary&) const = default;
 };
 
-/// Every HDU of a FITS file; throws InputError naming the file if it cannot be read.
+/// Every HDU of a FITS file; throws InputError naming the file if it cannot be read. A gzip-compressed
+/// file is listed as it is inflated (memory does not grow with the file).
 std::vector<HduSummary> listHdus(const std::string& path);
 
 namespace detail {

@@ -237,6 +237,13 @@ TEST_CASE("every read path gives the reference rows: mapped, gzip-streamed, bzip
     gzipFile(path, gz_path);
     const std::string bz2_path = directory.file("two.fits.bz2");
     runReferencePython("bzip2_file.py", "'" + path + "' '" + bz2_path + "'");
+    // The HDU list of the gzip copy, parsed from the stream, equals cfitsio's list of the plain file.
+    const std::vector<HduSummary> hdus = listHdus(path);
+    REQUIRE(hdus.size() == 3);
+    CHECK(hdus[2].name == "SECOND");
+    CHECK(hdus[2].rows == 2500);
+    CHECK(listHdus(gz_path) == hdus);
+    CHECK(listHdus(bz2_path) == hdus);
 
     for (const auto& [hdu, all_row_nulls] :
          std::vector<std::pair<std::string, bool>>{{"", true}, {"2", true}, {"second", false}}) {
