@@ -1,9 +1,11 @@
 #pragma once
 // A rasterised classifier for the Monte Carlo hot loop: the census category (StellarClass.h) of every
-// cell of a fine grid in (BP-RP, M_G), and of a 1-D grid in M_G for objects without colours. Built once
-// from the exact classifier; a lookup is two multiplies and a load.
+// cell of a fine grid in (BP-RP, M_G), and of a 1-D grid in M_G for objects without colours. A 2-D cell
+// is classified (by the exact classifier, at its centre) the first time a lookup reaches it: a census
+// touches a few thousand of the grid's ~560,000 cells. After that a lookup is two multiplies and a load.
 #include "photometry/StellarClass.h"
 
+#include <atomic>
 #include <cstdint>
 #include <functional>
 #include <optional>
@@ -27,22 +29,19 @@ class ClassGrid {
     using ColourClassifier = std::function<Category(double bp_rp_mag, double abs_g_mag)>;
     using MagnitudeClassifier = std::function<Category(double abs_g_mag)>;
 
-    /// Evaluates the classifiers at every cell centre, on `threads` threads (0: one per hardware thread;
-    /// the classifiers must then be safe to call concurrently).
-    ClassGrid(const ClassGridAxes& axes, const ColourClassifier& with_colour,
-              const MagnitudeClassifier& magnitude_only, unsigned threads = 1);
+    /// Keeps the classifiers, which must outlive the grid and be safe to call from several threads at
+    /// once: the 1-D grid is filled here, 2-D cells on first lookup.
+    ClassGrid(const ClassGridAxes& axes, ColourClassifier with_colour,
+              const MagnitudeClassifier& magnitude_only);
 
-    /// Classifier::classifyClassOnly() on (BP-RP, M_G), and on M_G alone for the 1-D grid.
-    static ClassGrid fromClassifier(const Classifier& classifier, unsigned threads = 1,
-                                    const ClassGridAxes& axes = {});
+    /// Classifier::classifyClassOnly() on (BP-RP, M_G), and on M_G alone for the 1-D grid. `classifier`
+    /// must outlive the grid.
+    static ClassGrid fromClassifier(const Classifier& classifier, const ClassGridAxes& axes = {});
 
-    Category lookup(float bp_rp_mag, float abs_g_mag) const noexcept {
+    Category lookup(float bp_rp_mag, float abs_g_mag) const {
         const int row = cell(abs_g_mag, magnitude_min_, magnitude_cells_);
         const int column = cell(bp_rp_mag, colour_min_, colour_cells_);
-        return (row | column) < 0
-                   ? kOutside
-                   : by_colour_[static_cast<std::size_t>(row) * static_cast<std::size_t>(colour_cells_) +
-                                static_cast<std::size_t>(column)];
+        return (row | column) < 0 ? kOutside : at(row, column);
     }
 
     Category lookupMagnitudeOnly(float abs_g_mag) const noexcept {
@@ -54,7 +53,7 @@ class ClassGrid {
     /// [magnitude_low, magnitude_high] (mag), if all the cells the box touches share one and the box lies
     /// inside the grid; otherwise nothing. Lets the Monte Carlo skip stars whose class cannot change.
     std::optional<Category> uniformCategory(float colour_low, float colour_high, float magnitude_low,
-                                            float magnitude_high) const noexcept;
+                                            float magnitude_high) const;
     /// The same for lookupMagnitudeOnly() over [magnitude_low, magnitude_high].
     std::optional<Category> uniformMagnitudeOnlyCategory(float magnitude_low,
                                                          float magnitude_high) const noexcept;
@@ -65,6 +64,22 @@ class ClassGrid {
 
   private:
     static constexpr Category kOutside = kDwarfCategories + 2; // unclassified
+    static constexpr Category kNotYetClassified = 0xff;        // no category has this value
+
+    /// The category of a 2-D cell, classifying it on first use. Threads that reach a new cell together
+    /// each classify it and store the same value.
+    Category at(int row, int column) const {
+        std::atomic<Category>& slot =
+            by_colour_[static_cast<std::size_t>(row) * static_cast<std::size_t>(colour_cells_) +
+                       static_cast<std::size_t>(column)];
+        Category category = slot.load(std::memory_order_relaxed);
+        if (category == kNotYetClassified) {
+            category = with_colour_(axes_.colour_min_mag + (column + 0.5) * axes_.cell_mag,
+                                    axes_.abs_mag_min_mag + (row + 0.5) * axes_.cell_mag);
+            slot.store(category, std::memory_order_relaxed);
+        }
+        return category;
+    }
 
     /// The cell index, or -1 outside the grid or for NaN (the comparison is false for NaN).
     int cell(float value, float minimum, int cells) const noexcept {
@@ -78,8 +93,9 @@ class ClassGrid {
     float inverse_cell_;
     int colour_cells_;
     int magnitude_cells_;
-    std::vector<Category> by_colour_;    // [magnitude cell][colour cell]
-    std::vector<Category> by_magnitude_; // [magnitude cell]
+    ColourClassifier with_colour_;
+    mutable std::vector<std::atomic<Category>> by_colour_; // [magnitude cell][colour cell], lazily filled
+    std::vector<Category> by_magnitude_;                   // [magnitude cell]
 };
 
 } // namespace starcensus::photometry

@@ -99,12 +99,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     auto start = Clock::now();
     progress.begin("scan");
-    // The class grid depends on the classifier only: it is built while the catalogues are read, on the
-    // CPU time the scan leaves while it waits for memory.
-    const photometry::Classifier& classifier = photometry::Classifier::shipped();
-    std::future<photometry::ClassGrid> class_grid = std::async(std::launch::async, [&] {
-        return photometry::ClassGrid::fromClassifier(classifier, census.draws.threads);
-    });
+
     const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
     // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
     // the scan, so it runs beside the census instead of after it.
@@ -140,6 +135,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     start = Clock::now();
     progress.begin("posteriors");
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
     const census::PreparedSample sample(rows, census.radii_pc, census.membership,
                                         census.quality.min_parallax_snr_to_classify, census.draws.threads,
                                         &classifier);
@@ -147,7 +143,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
 
     start = Clock::now();
     progress.begin("draws");
-    const photometry::ClassGrid grid = class_grid.get();
+    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     photometry::ProgressCounters draw_progress;
     census::DrawSettings draw_settings = census.draws;
     draw_settings.progress = &draw_progress;
