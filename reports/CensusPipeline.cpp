@@ -161,8 +161,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     start = Clock::now();
     progress.begin("outputs");
     // Independent analyses of the draws at once: the host re-measurements (on the Monte Carlo's threads),
-    // the fractions, the priors, sample.fits, and (here) the luminosity function, mass-function fits and
-    // corrected fractions. Each is deterministic for the seed, so the order they finish in is irrelevant.
+    // the fractions, the priors, the sample and draws tables, and (here) the luminosity function,
+    // mass-function fits and corrected fractions. Each is deterministic for the seed, so the order they
+    // finish in is irrelevant.
     std::future<HostMeasurements> host_measurements = std::async(std::launch::async, [&] {
         return hosts.enabled ? measureHosts(rows, sample, classifier, census.membership, hosts)
                              : HostMeasurements{};
@@ -176,12 +177,14 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
         result.priors =
             census::estimatePriors(tallies, census.radii_pc, census.groups, {.seed = census.draws.seed});
     });
-    // sample.fits needs only the draws: it is written beside the analyses.
+    // sample.fits and the draws tables need only the draws: they are written beside the analyses.
     const std::filesystem::path& directory = settings.output_directory;
     std::filesystem::create_directories(directory);
-    std::future<void> sample_table = std::async(std::launch::async, [&] {
+    std::future<void> draw_tables = std::async(std::launch::async, [&] {
         writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, census.membership,
                          census.quality.min_parallax_snr_to_classify);
+        writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
+        writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     });
     const LuminosityAnalysis luminosity =
         analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
@@ -191,12 +194,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                 << '\n';
         }
     }
-    // The outputs that need only the draws and the luminosity analysis first, while the other analyses
-    // may still be running.
     writeLuminosityOutputs(directory, luminosity);
-    writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
-    writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
-    sample_table.get();
+    draw_tables.get();
     fraction_estimates.get();
     prior_fits.get();
     nlohmann::json provenance = runProvenance(settings, paths);
