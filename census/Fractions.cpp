@@ -133,19 +133,17 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         PopulationDeviates population = populationDeviates(tallies, r, groups, settings);
         for (std::size_t g = 0; g < groups.size(); ++g) {
             std::vector<double> count = groupCountsByDraw(tallies, r, groups[g]);
-            std::vector<double> fraction(draws), density(draws);
+            std::vector<double> fraction(draws);
             for (std::size_t d = 0; d < draws; ++d) {
                 fraction[d] = totals[d] > 0 ? count[d] / totals[d] : 0.0;
-                density[d] = count[d] / estimate.volume_pc3;
             }
-            std::vector<double> population_density = population.count[g];
-            for (double& value : population_density) {
-                value /= estimate.volume_pc3;
-            }
-            estimate.groups.push_back({groups[g].name,
-                                       {summarizeDraws(fraction), summarizeDraws(population.fraction[g])},
-                                       {summarizeDraws(count), summarizeDraws(population.count[g])},
-                                       {summarizeDraws(density), summarizeDraws(population_density)}});
+            const TwoIntervals counts{summarizeDraws(count), summarizeDraws(population.count[g])};
+            const double per_volume = 1.0 / estimate.volume_pc3; // densities are counts over the volume
+            estimate.groups.push_back(
+                {groups[g].name,
+                 {summarizeDraws(fraction), summarizeDraws(population.fraction[g])},
+                 counts,
+                 {scaled(counts.this_volume, per_volume), scaled(counts.population, per_volume)}});
         }
         estimates.push_back(std::move(estimate));
     }

@@ -52,6 +52,11 @@ IntervalSummary summarizeDraws(std::span<double> draws) {
     return summary;
 }
 
+IntervalSummary scaled(const IntervalSummary& summary, double factor) {
+    return {summary.median * factor, summary.lo68 * factor, summary.hi68 * factor, summary.lo95 * factor,
+            summary.hi95 * factor};
+}
+
 std::array<double, 2> centralInterval(std::span<double> values, double probability) {
     if (values.empty()) {
         return {std::nan(""), std::nan("")};

@@ -27,6 +27,10 @@ double sampleQuantile(std::span<double> values, double q);
 /// Median, 68% and 95% central intervals of the draws (reorders them).
 IntervalSummary summarizeDraws(std::span<double> draws);
 
+/// Every quantile of `summary` multiplied by `factor` > 0: the summary of the draws times that factor
+/// (quantiles commute with a positive scaling, up to rounding), without selecting again.
+IntervalSummary scaled(const IntervalSummary& summary, double factor);
+
 /// The central interval holding `probability` of the values: the quantiles (1 -+ probability) / 2
 /// (reorders them; NaN for none).
 std::array<double, 2> centralInterval(std::span<double> values, double probability);
