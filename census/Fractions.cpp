@@ -111,11 +111,21 @@ PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t ra
     return result;
 }
 
+std::vector<PopulationDeviates> populationDeviatesByRadius(const DrawTallies& tallies,
+                                                           const std::vector<ClassGroup>& groups,
+                                                           const FractionSettings& settings) {
+    std::vector<PopulationDeviates> population;
+    for (std::size_t r = 0; r < tallies.radii; ++r) {
+        population.push_back(populationDeviates(tallies, r, groups, settings));
+    }
+    return population;
+}
+
 std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                                               const std::vector<std::int64_t>& hard_cut_members,
                                               const std::vector<double>& expected_members,
                                               const std::vector<ClassGroup>& groups,
-                                              const FractionSettings& settings) {
+                                              const std::vector<PopulationDeviates>& population_by_radius) {
     ClassGroup everything{"all", {}};
     everything.categories.set();
     std::vector<RadiusEstimate> estimates;
@@ -130,7 +140,7 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         std::vector<double> sorted_totals = totals;
         estimate.members = summarizeDraws(sorted_totals);
 
-        PopulationDeviates population = populationDeviates(tallies, r, groups, settings);
+        PopulationDeviates population = population_by_radius.at(r); // summarising reorders a copy
         for (std::size_t g = 0; g < groups.size(); ++g) {
             std::vector<double> count = groupCountsByDraw(tallies, r, groups[g]);
             std::vector<double> fraction(draws);

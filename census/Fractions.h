@@ -64,12 +64,19 @@ PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t ra
                                       const std::vector<ClassGroup>& groups,
                                       const FractionSettings& settings);
 
-/// Summaries for every radius of the tallies and every group.
+/// populationDeviates() at every radius of the tallies, for estimateFractions() and estimatePriors()
+/// (Priors.h), which summarise the same deviates.
+std::vector<PopulationDeviates> populationDeviatesByRadius(const DrawTallies& tallies,
+                                                           const std::vector<ClassGroup>& groups,
+                                                           const FractionSettings& settings);
+
+/// Summaries for every radius of the tallies and every group; `population` from
+/// populationDeviatesByRadius() with the same groups.
 std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                                               const std::vector<std::int64_t>& hard_cut_members,
                                               const std::vector<double>& expected_members,
                                               const std::vector<ClassGroup>& groups,
-                                              const FractionSettings& settings);
+                                              const std::vector<PopulationDeviates>& population);
 
 /// Member count of a group in every draw at one radius ([draw]). The tallies are draw-fastest, so this
 /// reads each of the group's categories as one contiguous run.

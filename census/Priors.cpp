@@ -71,9 +71,9 @@ BetaFit aggregateDirichlet(const DirichletFit& dirichlet, const std::vector<std:
     return {alpha, dirichlet.concentration - alpha};
 }
 
-std::vector<RadiusPriors> estimatePriors(const DrawTallies& tallies, const std::vector<double>& radii_pc,
+std::vector<RadiusPriors> estimatePriors(const std::vector<double>& radii_pc,
                                          const std::vector<ClassGroup>& groups,
-                                         const FractionSettings& settings) {
+                                         std::vector<PopulationDeviates> population) {
     if (groups.size() < photometry::kClassCount) {
         throw std::invalid_argument("estimatePriors: the groups must start with the standard classes");
     }
@@ -82,7 +82,7 @@ std::vector<RadiusPriors> estimatePriors(const DrawTallies& tallies, const std::
         RadiusPriors radius;
         radius.radius_pc = radii_pc[r];
         radius.volume_pc3 = sphereVolumePc3(radii_pc[r]);
-        PopulationDeviates deviates = populationDeviates(tallies, r, groups, settings);
+        PopulationDeviates& deviates = population.at(r);
         radius.population_deviates = deviates.count.front().size();
         for (std::size_t g = 0; g < groups.size(); ++g) {
             std::vector<double>& density = deviates.count[g];

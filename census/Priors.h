@@ -80,9 +80,10 @@ struct RadiusPriors {
 };
 
 /// Priors for every radius. `groups` starts with the standard classes (standardClassGroups(), as in
-/// CensusSettings::groups); the deviates are those of estimateFractions for the same settings.
-std::vector<RadiusPriors> estimatePriors(const DrawTallies& tallies, const std::vector<double>& radii_pc,
+/// CensusSettings::groups); `population` from populationDeviatesByRadius() with those groups (the
+/// deviates estimateFractions() summarises).
+std::vector<RadiusPriors> estimatePriors(const std::vector<double>& radii_pc,
                                          const std::vector<ClassGroup>& groups,
-                                         const FractionSettings& settings);
+                                         std::vector<PopulationDeviates> population);
 
 } // namespace starcensus::census

@@ -168,14 +168,18 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
         return hosts.enabled ? measureHosts(rows, sample, classifier, census.membership, hosts)
                              : HostMeasurements{};
     });
+    // The population deviates, drawn once and summarised two ways.
+    std::shared_future<std::vector<census::PopulationDeviates>> population =
+        std::async(std::launch::async, [&] {
+            return census::populationDeviatesByRadius(tallies, census.groups, {.seed = census.draws.seed});
+        }).share();
     std::future<void> fraction_estimates = std::async(std::launch::async, [&] {
         result.estimates = census::estimateFractions(tallies, census.radii_pc,
                                                      hardCutCounts(rows, census.radii_pc, census.membership),
-                                                     expected, census.groups, {.seed = census.draws.seed});
+                                                     expected, census.groups, population.get());
     });
     std::future<void> prior_fits = std::async(std::launch::async, [&] {
-        result.priors =
-            census::estimatePriors(tallies, census.radii_pc, census.groups, {.seed = census.draws.seed});
+        result.priors = census::estimatePriors(census.radii_pc, census.groups, population.get());
     });
     // sample.fits and the draws tables need only the draws: they are written beside the analyses.
     const std::filesystem::path& directory = settings.output_directory;

@@ -63,7 +63,8 @@ TEST_CASE("noise-free census: this-volume intervals collapse, population interva
           "intervals") {
     const auto tallies = fixedTallies(200, 30, 70);
     const auto groups = census::standardClassGroups();
-    const auto estimates = census::estimateFractions(tallies, {10.0}, {100}, {100.0}, groups, {});
+    const auto estimates = census::estimateFractions(tallies, {10.0}, {100}, {100.0}, groups,
+                                                     census::populationDeviatesByRadius(tallies, groups, {}));
     REQUIRE(estimates.size() == 1);
     const auto& g = estimates[0].groups[static_cast<std::size_t>(StellarClass::G)];
     CHECK(g.fraction.this_volume.median == doctest::Approx(0.3));
@@ -88,9 +89,12 @@ TEST_CASE("population 68% intervals cover the true fraction at the quoted rate (
     for (int trial = 0; trial < kTrials; ++trial) {
         std::binomial_distribution<std::uint32_t> binomial(150, true_fraction);
         const std::uint32_t n = binomial(random);
+        const auto tallies = fixedTallies(50, n, 150 - n);
         const auto estimates = census::estimateFractions(
-            fixedTallies(50, n, 150 - n), {10.0}, {150}, {150.0}, groups,
-            {.population_deviates_per_draw = 8, .seed = static_cast<std::uint64_t>(trial)});
+            tallies, {10.0}, {150}, {150.0}, groups,
+            census::populationDeviatesByRadius(
+                tallies, groups,
+                {.population_deviates_per_draw = 8, .seed = static_cast<std::uint64_t>(trial)}));
         const auto& interval =
             estimates[0].groups[static_cast<std::size_t>(StellarClass::G)].fraction.population;
         covered += interval.lo68 <= true_fraction && true_fraction <= interval.hi68 ? 1 : 0;

@@ -48,8 +48,10 @@ Trial runTrial(std::uint64_t seed, const photometry::ClassGrid& grid) {
                                         &photometry::Classifier::shipped());
     const census::DrawTallies tallies =
         census::drawSample(sample, grid, {.draws = 100, .seed = seed, .threads = 1});
-    trial.estimates = census::estimateFractions(tallies, {kRadiusPc}, {0}, {sample.expectedCount(0)},
-                                                census::standardClassGroups(), {.seed = seed});
+    const auto groups = census::standardClassGroups();
+    trial.estimates =
+        census::estimateFractions(tallies, {kRadiusPc}, {0}, {sample.expectedCount(0)}, groups,
+                                  census::populationDeviatesByRadius(tallies, groups, {.seed = seed}));
     return trial;
 }
 
@@ -119,8 +121,10 @@ TEST_CASE("rules of thumb on a mock at the usual local density") {
     const census::PreparedSample sample(rows, {20.0}, census::MembershipSettings{}, 5.0, 0,
                                         &photometry::Classifier::shipped());
     const auto tallies = census::drawSample(sample, grid, {.draws = 100, .seed = 7, .threads = 0});
-    const auto estimates = census::estimateFractions(tallies, {20.0}, {0}, {sample.expectedCount(0)},
-                                                     census::standardClassGroups(), {});
+    const auto standard_groups = census::standardClassGroups();
+    const auto estimates =
+        census::estimateFractions(tallies, {20.0}, {0}, {sample.expectedCount(0)}, standard_groups,
+                                  census::populationDeviatesByRadius(tallies, standard_groups, {}));
     const auto& groups = estimates[0].groups;
     const auto count = [&](StellarClass c) {
         return groups[static_cast<std::size_t>(c)].count.this_volume.median;

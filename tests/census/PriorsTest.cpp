@@ -125,7 +125,9 @@ TEST_CASE("noise-free census: the fits recover the Jeffreys-Dirichlet posterior 
     const auto tallies = fixedTallies(400, {{42, 30}, {53, 20}, {64, 50}});
     auto groups = census::standardClassGroups();
     groups.push_back(census::parseClassGroup("GK=G,K"));
-    const auto priors = census::estimatePriors(tallies, {10.0}, groups, {.population_deviates_per_draw = 8});
+    const auto priors = census::estimatePriors(
+        {10.0}, groups,
+        census::populationDeviatesByRadius(tallies, groups, {.population_deviates_per_draw = 8}));
     REQUIRE(priors.size() == 1);
     const auto& radius = priors[0];
     CHECK(radius.population_deviates == 3200);
@@ -165,8 +167,9 @@ TEST_CASE(
     auto groups = census::standardClassGroups();
     groups.push_back(census::parseClassGroup("FGK=F,G,K"));
     groups.push_back(census::parseClassGroup("earlyM=M0-M4"));
-    const auto priors =
-        census::estimatePriors(tallies, radii, groups, {.population_deviates_per_draw = 40, .seed = 7});
+    const auto priors = census::estimatePriors(
+        radii, groups,
+        census::populationDeviatesByRadius(tallies, groups, {.population_deviates_per_draw = 40, .seed = 7}));
 
     census::Xoshiro256 random(99);
     constexpr std::size_t kSamples = 200000;
