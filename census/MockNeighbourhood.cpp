@@ -6,6 +6,8 @@
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <tuple>
+#include <utility>
 
 namespace starcensus::census {
 
@@ -50,12 +52,13 @@ double observeMagnitude(double true_mag, double sigma_mag, Xoshiro256& random) {
     return relative_flux > 0.0 ? true_mag - 2.5 * std::log10(relative_flux) : kNaN;
 }
 
-// Observed value of a band of the 2MASS-like survey: NaN beyond its limit.
-double twoMassObservation(double true_mag, double limit_mag, Xoshiro256& random) {
+// Observed value of a band of the 2MASS-like survey and its quoted error (mag): NaN beyond its limit.
+std::pair<double, double> twoMassObservation(double true_mag, double limit_mag, Xoshiro256& random) {
     if (std::isnan(true_mag) || true_mag > limit_mag) {
-        return kNaN;
+        return {kNaN, kNaN};
     }
-    return true_mag + twoMassErrorMag(true_mag, limit_mag) * random.normal();
+    const double error_mag = twoMassErrorMag(true_mag, limit_mag);
+    return {true_mag + error_mag * random.normal(), error_mag};
 }
 
 } // namespace
@@ -333,9 +336,12 @@ bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::Catalo
             to_pm * s.velocity_dispersion_km_s * properties_.normal() + pm_error * properties_.normal();
         row.pmdec_mas_per_yr =
             to_pm * s.velocity_dispersion_km_s * properties_.normal() + pm_error * properties_.normal();
-        row.j_mag = twoMassObservation(abs.j + modulus, s.j_limit_mag, properties_);
-        row.h_mag = twoMassObservation(abs.h + modulus, s.h_limit_mag, properties_);
-        row.ks_mag = twoMassObservation(abs.ks + modulus, s.ks_limit_mag, properties_);
+        std::tie(row.j_mag, row.j_error_mag) =
+            twoMassObservation(abs.j + modulus, s.j_limit_mag, properties_);
+        std::tie(row.h_mag, row.h_error_mag) =
+            twoMassObservation(abs.h + modulus, s.h_limit_mag, properties_);
+        std::tie(row.ks_mag, row.ks_error_mag) =
+            twoMassObservation(abs.ks + modulus, s.ks_limit_mag, properties_);
         if (has_companion && properties_.uniform() < s.binary_high_ruwe_share) {
             row.ruwe = s.binary_high_ruwe_min *
                        std::pow(s.binary_high_ruwe_max / s.binary_high_ruwe_min, properties_.uniform());

@@ -32,6 +32,9 @@ enum Column : std::size_t {
     kH,
     kKs,
     kRuwe,
+    kJError,
+    kHError,
+    kKsError,
 };
 
 // Flux signal-to-noise of a magnitude error: sigma_mag = (2.5 / ln 10) sigma_flux / flux.
@@ -96,6 +99,9 @@ std::vector<FitsColumn> mockCatalogColumns() {
         col("h_m", Float32, "mag", "phot.mag;em.IR.H", "2MASS H magnitude"),
         col("ks_m", Float32, "mag", "phot.mag;em.IR.K", "2MASS Ks magnitude"),
         col("ruwe", Float32, "", "stat.fit.goodness", "Renormalised unit weight error"),
+        col("j_msigcom", Float32, "mag", "stat.error;phot.mag;em.IR.J", "2MASS J total uncertainty"),
+        col("h_msigcom", Float32, "mag", "stat.error;phot.mag;em.IR.H", "2MASS H total uncertainty"),
+        col("ks_msigcom", Float32, "mag", "stat.error;phot.mag;em.IR.K", "2MASS Ks total uncertainty"),
     };
 }
 
@@ -133,6 +139,9 @@ void MockCatalogWriter::append(std::span<const CatalogRow> rows) {
         block_.values<float>(kH).push_back(f(row.h_mag));
         block_.values<float>(kKs).push_back(f(row.ks_mag));
         block_.values<float>(kRuwe).push_back(f(row.ruwe));
+        block_.values<float>(kJError).push_back(f(row.j_error_mag));
+        block_.values<float>(kHError).push_back(f(row.h_error_mag));
+        block_.values<float>(kKsError).push_back(f(row.ks_error_mag));
     }
     writer_.append(block_);
 }

@@ -23,10 +23,13 @@ struct CatalogRow {
     double g_error_mag = kMissing;
     double bp_error_mag = kMissing;
     double rp_error_mag = kMissing;
-    double j_mag = kMissing;      // 2MASS J
-    double h_mag = kMissing;      // 2MASS H
-    double ks_mag = kMissing;     // 2MASS Ks
-    double ruwe = kMissing;       // renormalised unit weight error (dimensionless)
+    double j_mag = kMissing;       // 2MASS J
+    double h_mag = kMissing;       // 2MASS H
+    double ks_mag = kMissing;      // 2MASS Ks
+    double ruwe = kMissing;        // renormalised unit weight error (dimensionless)
+    double j_error_mag = kMissing; // 2MASS J, H, Ks uncertainties (mag)
+    double h_error_mag = kMissing;
+    double ks_error_mag = kMissing;
     std::uint32_t file_index = 0; // which input file the row came from
     std::int64_t row_index = 0;   // 0-based row within that file's table
 };

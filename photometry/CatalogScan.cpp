@@ -52,6 +52,9 @@ double CatalogRow::*rowMember(CatalogField field) {
         &CatalogRow::h_mag,
         &CatalogRow::ks_mag,
         &CatalogRow::ruwe,
+        &CatalogRow::j_error_mag,
+        &CatalogRow::h_error_mag,
+        &CatalogRow::ks_error_mag,
     };
     return members[static_cast<std::size_t>(field)];
 }

@@ -131,6 +131,12 @@ const FieldRule& fieldRule(CatalogField field) {
         {{"phot.mag;em.ir.h"}, {"h_m", "hmag", "h_mag"}},
         {{"phot.mag;em.ir.k"}, {"ks_m", "k_m", "ksmag", "kmag", "ks_mag"}},
         {{}, {"ruwe"}},
+        // 2MASS PSC: j_msigcom (total uncertainty) or j_cmsig (corrected photometric); VizieR's e_Jmag.
+        {{"stat.error;phot.mag;em.ir.j"}, {"j_msigcom", "e_jmag", "j_cmsig", "j_mag_error", "jmag_error"}},
+        {{"stat.error;phot.mag;em.ir.h"}, {"h_msigcom", "e_hmag", "h_cmsig", "h_mag_error", "hmag_error"}},
+        {{"stat.error;phot.mag;em.ir.k"},
+         {"ks_msigcom", "k_msigcom", "e_kmag", "e_ksmag", "k_cmsig", "ks_cmsig", "ks_mag_error",
+          "kmag_error"}},
     }};
     return rules[static_cast<std::size_t>(field)];
 }

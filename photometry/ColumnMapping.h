@@ -38,14 +38,17 @@ enum class CatalogField : std::uint8_t {
     H,
     Ks,
     Ruwe,
+    JError,
+    HError,
+    KsError,
 };
 
-inline constexpr std::size_t kCatalogFieldCount = 17;
+inline constexpr std::size_t kCatalogFieldCount = 20;
 /// The logical names used by --column and --unit, in CatalogField order.
 inline constexpr std::array<std::string_view, kCatalogFieldCount> kCatalogFieldNames = {
-    "source_id", "ra", "dec", "parallax", "parallax_error", "pmra",     "pmdec",
-    "g",         "bp", "rp",  "g_error",  "bp_error",       "rp_error", "j",
-    "h",         "ks", "ruwe"};
+    "source_id", "ra", "dec",  "parallax", "parallax_error", "pmra",     "pmdec",
+    "g",         "bp", "rp",   "g_error",  "bp_error",       "rp_error", "j",
+    "h",         "ks", "ruwe", "j_error",  "h_error",        "ks_error"};
 
 constexpr std::string_view fieldName(CatalogField field) {
     return kCatalogFieldNames[static_cast<std::size_t>(field)];

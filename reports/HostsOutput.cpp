@@ -61,7 +61,11 @@ HostUncertainty teffMassUncertainty(const photometry::CatalogRow& row,
         input.g_mag = perturbed(row.g_mag, row.g_error_mag, normal(static_cast<std::uint32_t>(bits)));
         input.bp_mag =
             perturbed(row.bp_mag, row.bp_error_mag, normal(static_cast<std::uint32_t>(bits >> 32)));
-        input.rp_mag = perturbed(row.rp_mag, row.rp_error_mag, normal(static_cast<std::uint32_t>(random())));
+        const std::uint64_t more_bits = random();
+        input.rp_mag = perturbed(row.rp_mag, row.rp_error_mag, normal(static_cast<std::uint32_t>(more_bits)));
+        input.j_mag =
+            perturbed(row.j_mag, row.j_error_mag, normal(static_cast<std::uint32_t>(more_bits >> 32)));
+        input.ks_mag = perturbed(row.ks_mag, row.ks_error_mag, normal(static_cast<std::uint32_t>(random())));
         const photometry::Classification result = classifier.classify(input);
         if (std::isfinite(result.teff_k)) {
             teff.push_back(result.teff_k);

@@ -4,11 +4,12 @@
 // classifier, as in sample.fits), Teff and mass and their uncertainties.
 //
 // Uncertainties: each host is re-measured `realisations` times: a distance modulus from its membership
-// posterior (census/Membership.h, the same posterior as the Monte Carlo) and G, BP, RP with Gaussian
-// errors of the catalogue's sizes; each realisation is classified with the exact classifier. teff_error and
-// mass_error are half the central 68% range of the realisations' Teff and mass (NaN when fewer than half
-// of the realisations have one, e.g. white dwarfs, evolved stars and unclassified objects). The spread is
-// that of the measurements through the locus; the locus's own scatter is not included.
+// posterior (census/Membership.h, the same posterior as the Monte Carlo) and G, BP, RP, J and Ks with
+// Gaussian errors of the catalogue's sizes (a band without an error is held fixed); each realisation is
+// classified with the exact classifier. teff_error and mass_error are half the central 68% range of the
+// realisations' Teff and mass (NaN when fewer than half of the realisations have one, e.g. white dwarfs,
+// evolved stars and unclassified objects). The spread is that of the measurements through the locus; the
+// locus's own scatter is not included.
 #include "census/Membership.h"
 #include "census/MonteCarlo.h"
 #include "photometry/CatalogRow.h"

@@ -57,6 +57,8 @@ TEST_CASE("2MASS and VizieR names map by name, case-insensitively") {
                                    {"j_m", "mag", ""},
                                    {"H_M", "mag", ""},
                                    {"k_m", "mag", ""},
+                                   {"j_msigcom", "mag", ""},
+                                   {"e_Kmag", "mag", ""},
                                    {"RA_ICRS", "deg", ""},
                                    {"DE_ICRS", "deg", ""},
                                    {"pmDE", "mas/yr", ""}});
@@ -65,6 +67,11 @@ TEST_CASE("2MASS and VizieR names map by name, case-insensitively") {
     CHECK_FALSE(mapping[CatalogField::GError]->flux_over_error);
     CHECK(mapping[CatalogField::H]->column_name == "H_M");
     CHECK(mapping[CatalogField::Ks]->column_name == "k_m");
+    // 2MASS PSC's total uncertainty and VizieR's e_Kmag (2MASS PSC and VizieR II/246 column names).
+    CHECK(mapping[CatalogField::JError]->column_name == "j_msigcom");
+    CHECK(mapping[CatalogField::KsError]->column_name == "e_Kmag");
+    CHECK_FALSE(mapping[CatalogField::JError]->flux_over_error);
+    CHECK_FALSE(mapping[CatalogField::HError].has_value());
     CHECK(mapping[CatalogField::Dec]->column_name == "DE_ICRS");
     CHECK(mapping[CatalogField::Pmdec]->column_name == "pmDE");
 }
@@ -79,6 +86,7 @@ TEST_CASE("UCDs beat names and the user's mapping beats both") {
                                    {"MAG_BP", "mag", "PHOT.MAG;EM.OPT.B"},
                                    {"SNR_G", "", "stat.snr;phot.flux;em.opt"},
                                    {"KS", "mag", "phot.mag;em.IR.K;meta.main"},
+                                   {"KS_SIG", "mag", "stat.error;phot.mag;em.IR.K"},
                                    {"RA_MAIN", "deg", "pos.eq.ra;meta.main"},
                                    {"RA_OTHER", "deg", "pos.eq.ra"},
                                    {"ID", "", "meta.id;meta.main"}});
@@ -91,6 +99,8 @@ TEST_CASE("UCDs beat names and the user's mapping beats both") {
     CHECK(mapping[CatalogField::GError]->column_name == "SNR_G");
     CHECK(mapping[CatalogField::GError]->flux_over_error);
     CHECK(mapping[CatalogField::Ks]->column_name == "KS");
+    CHECK(mapping[CatalogField::KsError]->column_name == "KS_SIG");
+    CHECK(mapping[CatalogField::KsError]->route == MappingRoute::Ucd);
     CHECK(mapping[CatalogField::Ra]->column_name == "RA_MAIN");
     CHECK(mapping[CatalogField::SourceId]->column_name == "ID");
 
