@@ -11,7 +11,6 @@
 #include <limits>
 #include <map>
 #include <random>
-#include <thread>
 
 namespace starcensus::census {
 
@@ -129,8 +128,7 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
             seen[r].push_back(groupCountsByDraw(tallies, r, group));
         }
     }
-    // Each draw has its own stream and its own slots: threads take interleaved draws and the result does
-    // not depend on their number.
+    // Each draw has its own stream and its own slots, so the result does not depend on the threads.
     const auto correct_draw = [&](std::size_t d) {
         Xoshiro256 random(seed, kCorrectionStreamBase + d);
         const std::vector<double> theta = drawParameters(fit, factor, random);
@@ -158,20 +156,7 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
             }
         }
     };
-    const unsigned workers = std::max(1u, std::min<unsigned>(resolveThreadCount(threads), 64));
-    {
-        std::vector<std::jthread> pool;
-        for (unsigned t = 1; t < workers; ++t) {
-            pool.emplace_back([&, t] {
-                for (std::size_t d = t; d < draws; d += workers) {
-                    correct_draw(d);
-                }
-            });
-        }
-        for (std::size_t d = 0; d < draws; d += workers) {
-            correct_draw(d);
-        }
-    }
+    forEachInterleaved(draws, threads, correct_draw);
 
     const std::vector<double> best_shares = model.cellShares(InitialMassFunction(fit.imf));
     std::vector<CorrectedRadius> result;

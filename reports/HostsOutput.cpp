@@ -13,7 +13,6 @@
 #include <cstdio>
 #include <limits>
 #include <string>
-#include <thread>
 
 namespace starcensus::reports {
 
@@ -163,18 +162,10 @@ HostMeasurements measureHosts(std::span<const photometry::CatalogRow> rows,
     // Each host has its own stream, so the result does not depend on the thread count.
     const std::vector<std::size_t>& hosts = measured.rows;
     measured.uncertainties.resize(hosts.size());
-    const unsigned threads = resolveThreadCount(settings.threads);
-    {
-        std::vector<std::jthread> workers;
-        for (unsigned t = 0; t < threads; ++t) {
-            workers.emplace_back([&, t] {
-                for (std::size_t h = t; h < hosts.size(); h += threads) {
-                    measured.uncertainties[h] =
-                        teffMassUncertainty(rows[hosts[h]], classifier, membership, settings, hosts[h]);
-                }
-            });
-        }
-    }
+    forEachInterleaved(hosts.size(), settings.threads, [&](std::size_t h) {
+        measured.uncertainties[h] =
+            teffMassUncertainty(rows[hosts[h]], classifier, membership, settings, hosts[h]);
+    });
     return measured;
 }
 
