@@ -537,6 +537,28 @@ bool equalIgnoringCase(const std::string& a, const std::string& b) {
            });
 }
 
+/// The summary of HDU `index` of cfitsio type `type` (IMAGE_HDU, ASCII_TBL, BINARY_TBL) from its header's
+/// EXTNAME, NAXISn and TFIELDS: the same for a header read by cfitsio and one parsed from a gzip stream.
+HduSummary summariseHdu(int index, int type, std::string name, const std::vector<long long>& axes,
+                        long long tfields) {
+    HduSummary hdu;
+    hdu.index = index;
+    hdu.type = hduTypeName(type);
+    hdu.name = std::move(name);
+    if (type == IMAGE_HDU) {
+        for (const long long length : axes) {
+            hdu.image_shape.append(hdu.image_shape.empty() ? "" : "x").append(std::to_string(length));
+        }
+        if (hdu.image_shape.empty()) {
+            hdu.image_shape = "none";
+        }
+    } else {
+        hdu.rows = axes.size() >= 2 ? axes[1] : 0;
+        hdu.columns = static_cast<int>(tfields);
+    }
+    return hdu;
+}
+
 constexpr std::size_t kFitsRecordBytes = 2880; // FITS logical record (FITS Standard 4.0, section 3.1)
 
 /// The keywords of one FITS header that locate its HDU and its data (FITS Standard 4.0, section 4.4).
@@ -652,23 +674,10 @@ std::optional<std::vector<HduSummary>> listGzipHdus(const std::string& path) {
         if (!header) {
             return index > 0 && clean_end ? std::optional(hdus) : std::nullopt;
         }
-        HduSummary hdu;
-        hdu.index = index;
-        hdu.name = header->extname;
-        if (header->xtension.empty() || header->xtension == "IMAGE") {
-            hdu.type = hduTypeName(IMAGE_HDU);
-            for (const long long length : header->axes) {
-                hdu.image_shape.append(hdu.image_shape.empty() ? "" : "x").append(std::to_string(length));
-            }
-            if (hdu.image_shape.empty()) {
-                hdu.image_shape = "none";
-            }
-        } else {
-            hdu.type = hduTypeName(header->xtension == "TABLE" ? ASCII_TBL : BINARY_TBL);
-            hdu.rows = header->axes.size() >= 2 ? header->axes[1] : 0;
-            hdu.columns = static_cast<int>(header->tfields);
-        }
-        hdus.push_back(std::move(hdu));
+        const int type = header->xtension.empty() || header->xtension == "IMAGE" ? IMAGE_HDU
+                         : header->xtension == "TABLE"                           ? ASCII_TBL
+                                                                                 : BINARY_TBL;
+        hdus.push_back(summariseHdu(index, type, header->extname, header->axes, header->tfields));
         for (std::size_t left = header->paddedDataBytes(); left > 0;) {
             const std::size_t chunk = std::min(left, discard.size());
             if (gzip.read(discard.data(), chunk, path) != chunk) {
@@ -919,24 +928,13 @@ std::vector<HduSummary> listHdus(const std::string& path) {
     const int count = file.hduCount();
     for (int index = 0; index < count; ++index) {
         const int type = file.moveTo(index);
-        HduSummary hdu;
-        hdu.index = index;
-        hdu.type = hduTypeName(type);
-        hdu.name = file.optionalText("EXTNAME").value_or("");
-        if (type == IMAGE_HDU) {
-            const auto axes = file.optionalKey<LONGLONG>("NAXIS").value_or(0);
-            for (LONGLONG axis = 1; axis <= axes; ++axis) {
-                const auto length = file.optionalKey<LONGLONG>("NAXIS" + std::to_string(axis)).value_or(0);
-                hdu.image_shape.append(axis == 1 ? "" : "x").append(std::to_string(length));
-            }
-            if (hdu.image_shape.empty()) {
-                hdu.image_shape = "none";
-            }
-        } else {
-            hdu.rows = file.optionalKey<LONGLONG>("NAXIS2").value_or(0);
-            hdu.columns = static_cast<int>(file.optionalKey<LONGLONG>("TFIELDS").value_or(0));
+        std::vector<long long> axes(
+            static_cast<std::size_t>(std::max<LONGLONG>(0, file.optionalKey<LONGLONG>("NAXIS").value_or(0))));
+        for (std::size_t axis = 0; axis < axes.size(); ++axis) {
+            axes[axis] = file.optionalKey<LONGLONG>("NAXIS" + std::to_string(axis + 1)).value_or(0);
         }
-        hdus.push_back(std::move(hdu));
+        hdus.push_back(summariseHdu(index, type, file.optionalText("EXTNAME").value_or(""), axes,
+                                    file.optionalKey<LONGLONG>("TFIELDS").value_or(0)));
     }
     return hdus;
 }
