@@ -75,6 +75,13 @@ class Xxh128 {
     std::unique_ptr<XXH3_state_t, decltype(&XXH3_freeState)> state_;
 };
 
+template <class Digest>
+std::string digestString(const std::string& bytes) {
+    Digest digest;
+    digest.update(bytes.data(), bytes.size());
+    return digest.hex();
+}
+
 /// The file's bytes, 1 MiB at a time, into digest.update(); InputError naming the file on failure.
 template <class Digest>
 std::string digestFile(const std::filesystem::path& path) {
@@ -117,15 +124,11 @@ nlohmann::json anyToJson(const boost::any& value) {
 } // namespace
 
 std::string sha256Hex(const std::string& bytes) {
-    Sha256 digest;
-    digest.update(bytes.data(), bytes.size());
-    return digest.hex();
+    return digestString<Sha256>(bytes);
 }
 
 std::string xxh128Hex(const std::string& bytes) {
-    Xxh128 digest;
-    digest.update(bytes.data(), bytes.size());
-    return digest.hex();
+    return digestString<Xxh128>(bytes);
 }
 
 ChecksumAlgorithm checksumAlgorithmNamed(const std::string& name) {
