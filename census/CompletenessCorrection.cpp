@@ -16,7 +16,7 @@ namespace starcensus::census {
 
 namespace {
 
-// Streams of the parameter and Poisson deviates, far from the Monte Carlo's per-block streams.
+// Streams of the parameter and Poisson deviates, far from the Monte Carlo's per-star streams.
 constexpr std::uint64_t kCorrectionStreamBase = 0xc0de000000000000ULL;
 constexpr int kMaxParameterTries = 100;
 

@@ -11,7 +11,7 @@ namespace starcensus::census {
 
 namespace {
 
-// Streams for the population deviates sit far from the Monte Carlo's per-block streams.
+// Streams for the population deviates sit far from the Monte Carlo's per-star streams.
 constexpr std::uint64_t kPopulationStreamBase = 0x5eed000000000000ULL;
 
 /// The prior shape of each census category: the class's shape shared equally among its categories.

@@ -2,7 +2,8 @@
 // A rasterised classifier for the Monte Carlo hot loop: the census category (StellarClass.h) of every
 // cell of a fine grid in (BP-RP, M_G), and of a 1-D grid in M_G for objects without colours. A 2-D cell
 // is classified (by the exact classifier, at its centre) the first time a lookup reaches it: a census
-// touches a few thousand of the grid's ~560,000 cells. After that a lookup is two multiplies and a load.
+// touches ~11,000 of the grid's ~560,000 cells (25 pc bench). After that a lookup is two multiplies and a
+// load.
 #include "photometry/StellarClass.h"
 
 #include <atomic>

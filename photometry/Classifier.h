@@ -147,7 +147,7 @@ class Classifier {
     Classification classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag = kNaN,
                                     double abs_j_mag = kNaN, double j_ks_mag = kNaN) const;
     /// classifyAbsolute()'s class, subtype code and flags without Teff and mass (left NaN) and without
-    /// the white-dwarf grid's OutsideLocus flag: what the class grid needs at ~600k cells.
+    /// the white-dwarf grid's OutsideLocus flag: what the class grid needs for each cell it classifies.
     Classification classifyClassOnly(double abs_g_mag, double bp_rp_mag) const;
 
   private:
