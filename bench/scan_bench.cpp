@@ -2,7 +2,7 @@
 // from the given files, and prints rows per second, wall time and the peak resident memory of the process.
 // Not a test: figures depend on the machine and on the page cache.
 // Usage: scan_bench [--radius PC] [--threads N] [--block-kib KIB] FILE...
-#include "photometry/CatalogScan.h"
+#include "photometry/catalog/CatalogScan.h"
 
 #include <sys/resource.h>
 

@@ -1,7 +1,7 @@
 #include "census/CensusOptions.h"
 
-#include "photometry/InputError.h"
-#include "photometry/OptionChecks.h"
+#include "photometry/base/InputError.h"
+#include "photometry/base/OptionChecks.h"
 
 #include <algorithm>
 #include <charconv>

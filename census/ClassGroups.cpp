@@ -1,7 +1,7 @@
 #include "census/ClassGroups.h"
 
 #include "photometry/DwarfLocus.h"
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <charconv>
 #include <cmath>

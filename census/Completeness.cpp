@@ -1,7 +1,7 @@
 #include "census/Completeness.h"
 
 #include "census/Fractions.h"
-#include "photometry/OptionChecks.h"
+#include "photometry/base/OptionChecks.h"
 
 #include <algorithm>
 #include <cmath>
@@ -105,7 +105,7 @@ double estimateFaintLimitMag(std::span<const double> g_mag, const CompletenessSe
     return start + static_cast<double>(bins) * bin;
 }
 
-std::vector<std::array<double, 2>> categoryAbsGRanges(const MockPhotometry& photometry,
+std::vector<std::array<double, 2>> categoryAbsGRanges(const photometry::ModelPhotometry& photometry,
                                                       const CompletenessSettings& settings) {
     std::vector<std::array<double, 2>> ranges(photometry::kCategoryCount, {kNaN, kNaN});
     for (std::size_t k = 0; k < photometry::kDwarfCategories; ++k) {

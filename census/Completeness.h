@@ -11,7 +11,7 @@
 //  - Cumulative counts N(<r) against uniform r^3 growth: the completeness radius is the largest r up to
 //    which the distances inside every r' <= r pass a Kolmogorov-Smirnov test against (d / r')^3 uniform.
 #include "census/ClassGroups.h"
-#include "census/MockPhotometry.h"
+#include "photometry/ModelPhotometry.h"
 #include "photometry/StellarClass.h"
 
 #include <array>
@@ -83,7 +83,7 @@ double estimateFaintLimitMag(std::span<const double> g_mag, const CompletenessSe
 /// [min, max] M_G of every census category: dwarf subtypes from the dwarf locus through
 /// `photometry.dwarf(code)` over the subtype [k, k + 1); white dwarfs and evolved from the settings;
 /// NaN for unclassified.
-std::vector<std::array<double, 2>> categoryAbsGRanges(const MockPhotometry& photometry,
+std::vector<std::array<double, 2>> categoryAbsGRanges(const photometry::ModelPhotometry& photometry,
                                                       const CompletenessSettings& settings);
 
 struct VOverVmax {

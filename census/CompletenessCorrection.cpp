@@ -2,7 +2,7 @@
 
 #include "census/Fractions.h"
 #include "census/Random.h"
-#include "photometry/Threads.h"
+#include "photometry/base/Threads.h"
 
 #include <Eigen/Dense>
 
@@ -156,7 +156,7 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
             }
         }
     };
-    forEachInterleaved(draws, threads, correct_draw);
+    forEachIndex(draws, threads, correct_draw);
 
     const std::vector<double> best_shares = model.cellShares(InitialMassFunction(fit.imf));
     std::vector<CorrectedRadius> result;

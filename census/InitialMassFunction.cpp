@@ -1,6 +1,6 @@
 #include "census/InitialMassFunction.h"
 
-#include "photometry/OptionChecks.h"
+#include "photometry/base/OptionChecks.h"
 
 #include <algorithm>
 #include <cmath>

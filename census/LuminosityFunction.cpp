@@ -1,7 +1,7 @@
 #include "census/LuminosityFunction.h"
 
 #include "census/Intervals.h"
-#include "photometry/OptionChecks.h"
+#include "photometry/base/OptionChecks.h"
 
 #include <algorithm>
 #include <cmath>

@@ -1,8 +1,8 @@
 #include "census/LuminosityOptions.h"
 
 #include "census/CensusOptions.h"
-#include "photometry/InputError.h"
-#include "photometry/OptionChecks.h"
+#include "photometry/base/InputError.h"
+#include "photometry/base/OptionChecks.h"
 
 #include <boost/program_options/value_semantic.hpp>
 

@@ -1,8 +1,8 @@
 #include "census/MassFunctionFit.h"
 
 #include "census/Fractions.h"
-#include "census/MockNeighbourhood.h"
-#include "photometry/OptionChecks.h"
+#include "photometry/ModelPhotometry.h"
+#include "photometry/base/OptionChecks.h"
 
 #include <Eigen/Dense>
 #include <boost/math/special_functions/gamma.hpp>
@@ -144,7 +144,8 @@ std::vector<std::string> parameterNames(ImfFamily family) {
 } // namespace
 
 LuminosityModel::LuminosityModel(double mass_min_msun, double mass_max_msun,
-                                 const LuminosityModelSettings& settings, const MockPhotometry& photometry)
+                                 const LuminosityModelSettings& settings,
+                                 const photometry::ModelPhotometry& photometry)
     : settings_(settings) {
     const int cells = settings.mass_cells;
     const double log_min = std::log10(mass_min_msun);
@@ -170,7 +171,7 @@ LuminosityModel::LuminosityModel(double mass_min_msun, double mass_max_msun,
             for (int a = 0; a < ages; ++a) {
                 const double age_gyr = settings.disc_age_gyr * (a + 0.5) / ages;
                 const double teff_k =
-                    std::clamp(brownDwarfTeffK(mass, age_gyr), settings.brown_dwarf_teff_min_k,
+                    std::clamp(photometry::brownDwarfTeffK(mass, age_gyr), settings.brown_dwarf_teff_min_k,
                                settings.brown_dwarf_teff_max_k);
                 add(j, photometry.codeOfTeff(teff_k), 1.0f / static_cast<float>(ages));
             }

@@ -5,13 +5,14 @@
 // Model (LuminosityModel): a stellar system of primary mass m drawn from the IMF xi(m)
 // (InitialMassFunction.h).
 //  - Hydrogen burners on the main sequence: M_G(m) from the dwarf locus (mass -> spectral code -> M_G,
-//    photometry/DwarfLocus.h through MockPhotometry), i.e. Phi(M_G) = n xi(m(M_G)) |dm/dM_G|, integrated
-//    exactly over cells in mass (each cell's share is an exact IMF integral, so plateaus of the
+//    photometry/DwarfLocus.h through photometry/ModelPhotometry.h), i.e. Phi(M_G) = n xi(m(M_G)) |dm/dM_G|,
+//    integrated exactly over cells in mass (each cell's share is an exact IMF integral, so plateaus of the
 //    mass-magnitude relation need no derivative). Above 1 Msun only the share t_MS(m) / T of a constant
 //    star-formation history of age T is still on the main sequence (Miller & Scalo 1979, ApJS 41, 513),
 //    t_MS = t_sun (m / Msun)^-2.5 (common practice, no source).
 //  - Brown dwarfs (below the hydrogen-burning limit): ages uniform in [0, T], Teff(m, t) from the
-//    Burrows et al. (2001) approximation (brownDwarfTeffK, MockNeighbourhood.h), Teff -> code -> M_G.
+//    Burrows et al. (2001) approximation (brownDwarfTeffK, photometry/ModelPhotometry.h), Teff -> code ->
+//    M_G.
 //  - An intrinsic Gaussian scatter in M_G; a star of M_G counts in a survey volume V_eff(M_G)
 //    (Completeness.h).
 // Fit (fitMassFunction): binned Poisson likelihood ln L = sum_i [n_i ln mu_i - mu_i - ln Gamma(n_i + 1)]
@@ -25,7 +26,7 @@
 #include "census/Completeness.h"
 #include "census/InitialMassFunction.h"
 #include "census/LuminosityFunction.h"
-#include "census/MockPhotometry.h"
+#include "photometry/ModelPhotometry.h"
 
 #include <array>
 #include <cstdint>
@@ -59,7 +60,7 @@ class LuminosityModel {
     };
 
     LuminosityModel(double mass_min_msun, double mass_max_msun, const LuminosityModelSettings& settings,
-                    const MockPhotometry& photometry);
+                    const photometry::ModelPhotometry& photometry);
 
     /// The IMF share of each mass cell (sums to 1 over the IMF's range).
     std::vector<double> cellShares(const InitialMassFunction& imf) const;

@@ -186,4 +186,18 @@ bool insideByHardCut(double parallax_mas, double radius_pc, const MembershipSett
     return correctedParallax(parallax_mas, settings) > 1000.0 / radius_pc;
 }
 
+std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
+                                        const std::vector<double>& radii_pc,
+                                        const MembershipSettings& settings) {
+    std::vector<std::int64_t> counts;
+    for (const double radius : radii_pc) {
+        std::int64_t inside = 0;
+        for (const auto& row : rows) {
+            inside += insideByHardCut(row.parallax_mas, radius, settings) ? 1 : 0;
+        }
+        counts.push_back(inside);
+    }
+    return counts;
+}
+
 } // namespace starcensus::census

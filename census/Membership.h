@@ -8,8 +8,11 @@
 //    (Lutz & Kelker 1973, PASP 85, 573; Bailer-Jones 2015, PASP 127, 994, Sect. 5);
 //  - flat in parallax, p(t) = const for t >= 1000 / r_max (a "no prior" reference case).
 // Then P(r < R | plx_obs) = ∫_{1000/R}^∞ p(t) N(plx_obs; t, sigma) dt / ∫_{1000/r_max}^∞ (same) dt.
+#include "photometry/catalog/CatalogRow.h"
+
 #include <array>
 #include <cstdint>
+#include <span>
 #include <vector>
 
 namespace starcensus::census {
@@ -68,5 +71,10 @@ double membershipProbability(double parallax_mas, double parallax_error_mas, dou
 
 /// The classic hard cut: corrected parallax > 1000 / radius_pc.
 bool insideByHardCut(double parallax_mas, double radius_pc, const MembershipSettings& settings);
+
+/// Rows inside each radius by the hard cut: the "hard_cut_members" of fractions.json.
+std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
+                                        const std::vector<double>& radii_pc,
+                                        const MembershipSettings& settings);
 
 } // namespace starcensus::census

@@ -2,14 +2,13 @@
 
 #include "census/Random.h"
 #include "census/detail/FastNormal.h"
-#include "photometry/Threads.h"
+#include "photometry/base/Threads.h"
 
 #include <algorithm>
 #include <cmath>
 #include <limits>
 #include <numeric>
 #include <optional>
-#include <thread>
 
 namespace starcensus::census {
 
@@ -21,25 +20,13 @@ const photometry::Category kUnclassified =
 // Stars per random stream and per unit of work handed to a thread.
 constexpr std::size_t kBlockStars = 256;
 
-/// Runs body(begin, end, thread) over [0, count) in contiguous blocks claimed in order by `threads`
-/// threads (blocks are static: thread t takes blocks t, t + threads, ...).
+/// Runs body(begin, end, worker) over [0, count) in blocks of kBlockStars stars, the project's thread
+/// loop handing out the blocks.
 template <class Body>
 void forEachBlock(std::size_t count, unsigned threads, Body&& body) {
-    const std::size_t blocks = (count + kBlockStars - 1) / kBlockStars;
-    const auto run = [&](unsigned thread) {
-        for (std::size_t block = thread; block < blocks; block += threads) {
-            body(block * kBlockStars, std::min(count, (block + 1) * kBlockStars), thread);
-        }
-    };
-    if (threads <= 1 || blocks <= 1) {
-        run(0);
-        return;
-    }
-    std::vector<std::jthread> workers;
-    for (unsigned t = 1; t < threads; ++t) {
-        workers.emplace_back(run, t);
-    }
-    run(0);
+    forEachIndex((count + kBlockStars - 1) / kBlockStars, threads, [&](std::size_t block, unsigned worker) {
+        body(block * kBlockStars, std::min(count, (block + 1) * kBlockStars), worker);
+    });
 }
 
 float quadratureSum(double a, double b) {
@@ -66,7 +53,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     if (classifier != nullptr) {
         colourless_categories_.resize(n * kQuantiles);
     }
-    forEachBlock(n, resolveThreadCount(threads), [&](std::size_t begin, std::size_t end, unsigned) {
+    forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
         for (std::size_t s = begin; s < end; ++s) {
             const photometry::CatalogRow& row = rows[s];
             const bool classifiable =

@@ -9,11 +9,11 @@
 // draws cannot differ (membership probability exactly 0 or 1 at every radius, and every outcome its errors
 // allow inside cells of one category) is tallied without drawing: the numbers the draws would give.
 #include "census/Membership.h"
-#include "photometry/CatalogRow.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
-#include "photometry/Progress.h"
 #include "photometry/StellarClass.h"
+#include "photometry/base/Progress.h"
+#include "photometry/catalog/CatalogRow.h"
 
 #include <cstdint>
 #include <span>
@@ -27,8 +27,8 @@ struct DrawSettings {
     std::uint64_t seed = 1; // master seed; each star draws from stream (seed, star index)
     unsigned threads = 0;   // 0 = all hardware threads
     // Optional: star-draws done (items_done, advanced once per block of stars) and to do (items_total),
-    // for a caller's display (photometry/Progress.h). Never read by the draws.
-    photometry::ProgressCounters* progress = nullptr;
+    // for a caller's display (photometry/base/Progress.h). Never read by the draws.
+    ProgressCounters* progress = nullptr;
 };
 
 /// The per-star inputs of the Monte Carlo, as a structure of arrays.

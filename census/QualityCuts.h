@@ -1,7 +1,7 @@
 #pragma once
 // Quality cuts applied to the candidates before membership and classification, each reported with the
 // number of rows it changed.
-#include "photometry/CatalogRow.h"
+#include "photometry/catalog/CatalogRow.h"
 
 #include <cstdint>
 #include <string>

@@ -23,10 +23,10 @@
 //  6. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
 //     more than g_rp_tolerance_mag bluer than the locus G-RP at that code, unclassified, OutsideLocus.
 //     Fainter than the locus's faintest M_G (L8V) and red in G-RP or G-J: T dwarf (OutsideLocus).
-#include "photometry/CatalogRow.h"
 #include "photometry/DwarfLocus.h"
 #include "photometry/StellarClass.h"
 #include "photometry/WhiteDwarfSequence.h"
+#include "photometry/catalog/CatalogRow.h"
 
 #include <cmath>
 #include <cstdint>

@@ -1,9 +1,9 @@
 #include "photometry/DwarfLocus.h"
 
-#include "photometry/DataFiles.h"
-#include "photometry/InputError.h"
 #include "photometry/StellarClass.h"
-#include "photometry/TextTable.h"
+#include "photometry/base/DataFiles.h"
+#include "photometry/base/InputError.h"
+#include "photometry/base/TextTable.h"
 
 #include <algorithm>
 #include <cmath>
@@ -46,7 +46,7 @@ double locusValue(const LocusPoint& point, LocusQuantity quantity) {
 }
 
 DwarfLocus DwarfLocus::load(const std::string& path) {
-    const auto table = detail::TextTable::read(path);
+    const auto table = TextTable::read(path);
     const std::size_t type_column = table.column("spectral_type");
     const auto teff = table.numbers("teff_k");
     const auto abs_g = table.numbers("abs_g_mag");

@@ -1,9 +1,9 @@
 #include "photometry/WhiteDwarfSequence.h"
 
-#include "photometry/DataFiles.h"
 #include "photometry/DwarfLocus.h"
-#include "photometry/InputError.h"
-#include "photometry/TextTable.h"
+#include "photometry/base/DataFiles.h"
+#include "photometry/base/InputError.h"
+#include "photometry/base/TextTable.h"
 
 #include <cmath>
 #include <functional>
@@ -34,7 +34,7 @@ double ageFraction(double a, double b, double age) {
 }
 
 std::vector<WhiteDwarfModel> readModels(const std::string& path) {
-    const auto table = detail::TextTable::read(path);
+    const auto table = TextTable::read(path);
     const auto teff = table.numbers("teff_k");
     const auto log_g = table.numbers("log_g");
     const auto mass = table.numbers("mass_msun");

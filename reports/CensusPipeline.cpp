@@ -1,13 +1,15 @@
 #include "reports/CensusPipeline.h"
 
 #include "census/MonteCarlo.h"
-#include "photometry/AtomicOutput.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
-#include "photometry/InputError.h"
-#include "photometry/Progress.h"
+#include "photometry/base/AtomicOutput.h"
+#include "photometry/base/InputError.h"
+#include "photometry/base/InputPaths.h"
+#include "photometry/base/Progress.h"
 #include "reports/DrawsOutput.h"
 #include "reports/FractionsOutput.h"
+#include "reports/HostsOutput.h"
 #include "reports/LuminosityOutput.h"
 #include "reports/PriorsOutput.h"
 #include "reports/Progress.h"
@@ -29,20 +31,6 @@ using Clock = std::chrono::steady_clock;
 
 double secondsSince(Clock::time_point start) {
     return std::chrono::duration<double>(Clock::now() - start).count();
-}
-
-std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
-                                        const std::vector<double>& radii_pc,
-                                        const census::MembershipSettings& settings) {
-    std::vector<std::int64_t> counts;
-    for (const double radius : radii_pc) {
-        std::int64_t inside = 0;
-        for (const auto& row : rows) {
-            inside += census::insideByHardCut(row.parallax_mas, radius, settings) ? 1 : 0;
-        }
-        counts.push_back(inside);
-    }
-    return counts;
 }
 
 nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector<std::string>& paths) {
@@ -91,16 +79,16 @@ nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vecto
 PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream& log) {
     const auto& census = settings.census;
     PipelineResult result;
-    HostListSettings hosts = settings.hosts;
+    census::HostListSettings hosts = settings.hosts;
     hosts.seed = census.draws.seed;
     hosts.threads = census.draws.threads;
-    hostRadiusIndex(hosts, census.radii_pc); // a bad --hosts-radius fails before any work
+    census::hostRadiusIndex(hosts, census.radii_pc); // a bad --hosts-radius fails before any work
     StageProgress progress(log, settings.show_progress, 4);
 
     auto start = Clock::now();
     progress.begin("scan");
 
-    const std::vector<std::string> paths = photometry::expandInputPaths(settings.inputs);
+    const std::vector<std::string> paths = expandInputPaths(settings.inputs);
     // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
     // the scan, so it runs beside the census instead of after it.
     std::future<nlohmann::json> input_files = std::async(
@@ -108,11 +96,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     photometry::ScanSettings scan_settings = settings.scan;
     scan_settings.min_parallax_mas =
         1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
-    photometry::ProgressCounters scan_progress; // shown on stderr if it is a terminal
+    ProgressCounters scan_progress; // shown on stderr if it is a terminal
     scan_settings.progress = &scan_progress;
     photometry::CatalogScan scan = [&] {
-        const photometry::TerminalProgress display("reading catalogs", "rows", scan_progress,
-                                                   settings.show_progress);
+        const TerminalProgress display("reading catalogs", "rows", scan_progress, settings.show_progress);
         return photometry::scanCatalogs(paths, scan_settings);
     }();
     result.timings.scan_s = secondsSince(start);
@@ -144,12 +131,11 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     start = Clock::now();
     progress.begin("draws");
     const auto grid = photometry::ClassGrid::fromClassifier(classifier);
-    photometry::ProgressCounters draw_progress;
+    ProgressCounters draw_progress;
     census::DrawSettings draw_settings = census.draws;
     draw_settings.progress = &draw_progress;
     const census::DrawTallies tallies = [&] {
-        const photometry::TerminalProgress display("Monte Carlo", "star-draws", draw_progress,
-                                                   settings.show_progress);
+        const TerminalProgress display("Monte Carlo", "star-draws", draw_progress, settings.show_progress);
         return census::drawSample(sample, grid, draw_settings);
     }();
     std::vector<double> expected;
@@ -164,9 +150,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     // the fractions, the priors, the sample and draws tables, and (here) the luminosity function,
     // mass-function fits and corrected fractions. Each is deterministic for the seed, so the order they
     // finish in is irrelevant.
-    std::future<HostMeasurements> host_measurements = std::async(std::launch::async, [&] {
-        return hosts.enabled ? measureHosts(rows, sample, classifier, census.membership, hosts)
-                             : HostMeasurements{};
+    std::future<census::HostMeasurements> host_measurements = std::async(std::launch::async, [&] {
+        return hosts.enabled ? census::measureHosts(rows, sample, classifier, census.membership, hosts)
+                             : census::HostMeasurements{};
     });
     // The population deviates, drawn once and summarised two ways.
     std::shared_future<std::vector<census::PopulationDeviates>> population =
@@ -174,9 +160,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
             return census::populationDeviatesByRadius(tallies, census.groups, {.seed = census.draws.seed});
         }).share();
     std::future<void> fraction_estimates = std::async(std::launch::async, [&] {
-        result.estimates = census::estimateFractions(tallies, census.radii_pc,
-                                                     hardCutCounts(rows, census.radii_pc, census.membership),
-                                                     expected, census.groups, population.get());
+        result.estimates = census::estimateFractions(
+            tallies, census.radii_pc, census::hardCutCounts(rows, census.radii_pc, census.membership),
+            expected, census.groups, population.get());
     });
     std::future<void> prior_fits = std::async(std::launch::async, [&] {
         result.priors = census::estimatePriors(census.radii_pc, census.groups, population.get());
@@ -190,8 +176,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
         writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
         writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     });
-    const LuminosityAnalysis luminosity =
-        analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
+    const census::LuminosityAnalysis luminosity =
+        census::analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
     for (const auto& fit : luminosity.fits) {
         if (!fit.converged) {
             log << "starcensus: warning: " << census::fitModelName(fit.family) << " fit: " << fit.message
@@ -217,7 +203,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     writeJsonFile(directory / "fractions.json", fractions);
     writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
     writeJsonFile(directory / "priors.json", priorsJson(result.priors));
-    const HostMeasurements measured_hosts = host_measurements.get();
+    const census::HostMeasurements measured_hosts = host_measurements.get();
     if (hosts.enabled) {
         result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
                                       census.quality.min_parallax_snr_to_classify, census.membership, hosts,

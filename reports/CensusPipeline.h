@@ -8,11 +8,11 @@
 #include "census/CensusOptions.h"
 #include "census/CompletenessCorrection.h"
 #include "census/Fractions.h"
+#include "census/HostMeasurements.h"
 #include "census/LuminosityOptions.h"
 #include "census/Priors.h"
 #include "census/QualityCuts.h"
-#include "photometry/CatalogScan.h"
-#include "reports/HostsOutput.h"
+#include "photometry/catalog/CatalogScan.h"
 #include "reports/Provenance.h"
 
 #include <nlohmann/json.hpp>
@@ -30,7 +30,7 @@ struct PipelineSettings {
     photometry::ScanSettings scan;
     census::CensusSettings census;            // validated
     census::LuminosityRunSettings luminosity; // validated
-    HostListSettings hosts;                   // seed and threads are taken from census.draws
+    census::HostListSettings hosts;           // seed and threads are taken from census.draws
     nlohmann::json options;                   // every option value of the command (optionValuesJson)
     bool show_progress = false;               // one line per stage on `log` (set when stderr is a terminal)
     ChecksumAlgorithm checksum = ChecksumAlgorithm::Xxh128; // input fingerprints in provenance.json

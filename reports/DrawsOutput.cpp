@@ -1,7 +1,7 @@
 #include "reports/DrawsOutput.h"
 
 #include "census/Fractions.h"
-#include "photometry/FitsTableWriter.h"
+#include "photometry/catalog/FitsTableWriter.h"
 
 #include <array>
 #include <bitset>

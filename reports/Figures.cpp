@@ -1,10 +1,10 @@
 #include "reports/Figures.h"
 
-#include "photometry/AtomicOutput.h"
 #include "photometry/DwarfLocus.h"
-#include "photometry/InputError.h"
 #include "photometry/StellarClass.h"
 #include "photometry/WhiteDwarfSequence.h"
+#include "photometry/base/AtomicOutput.h"
+#include "photometry/base/InputError.h"
 
 #include <plplot/plplot.h>
 

@@ -1,6 +1,6 @@
 #include "reports/FractionsOutput.h"
 
-#include "photometry/AtomicOutput.h"
+#include "photometry/base/AtomicOutput.h"
 
 #include <iomanip>
 #include <sstream>

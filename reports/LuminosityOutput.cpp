@@ -1,9 +1,6 @@
 #include "reports/LuminosityOutput.h"
 
-#include "reports/SampleOutput.h"
-
-#include "census/MockPhotometry.h"
-#include "photometry/AtomicOutput.h"
+#include "photometry/base/AtomicOutput.h"
 #include "reports/FractionsOutput.h"
 
 #include <cmath>
@@ -15,42 +12,6 @@ namespace starcensus::reports {
 
 namespace {
 
-constexpr double kInfinity = std::numeric_limits<double>::infinity();
-
-struct ClassifiedRow {
-    double abs_g_mag;
-    double distance_pc;
-    photometry::Category category;
-};
-
-std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> rows,
-                                        const photometry::Classifier& classifier,
-                                        const census::CensusSettings& census) {
-    std::vector<ClassifiedRow> classified;
-    const double zero_point = census.membership.parallax_zero_point_mas;
-    for (const auto& row : rows) {
-        const double parallax_mas = row.parallax_mas - zero_point;
-        const photometry::Classification result =
-            classifyRow(row, classifier, census.membership, census.quality.min_parallax_snr_to_classify);
-        classified.push_back({result.abs_g_mag, parallax_mas > 0.0 ? 1000.0 / parallax_mas : kInfinity,
-                              photometry::categoryOf(result.stellar_class, result.spectral_code)});
-    }
-    return classified;
-}
-
-std::vector<census::SampleStar> starsWithin(const std::vector<ClassifiedRow>& classified,
-                                            const census::PreparedSample& sample, std::size_t r) {
-    std::vector<census::SampleStar> stars;
-    for (std::size_t s = 0; s < classified.size(); ++s) {
-        const ClassifiedRow& row = classified[s];
-        const double weight = sample.probabilityWithin(s, r);
-        if (std::isfinite(row.abs_g_mag) && std::isfinite(row.distance_pc) && weight > 0.0) {
-            stars.push_back({row.abs_g_mag, row.distance_pc, weight, row.category});
-        }
-    }
-    return stars;
-}
-
 nlohmann::json namedValues(const std::vector<std::string>& names, const std::vector<double>& values) {
     nlohmann::json object = nlohmann::json::object();
     for (std::size_t k = 0; k < names.size() && k < values.size(); ++k) {
@@ -61,81 +22,7 @@ nlohmann::json namedValues(const std::vector<std::string>& names, const std::vec
 
 } // namespace
 
-LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> rows,
-                                     const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                                     const photometry::Classifier& classifier,
-                                     const census::CensusSettings& census,
-                                     const census::LuminosityRunSettings& settings) {
-    LuminosityAnalysis analysis;
-    const census::CompletenessSettings& completeness = settings.completeness;
-    analysis.limits = {completeness.faint_limit_g_mag, completeness.bright_limit_g_mag};
-    analysis.faint_limit_source = "default";
-    if (completeness.estimate_faint_limit) {
-        std::vector<double> g_mag;
-        for (const auto& row : rows) {
-            g_mag.push_back(row.g_mag);
-        }
-        const double estimated = census::estimateFaintLimitMag(g_mag, completeness);
-        if (std::isfinite(estimated)) {
-            analysis.limits.faint_g_mag = estimated;
-            analysis.faint_limit_source = "estimated";
-        }
-    }
-    const census::MockPhotometry& photometry = census::shippedMockPhotometry();
-    const auto ranges = census::categoryAbsGRanges(photometry, completeness);
-    const std::vector<ClassifiedRow> classified = classifyRows(rows, classifier, census);
-    const std::vector<double>& radii = census.radii_pc;
-    std::vector<census::SampleStar> stars;
-    for (std::size_t r = 0; r < radii.size(); ++r) {
-        stars = starsWithin(classified, sample, r);
-        analysis.completeness.push_back(census::assessCompleteness(stars, radii[r], census.groups,
-                                                                   analysis.limits, ranges, completeness));
-    }
-    // The luminosity function and its fits at the largest radius (`stars` holds its weights).
-    analysis.lf_radius_pc = radii.back();
-    analysis.complete_abs_g_mag =
-        census::completeAbsGRange(radii.back(), analysis.limits, completeness.bright_hole_volume_tolerance);
-    analysis.table = census::estimateLuminosityFunction(
-        stars, radii.back(), analysis.limits, completeness.bright_hole_volume_tolerance, settings.luminosity);
-    analysis.model_phi.assign(analysis.table.size(), std::numeric_limits<double>::quiet_NaN());
-    if (settings.fit_models.empty()) {
-        return analysis; // --lf-fit none: the luminosity function without a model or a correction
-    }
-    const census::LuminosityModel model(settings.fit.start.mass_min_msun, settings.fit.start.mass_max_msun,
-                                        settings.model, photometry);
-    for (const census::ImfFamily family : settings.fit_models) {
-        census::MassFunctionFitSettings fit_settings = settings.fit;
-        fit_settings.family = family;
-        analysis.fits.push_back(
-            census::fitMassFunction(analysis.table, model, radii.back(), analysis.limits, fit_settings));
-        const auto& fit = analysis.fits.back();
-        if (fit.converged && (!analysis.correction_fit ||
-                              fit.log_likelihood > analysis.fits[*analysis.correction_fit].log_likelihood)) {
-            analysis.correction_fit = analysis.fits.size() - 1;
-        }
-    }
-    if (analysis.correction_fit) {
-        const auto& fit = analysis.fits[*analysis.correction_fit];
-        std::vector<std::array<double, 2>> bins;
-        for (const auto& bin : analysis.table) {
-            bins.push_back({bin.abs_g_lo_mag, bin.abs_g_hi_mag});
-        }
-        const std::vector<double> phi = census::modelPhi(fit, model, bins);
-        for (std::size_t b = 0; b < bins.size(); ++b) {
-            if (analysis.table[b].population == census::LfPopulation::MainSequence) {
-                analysis.model_phi[b] = phi[b];
-            }
-        }
-        // Only the faint limit is filled in: stars brighter than the bright limit are usually in the
-        // input anyway (see README, Methods), and the census counts every member.
-        analysis.corrected = census::correctForCompleteness(tallies, radii, census.groups, model, fit,
-                                                            {analysis.limits.faint_g_mag, -kInfinity},
-                                                            census.draws.seed, census.draws.threads);
-    }
-    return analysis;
-}
-
-nlohmann::json completenessJson(const LuminosityAnalysis& analysis) {
+nlohmann::json completenessJson(const census::LuminosityAnalysis& analysis) {
     nlohmann::json radii = nlohmann::json::array();
     for (std::size_t r = 0; r < analysis.completeness.size(); ++r) {
         const census::RadiusCompleteness& radius = analysis.completeness[r];
@@ -166,7 +53,7 @@ nlohmann::json completenessJson(const LuminosityAnalysis& analysis) {
             {"radii", radii}};
 }
 
-nlohmann::json lumfuncFitJson(const LuminosityAnalysis& analysis) {
+nlohmann::json lumfuncFitJson(const census::LuminosityAnalysis& analysis) {
     nlohmann::json fits = nlohmann::json::array();
     for (const auto& fit : analysis.fits) {
         fits.push_back({{"model", census::fitModelName(fit.family)},
@@ -195,7 +82,7 @@ nlohmann::json lumfuncFitJson(const LuminosityAnalysis& analysis) {
             {"complete_abs_g_range", analysis.complete_abs_g_mag}};
 }
 
-std::string lumfuncCsv(const LuminosityAnalysis& analysis) {
+std::string lumfuncCsv(const census::LuminosityAnalysis& analysis) {
     std::ostringstream csv;
     csv << std::setprecision(8)
         << "population,abs_g_lo,abs_g_hi,n_weighted,phi_per_pc3_per_mag,phi_lo68,phi_hi68,"
@@ -213,7 +100,7 @@ std::string lumfuncCsv(const LuminosityAnalysis& analysis) {
     return csv.str();
 }
 
-void addCompletenessToFractions(nlohmann::json& fractions, const LuminosityAnalysis& analysis) {
+void addCompletenessToFractions(nlohmann::json& fractions, const census::LuminosityAnalysis& analysis) {
     auto& radii = fractions["radii"];
     for (std::size_t r = 0; r < radii.size(); ++r) {
         for (auto& [name, entry] : radii[r]["classes"].items()) {
@@ -234,7 +121,8 @@ void addCompletenessToFractions(nlohmann::json& fractions, const LuminosityAnaly
     }
 }
 
-void writeLuminosityOutputs(const std::filesystem::path& directory, const LuminosityAnalysis& analysis) {
+void writeLuminosityOutputs(const std::filesystem::path& directory,
+                            const census::LuminosityAnalysis& analysis) {
     writeJsonFile(directory / "completeness.json", completenessJson(analysis));
     writeTextFileAtomically(directory / "lumfunc.csv", lumfuncCsv(analysis));
     writeJsonFile(directory / "lumfunc_fit.json", lumfuncFitJson(analysis));

@@ -1,6 +1,6 @@
 #include "reports/Provenance.h"
 
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <boost/any.hpp>
 #include <openssl/evp.h>

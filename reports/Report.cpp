@@ -1,7 +1,7 @@
 #include "reports/Report.h"
 
-#include "photometry/AtomicOutput.h"
 #include "photometry/StellarClass.h"
+#include "photometry/base/AtomicOutput.h"
 
 #include <cmath>
 #include <fstream>
@@ -162,7 +162,7 @@ std::string uniformitySection(const ReportAnalysis& analysis) {
                std::to_string(test.empty_pixels.size()) + " (" + number(test.expected_empty_pixels) + ")"});
     std::string empty_list;
     for (const int pixel : test.empty_pixels) {
-        const auto centre = pixelCentre(test.nside, pixel);
+        const auto centre = census::pixelCentre(test.nside, pixel);
         empty_list += (empty_list.empty() ? "" : "; ") + std::to_string(pixel) + " (l " +
                       number(centre.l_deg, 4) + "°, b " + number(centre.b_deg, 3) + "°)";
     }

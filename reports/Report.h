@@ -18,7 +18,7 @@ struct ReportOutput {
     std::filesystem::path html;
     std::vector<FigureOutput> figures;
     std::vector<std::string> notes;
-    UniformityTest uniformity;
+    census::UniformityTest uniformity;
 };
 
 /// Reads DIR, draws the figures into DIR/figures/ and writes DIR/report.html (all atomically).

@@ -44,12 +44,13 @@ ReportAnalysis analyseReport(const ReportInputs& inputs, const ReportSettings& s
     for (std::size_t row = 0; row < sample.size(); ++row) {
         if (sample.p_within.back()[row] >= settings.member_probability) {
             analysis.members.push_back(row);
-            analysis.member_positions.push_back(galacticFromIcrs(sample.ra_deg[row], sample.dec_deg[row]));
+            analysis.member_positions.push_back(
+                census::galacticFromIcrs(sample.ra_deg[row], sample.dec_deg[row]));
         }
     }
-    const int nside = chooseNside(static_cast<std::int64_t>(analysis.members.size()), settings.sky);
-    analysis.sky_counts = countPerPixel(analysis.member_positions, nside);
-    analysis.uniformity = testUniformity(analysis.sky_counts, settings.sky.significance);
+    const int nside = census::chooseNside(static_cast<std::int64_t>(analysis.members.size()), settings.sky);
+    analysis.sky_counts = census::countPerPixel(analysis.member_positions, nside);
+    analysis.uniformity = census::testUniformity(analysis.sky_counts, settings.sky.significance);
 
     analysis.faint_limit_g = settings.default_faint_limit_g;
     analysis.faint_limit_source = "default (no completeness.json)";

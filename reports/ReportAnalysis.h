@@ -16,7 +16,7 @@ struct ReportSettings {
     // Faint limit (apparent G, mag) used when completeness.json is absent: the Gaia DR3 G limit of
     // ~20.7 (Gaia Collaboration, Vallenari et al. 2023, A&A 674, A1; from memory).
     double default_faint_limit_g = 20.7;
-    UniformitySettings sky;
+    census::UniformitySettings sky;
 };
 
 /// Distances (pc, ascending) of the rows of one class whose parallax (minus the zero point) is positive:
@@ -32,8 +32,8 @@ struct ReportAnalysis {
     double member_probability = 0.5;
     std::vector<std::size_t> members; // sample rows with p_within(largest radius) >= member_probability
     std::vector<GalacticPosition> member_positions;
-    PixelCounts sky_counts;
-    UniformityTest uniformity;
+    census::PixelCounts sky_counts;
+    census::UniformityTest uniformity;
     double faint_limit_g = 20.7;
     std::string faint_limit_source; // "completeness.json (estimated)", "default", ...
     double faint_limit_abs_g = 0.0; // at the largest radius: m_lim - 5 log10(R / 10 pc)

@@ -1,6 +1,6 @@
 #include "reports/ReportInputs.h"
 
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <fitsio.h>
 

@@ -1,6 +1,6 @@
 #include "reports/SampleOutput.h"
 
-#include "photometry/FitsTableWriter.h"
+#include "photometry/catalog/FitsTableWriter.h"
 
 #include <cmath>
 #include <cstdio>
@@ -139,20 +139,6 @@ void appendRowIdentity(photometry::FitsRowBlock& block, std::size_t& column,
     block.values<float>(column++).push_back(static_cast<float>(row.parallax_error_mas));
 }
 
-photometry::Classification classifyRow(const photometry::CatalogRow& row,
-                                       const photometry::Classifier& classifier,
-                                       const census::MembershipSettings& membership,
-                                       double min_parallax_snr_to_classify) {
-    photometry::PhotometricInput input = photometry::photometricInput(row);
-    input.parallax_mas = row.parallax_mas - membership.parallax_zero_point_mas;
-    photometry::Classification result = classifier.classify(input);
-    if (!(row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas)) {
-        result.stellar_class = photometry::StellarClass::Unclassified;
-        result.flags |= photometry::flagBit(photometry::ClassificationFlag::LowParallaxSnr);
-    }
-    return result;
-}
-
 std::string spectralTypeColumn(const photometry::Classification& result) {
     const bool dwarf = result.stellar_class < photometry::StellarClass::WhiteDwarf;
     return dwarf && std::isfinite(result.spectral_code) ? photometry::spectralTypeLabel(result.spectral_code)
@@ -172,7 +158,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
         const photometry::Classification result =
-            classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
+            census::classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
         std::size_t c = 0;
         appendRowIdentity(block, c, row);
         for (const double value : {row.g_mag, row.bp_mag, row.rp_mag, result.abs_g_mag,

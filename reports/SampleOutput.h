@@ -3,9 +3,10 @@
 // probability per radius, absolute magnitude and colours, the exact classification (class, subtype,
 // Teff, mass, flags) and the class probabilities from the Monte Carlo.
 #include "census/MonteCarlo.h"
-#include "photometry/CatalogRow.h"
+#include "census/RowClassification.h"
 #include "photometry/Classifier.h"
-#include "photometry/FitsTableWriter.h"
+#include "photometry/catalog/CatalogRow.h"
+#include "photometry/catalog/FitsTableWriter.h"
 
 #include <filesystem>
 #include <span>
@@ -19,13 +20,6 @@ namespace starcensus::reports {
 std::vector<photometry::FitsColumn> rowIdentityColumns();
 void appendRowIdentity(photometry::FitsRowBlock& block, std::size_t& column,
                        const photometry::CatalogRow& row);
-
-/// The exact classification of a row as written to sample.fits: rows with parallax / error below
-/// min_parallax_snr_to_classify are unclassified and flagged LowParallaxSnr.
-photometry::Classification classifyRow(const photometry::CatalogRow& row,
-                                       const photometry::Classifier& classifier,
-                                       const census::MembershipSettings& membership,
-                                       double min_parallax_snr_to_classify);
 
 /// The sample.fits spectral_type of a classification: the subtype label of a dwarf, empty otherwise.
 std::string spectralTypeColumn(const photometry::Classification& result);

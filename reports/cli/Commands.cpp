@@ -2,13 +2,14 @@
 
 #include "census/CensusOptions.h"
 #include "census/LuminosityOptions.h"
-#include "census/MockOptions.h"
-#include "census/MockOutput.h"
-#include "photometry/CatalogInspection.h"
-#include "photometry/InputError.h"
-#include "photometry/OptionChecks.h"
-#include "photometry/Progress.h"
-#include "photometry/ReaderOptions.h"
+#include "census/mock/Options.h"
+#include "census/mock/Output.h"
+#include "photometry/base/InputError.h"
+#include "photometry/base/InputPaths.h"
+#include "photometry/base/OptionChecks.h"
+#include "photometry/base/Progress.h"
+#include "photometry/catalog/CatalogInspection.h"
+#include "photometry/catalog/ReaderOptions.h"
 #include "reports/CensusPipeline.h"
 #include "reports/Progress.h"
 #include "reports/Provenance.h"
@@ -70,11 +71,11 @@ bool parseOptions(const std::string& command, const std::vector<std::string>& ar
     return false;
 }
 
-std::string mockSummary(const census::MockResult& mock, const std::vector<double>& radii_pc) {
+std::string mockSummary(const census::mock::MockResult& mock, const std::vector<double>& radii_pc) {
     std::ostringstream text;
     text << "simulated " << mock.truth.size() << " objects within " << mock.settings.radius_max_pc << " pc ("
          << mock.catalog.size() << " catalogued), seed " << mock.seed << '\n';
-    for (const auto& counts : census::countWithinRadii(mock.truth, radii_pc)) {
+    for (const auto& counts : census::mock::countWithinRadii(mock.truth, radii_pc)) {
         text << "  truth within " << counts.radius_pc << " pc:";
         for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
             if (counts.all[c] > 0) {
@@ -87,12 +88,12 @@ std::string mockSummary(const census::MockResult& mock, const std::vector<double
 }
 
 /// Recovered counts beside the mock's truth, per radius and class.
-std::string truthComparison(const census::MockResult& mock, const reports::PipelineResult& result) {
+std::string truthComparison(const census::mock::MockResult& mock, const reports::PipelineResult& result) {
     std::vector<double> radii;
     for (const auto& estimate : result.estimates) {
         radii.push_back(estimate.radius_pc);
     }
-    const auto truth = census::countWithinRadii(mock.truth, radii);
+    const auto truth = census::mock::countWithinRadii(mock.truth, radii);
     std::ostringstream text;
     text << std::fixed << std::setprecision(1);
     for (std::size_t r = 0; r < radii.size(); ++r) {
@@ -119,33 +120,32 @@ std::string truthComparison(const census::MockResult& mock, const reports::Pipel
 }
 
 /// Simulates and writes the mock catalog and its truth.
-census::MockResult simulateToFiles(const census::MockRequest& request,
-                                   const std::filesystem::path& catalog_path,
-                                   const std::filesystem::path& truth_path,
-                                   const std::vector<double>& truth_radii) {
-    census::validateMockSettings(request.settings);
-    census::MockResult mock = census::simulateNeighbourhood(request.settings, request.seed);
+census::mock::MockResult simulateToFiles(const census::mock::MockRequest& request,
+                                         const std::filesystem::path& catalog_path,
+                                         const std::filesystem::path& truth_path,
+                                         const std::vector<double>& truth_radii) {
+    census::mock::validateMockSettings(request.settings);
+    census::mock::MockResult mock = census::mock::simulateNeighbourhood(request.settings, request.seed);
     if (catalog_path.has_parent_path()) {
         std::filesystem::create_directories(catalog_path.parent_path());
     }
     if (truth_path.has_parent_path()) {
         std::filesystem::create_directories(truth_path.parent_path());
     }
-    census::writeMockCatalog(catalog_path, mock);
-    census::writeMockTruth(truth_path, mock, truth_radii);
+    census::mock::writeMockCatalog(catalog_path, mock);
+    census::mock::writeMockTruth(truth_path, mock, truth_radii);
     return mock;
 }
 
 /// Writes report.html and figures/ for a finished run; progress lines only when stderr is a terminal.
 void writeReportFor(const std::filesystem::path& directory) {
-    const auto report =
-        reports::writeCensusReport(directory, {}, photometry::stderrIsTerminal() ? &std::cerr : nullptr);
+    const auto report = reports::writeCensusReport(directory, {}, stderrIsTerminal() ? &std::cerr : nullptr);
     std::cout << "report: " << report.html.string() << " (" << report.figures.size() << " figures in "
               << (directory / "figures").string() << "/)\n";
 }
 
 /// --hosts-radius and --host-min-probability, bound to the host-list settings.
-po::options_description hostOptions(reports::HostListSettings& hosts) {
+po::options_description hostOptions(census::HostListSettings& hosts) {
     po::options_description options("Host list (hosts.fits)");
     auto add = options.add_options();
     add("no-hosts", po::bool_switch()->notifier([&hosts](bool off) { hosts.enabled = !off; }),
@@ -159,7 +159,7 @@ po::options_description hostOptions(reports::HostListSettings& hosts) {
     return options;
 }
 
-void checkHostOptions(const reports::HostListSettings& hosts) {
+void checkHostOptions(const census::HostListSettings& hosts) {
     requireInRange("host-min-probability", hosts.min_probability, 0.0, 1.0, "");
 }
 
@@ -167,7 +167,7 @@ void checkHostOptions(const reports::HostListSettings& hosts) {
 
 int simulateCommand(const std::vector<std::string>& arguments) {
     CommonOptions common;
-    census::MockRequest request;
+    census::mock::MockRequest request;
     std::string catalog_path = "mock.fits";
     std::string truth_path = "truth.json";
     std::string radii_text = "5,10,20,25";
@@ -178,7 +178,7 @@ int simulateCommand(const std::vector<std::string>& arguments) {
     add("truth-radii", po::value(&radii_text)->default_value(radii_text),
         "radii (pc) at which the truth file counts objects per class, comma-separated");
     po::options_description options;
-    options.add(commonOptions(common)).add(io).add(census::mockOptionsDescription(request));
+    options.add(commonOptions(common)).add(io).add(census::mock::mockOptionsDescription(request));
     po::variables_map values;
     if (parseOptions("simulate", arguments, options, {}, common, values)) {
         return 0;
@@ -192,7 +192,7 @@ int simulateCommand(const std::vector<std::string>& arguments) {
 int demoCommand(const std::vector<std::string>& arguments) {
     CommonOptions common;
     std::string output_directory = "out/demo";
-    census::MockRequest request; // a 25 pc sphere at 0.1 systems per pc^3 (MockSettings defaults)
+    census::mock::MockRequest request; // a 25 pc sphere at 0.1 systems per pc^3 (MockSettings defaults)
     census::CensusSettings census_settings;
     census_settings.radii_text = "5,10,15,20";
     census_settings.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4", "lateM=M5-M9"};
@@ -203,7 +203,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
         "seed of the mock and of the Monte Carlo");
     add("draws", po::value(&census_settings.draws.draws)->default_value(census_settings.draws.draws),
         "Monte Carlo draws");
-    reports::HostListSettings hosts;
+    census::HostListSettings hosts;
     po::options_description options;
     options.add(commonOptions(common)).add(io).add(hostOptions(hosts));
     po::variables_map values;
@@ -213,7 +213,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     checkHostOptions(hosts);
     census_settings.draws.seed = request.seed;
     census::validate(census_settings);
-    reports::hostRadiusIndex(hosts, census_settings.radii_pc); // before the mock is simulated
+    census::hostRadiusIndex(hosts, census_settings.radii_pc); // before the mock is simulated
     const std::filesystem::path directory = output_directory;
     const auto mock =
         simulateToFiles(request, directory / "mock.fits", directory / "truth.json", census_settings.radii_pc);
@@ -225,7 +225,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     settings.census = census_settings;
     settings.hosts = hosts;
     settings.options = reports::optionValuesJson(values);
-    settings.show_progress = photometry::stderrIsTerminal();
+    settings.show_progress = stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << truthComparison(mock, result) << "outputs in "
               << output_directory << "/\n";
@@ -251,7 +251,7 @@ int runCommand(const std::vector<std::string>& arguments) {
     add("checksum", po::value(&checksum_name)->default_value(checksum_name)->value_name("ALGORITHM"),
         "fingerprint of each input in provenance.json: xxh128 (as xxh128sum prints it), sha256 (as "
         "sha256sum), or none");
-    reports::HostListSettings hosts;
+    census::HostListSettings hosts;
     po::options_description options;
     options.add(commonOptions(common))
         .add(io)
@@ -281,7 +281,7 @@ int runCommand(const std::vector<std::string>& arguments) {
     settings.hosts = hosts;
     settings.checksum = reports::checksumAlgorithmNamed(checksum_name);
     settings.options = reports::optionValuesJson(values);
-    settings.show_progress = photometry::stderrIsTerminal();
+    settings.show_progress = stderrIsTerminal();
     const auto result = reports::runCensusPipeline(settings, std::cerr);
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     if (!no_report) {
@@ -339,7 +339,7 @@ int inspectCommand(const std::vector<std::string>& arguments) {
     photometry::ScanSettings settings = photometry::scanSettingsFromOptions(values);
     const auto radii = census::parsePositiveList(radius_text, "radius");
     settings.min_parallax_mas = 1000.0 / *std::max_element(radii.begin(), radii.end());
-    const auto inspections = photometry::inspectCatalogs(photometry::expandInputPaths(inputs), settings);
+    const auto inspections = photometry::inspectCatalogs(expandInputPaths(inputs), settings);
     std::cout << photometry::formatInspection(inspections);
     const bool all_read =
         std::all_of(inspections.begin(), inspections.end(),

@@ -3,7 +3,7 @@
 // outputs).
 #include "reports/cli/Commands.h"
 
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <exception>
 #include <iostream>

@@ -2,7 +2,7 @@
 #include "census/CompletenessCorrection.h"
 #include "census/LuminosityFunction.h"
 #include "census/MassFunctionFit.h"
-#include "census/MockNeighbourhood.h"
+#include "census/mock/Neighbourhood.h"
 #include "photometry/ClassGrid.h"
 #include "tests/census/MockSample.h"
 
@@ -11,6 +11,7 @@
 #include <cmath>
 
 using namespace starcensus::census;
+using namespace starcensus::census::mock;
 using starcensus::photometry::StellarClass;
 
 namespace {
@@ -75,9 +76,9 @@ TEST_CASE("V/Vmax is 0.5 for a complete mock and well below when the magnitude l
     }
     CHECK(estimateFaintLimitMag(g_mags, settings) == doctest::Approx(14.0).epsilon(0.02));
     // M_lim = 14 - 5 log10(25 / 10) = 12.01: the M subtypes from M5 on fall outside.
-    const RadiusCompleteness assessed =
-        assessCompleteness(cut_stars, kRadiusPc, {m_dwarfs}, {14.0, 3.0},
-                           categoryAbsGRanges(shippedMockPhotometry(), settings), settings);
+    const RadiusCompleteness assessed = assessCompleteness(
+        cut_stars, kRadiusPc, {m_dwarfs}, {14.0, 3.0},
+        categoryAbsGRanges(starcensus::photometry::shippedModelPhotometry(), settings), settings);
     CHECK(assessed.complete_abs_g_mag[1] == doctest::Approx(14.0 - 5.0 * std::log10(2.5)));
     CHECK_FALSE(assessed.groups[0].complete);
     CHECK(assessed.groups[0].subtypes_outside.front() == "M4"); // M4V-M5V spans M_G 11.2-12.45
@@ -107,7 +108,7 @@ TEST_CASE("corrected fractions of a mock whose faint limit hides the L and T dwa
     const auto stars = testing::classifiedStars(mock, sample, 1);
     const auto table = estimateLuminosityFunction(stars, 20.0, limits, 0.01, {});
     const LuminosityModel model(settings.imf.mass_min_msun, settings.imf.mass_max_msun, {},
-                                shippedMockPhotometry());
+                                starcensus::photometry::shippedModelPhotometry());
     MassFunctionFitSettings fit_settings;
     fit_settings.family = ImfFamily::Kroupa2001;
     const MassFunctionFitResult fit = fitMassFunction(table, model, 20.0, limits, fit_settings);

@@ -2,7 +2,7 @@
 
 #include "census/CensusOptions.h"
 #include "census/Random.h"
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <doctest/doctest.h>
 

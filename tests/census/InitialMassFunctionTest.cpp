@@ -1,6 +1,6 @@
 #include "census/InitialMassFunction.h"
 
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 #include "tests/support/ReferencePython.h"
 
 #include <doctest/doctest.h>

@@ -2,9 +2,9 @@
 // census (membership, Monte Carlo over measurement errors, population intervals) and check that the
 // quoted intervals cover the truth at the quoted rate.
 #include "census/Fractions.h"
-#include "census/MockNeighbourhood.h"
 #include "census/MonteCarlo.h"
 #include "census/QualityCuts.h"
+#include "census/mock/Neighbourhood.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 
@@ -29,9 +29,9 @@ struct Trial {
 };
 
 Trial runTrial(std::uint64_t seed, const photometry::ClassGrid& grid) {
-    census::MockSettings mock_settings;
+    census::mock::MockSettings mock_settings;
     mock_settings.radius_max_pc = 14.0; // beyond R, so stars can scatter in and out of the volume
-    const census::MockResult mock = census::simulateNeighbourhood(mock_settings, seed);
+    const census::mock::MockResult mock = census::mock::simulateNeighbourhood(mock_settings, seed);
     Trial trial;
     for (const auto& object : mock.truth) {
         if (object.catalogued && object.distance_pc < kRadiusPc) {
@@ -108,7 +108,8 @@ TEST_CASE("rules of thumb on a mock at the usual local density") {
     // Common practice, no source: about 400 objects within 30 light years (9.2 pc) at ~0.1 systems per
     // pc^3 (4/3 pi 9.2^3 * 0.1 = 326 systems, ~420 objects with companions); M dwarfs about three
     // quarters of the stars. Loose checks on the recovered census of one 25 pc mock.
-    const census::MockResult mock = census::simulateNeighbourhood(census::MockSettings{}, 7);
+    const census::mock::MockResult mock =
+        census::mock::simulateNeighbourhood(census::mock::MockSettings{}, 7);
     std::int64_t objects_within = 0;
     for (const auto& object : mock.truth) {
         objects_within += object.distance_pc < 9.2 ? 1 + (object.binary ? 1 : 0) : 0;

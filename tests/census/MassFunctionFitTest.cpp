@@ -1,6 +1,6 @@
 #include "census/MassFunctionFit.h"
 #include "census/LuminosityFunction.h"
-#include "census/MockNeighbourhood.h"
+#include "census/mock/Neighbourhood.h"
 #include "tests/census/MockSample.h"
 
 #include <doctest/doctest.h>
@@ -9,6 +9,7 @@
 #include <cmath>
 
 using namespace starcensus::census;
+using namespace starcensus::census::mock;
 
 namespace {
 
@@ -16,7 +17,7 @@ const MagnitudeLimits kGaiaLimits{20.7, 3.0}; // the defaults: G = 20.7 faint, 3
 
 const LuminosityModel& shippedModel() {
     static const LuminosityModel model(ImfSettings{}.mass_min_msun, ImfSettings{}.mass_max_msun, {},
-                                       shippedMockPhotometry());
+                                       starcensus::photometry::shippedModelPhotometry());
     return model;
 }
 

@@ -2,13 +2,16 @@
 // Test helpers: a mock neighbourhood seen as the completeness and luminosity-function numerics see a
 // sample (census/Completeness.h SampleStar).
 #include "census/Completeness.h"
-#include "census/MockNeighbourhood.h"
 #include "census/MonteCarlo.h"
+#include "census/mock/Neighbourhood.h"
 #include "photometry/Classifier.h"
 
 #include <vector>
 
 namespace starcensus::census::testing {
+
+using mock::MockResult;
+using mock::ObjectTruth;
 
 /// Catalogued objects with their true distance, true combined M_G and true class (weight 1).
 inline std::vector<SampleStar> truthStars(const MockResult& mock) {

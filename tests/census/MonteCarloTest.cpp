@@ -54,7 +54,7 @@ TEST_CASE("Monte Carlo results do not depend on the thread count") {
     CHECK(a.counts == b.counts);
     CHECK(a.star_classes == b.star_classes);
     // Three threads (blocks handed out unevenly) and a progress display attached: still identical.
-    photometry::ProgressCounters progress;
+    ProgressCounters progress;
     const auto c =
         census::drawSample(sample, grid, {.draws = 50, .seed = 11, .threads = 3, .progress = &progress});
     CHECK(c.counts == a.counts);

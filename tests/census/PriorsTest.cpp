@@ -1,7 +1,7 @@
 #include "census/Priors.h"
 
-#include "census/MockNeighbourhood.h"
 #include "census/Random.h"
+#include "census/mock/Neighbourhood.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 
@@ -157,9 +157,9 @@ TEST_CASE(
     //    tail quantile from 20000 deviates has a standard error of ~25% of the median.)
     // 500 draws x 40 deviates keep the stored quantiles' own noise (probability level sqrt(p(1-p)/n)
     // <= 0.0035) well inside the tolerance.
-    census::MockSettings mock_settings;
+    census::mock::MockSettings mock_settings;
     mock_settings.radius_max_pc = 12.0;
-    const auto mock = census::simulateNeighbourhood(mock_settings, 20240611);
+    const auto mock = census::mock::simulateNeighbourhood(mock_settings, 20240611);
     const std::vector<double> radii = {5.0, 10.0};
     const census::PreparedSample sample(mock.catalog, radii, census::MembershipSettings{}, 5.0, 2);
     const auto grid = photometry::ClassGrid::fromClassifier(photometry::Classifier::shipped());

@@ -1,5 +1,5 @@
 #include "photometry/DwarfLocus.h"
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <doctest/doctest.h>
 

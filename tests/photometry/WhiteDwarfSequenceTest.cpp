@@ -1,6 +1,6 @@
 #include "photometry/WhiteDwarfSequence.h"
 #include "photometry/DwarfLocus.h"
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 
 #include <doctest/doctest.h>
 

@@ -1,6 +1,6 @@
-#include "census/MockNeighbourhood.h"
-#include "census/MockOutput.h"
-#include "photometry/InputError.h"
+#include "census/mock/Neighbourhood.h"
+#include "census/mock/Output.h"
+#include "photometry/base/InputError.h"
 #include "reports/CensusPipeline.h"
 #include "reports/DrawsOutput.h"
 #include "tests/support/ReferencePython.h"
@@ -19,10 +19,10 @@ namespace {
 
 /// A mock 8 pc neighbourhood written as a FITS catalog, and pipeline settings for it.
 reports::PipelineSettings mockRun(const std::filesystem::path& directory) {
-    census::MockSettings mock_settings;
+    census::mock::MockSettings mock_settings;
     mock_settings.radius_max_pc = 8.0;
-    const auto mock = census::simulateNeighbourhood(mock_settings, 314);
-    census::writeMockCatalog(directory / "mock.fits", mock);
+    const auto mock = census::mock::simulateNeighbourhood(mock_settings, 314);
+    census::mock::writeMockCatalog(directory / "mock.fits", mock);
     reports::PipelineSettings settings;
     settings.inputs = {(directory / "mock.fits").string()};
     settings.output_directory = directory / "out";

@@ -1,5 +1,5 @@
 #include "reports/Provenance.h"
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 #include "reports/Progress.h"
 #include "tests/support/ReferencePython.h"
 

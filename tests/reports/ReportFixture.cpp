@@ -1,8 +1,8 @@
 #include "tests/reports/ReportFixture.h"
 
 #include "census/CensusOptions.h"
-#include "census/MockNeighbourhood.h"
-#include "census/MockOutput.h"
+#include "census/mock/Neighbourhood.h"
+#include "census/mock/Output.h"
 #include "reports/CensusPipeline.h"
 
 #include <png.h>
@@ -17,10 +17,10 @@ namespace starcensus::testing {
 const std::filesystem::path& demoRunDirectory() {
     static const ScratchDirectory scratch("starcensus-report-run");
     static const bool written = [] {
-        census::MockSettings mock_settings;
+        census::mock::MockSettings mock_settings;
         mock_settings.radius_max_pc = 12.0;
-        const auto mock = census::simulateNeighbourhood(mock_settings, 3);
-        census::writeMockCatalog(scratch.path() / "mock.fits", mock);
+        const auto mock = census::mock::simulateNeighbourhood(mock_settings, 3);
+        census::mock::writeMockCatalog(scratch.path() / "mock.fits", mock);
         reports::PipelineSettings settings;
         settings.inputs = {(scratch.path() / "mock.fits").string()};
         settings.output_directory = scratch.path();

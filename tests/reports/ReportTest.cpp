@@ -1,5 +1,5 @@
 #include "reports/Report.h"
-#include "photometry/InputError.h"
+#include "photometry/base/InputError.h"
 #include "tests/reports/ReportFixture.h"
 
 #include <doctest/doctest.h>
@@ -106,7 +106,7 @@ TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one s
     CHECK(html.find("<h2>Quality cuts</h2>\n<p>") != std::string::npos);
     CHECK(html.find("Sky uniformity") != std::string::npos);
     CHECK(html.find("<code>seed</code>") != std::string::npos);
-    // The mock is isotropic (census/MockNeighbourhood.h: Poisson positions in a sphere).
+    // The mock is isotropic (census/mock/Neighbourhood.h: Poisson positions in a sphere).
     CHECK_FALSE(report.uniformity.uniformity_rejected);
     CHECK(report.uniformity.objects > 100);
 }

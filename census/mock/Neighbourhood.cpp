@@ -1,0 +1,374 @@
+#include "census/mock/Neighbourhood.h"
+
+#include "census/mock/MeasurementErrors.h"
+#include "photometry/base/OptionChecks.h"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <tuple>
+#include <utility>
+
+namespace starcensus::census::mock {
+
+using photometry::StellarClass;
+
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+// 1 au/yr in km/s (IAU 2012 au, Julian year): v_t [km/s] = 4.74047 mu [arcsec/yr] d [pc].
+constexpr double kKmPerSecondPerAuPerYear = 4.74047;
+// Red-clump calibration of Ruiz-Dern et al. 2018 (A&A 609, A116, abstract; published-figures.md
+// section 7): M_G = 0.495 + 1.121 (G - Ks - 2.1).
+constexpr double kClumpAbsGMag = 0.495;
+constexpr double kClumpAbsGSlope = 1.121;
+constexpr double kClumpGKsPivotMag = 2.1;
+
+double fluxOf(double magnitude) {
+    return std::isnan(magnitude) ? 0.0 : std::pow(10.0, -0.4 * magnitude);
+}
+
+// Magnitude of the summed flux of two sources; NaN if neither has the band.
+double addMagnitudes(double a, double b) {
+    if (std::isnan(a)) {
+        return b;
+    }
+    if (std::isnan(b)) {
+        return a;
+    }
+    return -2.5 * std::log10(fluxOf(a) + fluxOf(b));
+}
+
+photometry::BandMagnitudes combine(const photometry::BandMagnitudes& a, const photometry::BandMagnitudes& b) {
+    return {addMagnitudes(a.g, b.g), addMagnitudes(a.bp, b.bp), addMagnitudes(a.rp, b.rp),
+            addMagnitudes(a.j, b.j), addMagnitudes(a.h, b.h),   addMagnitudes(a.ks, b.ks)};
+}
+
+// A measured magnitude: Gaussian noise on the flux, sigma_flux / flux = sigma_mag / (2.5 / ln 10), so a
+// source far below the limit cannot scatter into the catalog the way a magnitude-space Gaussian with
+// an extrapolated error would let it. NaN if the measured flux is not positive (not detected).
+double observeMagnitude(double true_mag, double sigma_mag, Xoshiro256& random) {
+    const double relative_flux = 1.0 + sigma_mag / (2.5 / std::numbers::ln10) * random.normal();
+    return relative_flux > 0.0 ? true_mag - 2.5 * std::log10(relative_flux) : kNaN;
+}
+
+// Observed value of a band of the 2MASS-like survey and its quoted error (mag): NaN beyond its limit.
+std::pair<double, double> twoMassObservation(double true_mag, double limit_mag, Xoshiro256& random) {
+    if (std::isnan(true_mag) || true_mag > limit_mag) {
+        return {kNaN, kNaN};
+    }
+    const double error_mag = twoMassErrorMag(true_mag, limit_mag);
+    return {true_mag + error_mag * random.normal(), error_mag};
+}
+
+} // namespace
+
+void validateMockSettings(const MockSettings& s) {
+    validateImfSettings(s.imf);
+    requireInRange("radius-max", s.radius_max_pc, 0.0, 10000.0, "pc", LowerBound::Exclusive);
+    requireInRange("density", s.system_density_per_pc3, 0.0, 100.0, "per pc^3", LowerBound::Exclusive);
+    requireInRange("velocity-dispersion", s.velocity_dispersion_km_s, 0.0, 500.0, "km/s");
+    requireInRange("disc-age", s.disc_age_gyr, 0.0, 13.8, "Gyr", LowerBound::Exclusive);
+    requireInRange("ms-lifetime-sun", s.ms_lifetime_sun_gyr, 0.0, 100.0, "Gyr", LowerBound::Exclusive);
+    requireInRange("ms-lifetime-exponent", s.ms_lifetime_exponent, -5.0, -0.5, "");
+    requireInRange("giant-share", s.giant_phase_share, 0.0, 1.0, "");
+    requireInRange("wd-progenitor-max", s.max_white_dwarf_progenitor_msun, 1.0, 20.0, "Msun");
+    requireInRange("hydrogen-burning-limit", s.hydrogen_burning_limit_msun, 0.01, 0.2, "Msun");
+    requireInRange("bd-teff-min", s.brown_dwarf_teff_min_k, 100.0, 2000.0, "K");
+    requireInRange("bd-teff-max", s.brown_dwarf_teff_max_k, 500.0, 4000.0, "K");
+    requireThat(s.brown_dwarf_teff_min_k < s.brown_dwarf_teff_max_k, "bd-teff-min",
+                "must be below --bd-teff-max");
+    requireInRange("ifmr-slope", s.ifmr_slope, 0.0, 1.0, "");
+    requireInRange("ifmr-intercept", s.ifmr_intercept_msun, 0.0, 1.4, "Msun");
+    requireInRange("da-share", s.hydrogen_atmosphere_share, 0.0, 1.0, "");
+    requireInRange("binary-fraction", s.binary_fraction, 0.0, 1.0, "");
+    requireInRange("ms-mag-scatter", s.ms_abs_mag_scatter_mag, 0.0, 2.0, "mag");
+    requireInRange("ms-colour-scatter", s.ms_colour_scatter_mag, 0.0, 1.0, "mag");
+    requireInRange("giant-mag-scatter", s.giant_abs_g_scatter_mag, 0.0, 2.0, "mag");
+    requireInRange("giant-bp-rp", s.giant_bp_rp_mag, 0.0, 3.0, "mag");
+    requireInRange("giant-bp-rp-scatter", s.giant_bp_rp_scatter_mag, 0.0, 1.0, "mag");
+    requireInRange("giant-g-ks", s.giant_g_ks_mag, 0.0, 5.0, "mag");
+    requireInRange("giant-g-ks-scatter", s.giant_g_ks_scatter_mag, 0.0, 1.0, "mag");
+    requireInRange("g-limit", s.g_limit_mag, 3.0, 25.0, "mag");
+    requireInRange("bp-rp-loss-start", s.bp_rp_loss_start_g_mag, 3.0, 25.0, "mag");
+    requireInRange("bp-rp-loss-end", s.bp_rp_loss_end_g_mag, 3.0, 25.0, "mag");
+    requireThat(s.bp_rp_loss_start_g_mag < s.bp_rp_loss_end_g_mag, "bp-rp-loss-start",
+                "must be below --bp-rp-loss-end");
+    requireInRange("j-limit", s.j_limit_mag, 0.0, 25.0, "mag");
+    requireInRange("h-limit", s.h_limit_mag, 0.0, 25.0, "mag");
+    requireInRange("ks-limit", s.ks_limit_mag, 0.0, 25.0, "mag");
+    requireInRange("ruwe-scatter", s.ruwe_scatter_dex, 0.0, 1.0, "dex");
+    requireInRange("binary-high-ruwe-share", s.binary_high_ruwe_share, 0.0, 1.0, "");
+    requireInRange("binary-high-ruwe-min", s.binary_high_ruwe_min, 1.0, 100.0, "");
+    requireInRange("binary-high-ruwe-max", s.binary_high_ruwe_max, 1.0, 100.0, "");
+    requireThat(s.binary_high_ruwe_min < s.binary_high_ruwe_max, "binary-high-ruwe-min",
+                "must be below --binary-high-ruwe-max");
+}
+
+double whiteDwarfLogG(double mass_msun) {
+    constexpr double kChandrasekharMsun = 1.454; // mu_e = 2 (from memory)
+    constexpr double kLogGSun = 4.438;           // log10 of solar surface gravity, cgs (from memory)
+    const double x = std::pow(mass_msun / kChandrasekharMsun, 2.0 / 3.0);
+    const double radius_rsun = 0.0112 * std::sqrt(1.0 / x - x);
+    return kLogGSun + std::log10(mass_msun) - 2.0 * std::log10(radius_rsun);
+}
+
+std::int64_t mockSourceId(std::uint64_t seed, std::int64_t object_index) {
+    // Invertible steps on 62-bit integers (odd multipliers and right xor-shifts are bijections modulo
+    // 2^62), offset into [2^62, 2^63) so every id is positive and has 19 digits.
+    constexpr std::uint64_t kMask = (std::uint64_t{1} << 62) - 1;
+    std::uint64_t x = (static_cast<std::uint64_t>(object_index) + seed * 0x9E3779B97F4A7C15ULL) & kMask;
+    x ^= x >> 31;
+    x = (x * 0xBF58476D1CE4E5B9ULL) & kMask;
+    x ^= x >> 29;
+    x = (x * 0x94D049BB133111EBULL) & kMask;
+    x ^= x >> 32;
+    return static_cast<std::int64_t>(x | (std::uint64_t{1} << 62));
+}
+
+std::vector<RadiusCounts> countWithinRadii(std::span<const ObjectTruth> truth,
+                                           std::span<const double> radii_pc) {
+    std::vector<RadiusCounts> counts;
+    for (double radius : radii_pc) {
+        counts.push_back({radius, {}, {}, {}});
+    }
+    addToCounts(truth, counts);
+    return counts;
+}
+
+void addToCounts(std::span<const ObjectTruth> truth, std::vector<RadiusCounts>& counts) {
+    for (const ObjectTruth& object : truth) {
+        const auto primary = static_cast<std::size_t>(object.true_class);
+        for (RadiusCounts& within : counts) {
+            if (object.distance_pc <= within.radius_pc) {
+                ++within.all[primary];
+                ++within.components[primary];
+                if (object.binary) {
+                    ++within.components[static_cast<std::size_t>(object.companion_class)];
+                }
+                if (object.catalogued) {
+                    ++within.catalogued[primary];
+                }
+            }
+        }
+    }
+}
+
+struct MockGenerator::Component {
+    bool compact_remnant = false; // NS/BH: removed
+    MockStage stage = MockStage::MainSequence;
+    StellarClass star_class = StellarClass::Unclassified;
+    double spectral_code = kNaN;
+    double initial_mass_msun = kNaN;
+    double mass_msun = kNaN; // present day
+    photometry::BandMagnitudes abs{kNaN, kNaN, kNaN, kNaN, kNaN, kNaN};
+};
+
+MockGenerator::MockGenerator(const MockSettings& settings, std::uint64_t seed,
+                             const photometry::ModelPhotometry& photometry)
+    : settings_(settings), seed_(seed), photometry_(photometry),
+      imf_((validateMockSettings(settings), settings.imf)), positions_(seed, 0), properties_(seed, 1),
+      volume_max_pc3_(4.0 / 3.0 * std::numbers::pi * std::pow(settings.radius_max_pc, 3)) {}
+
+MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, double age_gyr) {
+    const MockSettings& s = settings_;
+    Component c;
+    c.initial_mass_msun = initial_mass_msun;
+    c.mass_msun = initial_mass_msun;
+    const double lifetime_gyr = s.ms_lifetime_sun_gyr * std::pow(initial_mass_msun, s.ms_lifetime_exponent);
+    const bool dwarf = initial_mass_msun < s.hydrogen_burning_limit_msun || age_gyr < lifetime_gyr;
+    if (dwarf) {
+        if (initial_mass_msun < s.hydrogen_burning_limit_msun) {
+            c.stage = MockStage::BrownDwarf;
+            const double teff_k = std::clamp(photometry::brownDwarfTeffK(initial_mass_msun, age_gyr),
+                                             s.brown_dwarf_teff_min_k, s.brown_dwarf_teff_max_k);
+            c.spectral_code = photometry_.codeOfTeff(teff_k);
+        } else {
+            c.stage = MockStage::MainSequence;
+            c.spectral_code = photometry_.codeOfMass(initial_mass_msun);
+        }
+        c.star_class = photometry::dwarfClassOfCode(c.spectral_code);
+        c.abs = photometry_.dwarf(c.spectral_code);
+        // Intrinsic scatter: one shift of every band (luminosity), plus small colour offsets.
+        const double shift = s.ms_abs_mag_scatter_mag * properties_.normal();
+        const double optical = s.ms_colour_scatter_mag * properties_.normal();
+        const double infrared = s.ms_colour_scatter_mag * properties_.normal();
+        c.abs.g += shift;
+        c.abs.bp += shift + 0.5 * optical;
+        c.abs.rp += shift - 0.5 * optical;
+        c.abs.j += shift + 0.5 * infrared;
+        c.abs.h += shift;
+        c.abs.ks += shift - 0.5 * infrared;
+        return c;
+    }
+    const double giant_end_gyr = (1.0 + s.giant_phase_share) * lifetime_gyr;
+    if (age_gyr < giant_end_gyr) {
+        // Near the red clump: G-Ks and BP-RP drawn around their clump values, M_G from the Ruiz-Dern
+        // et al. 2018 relation plus scatter; G-RP and J-Ks from the dwarf of the same BP-RP.
+        c.stage = MockStage::Giant;
+        c.star_class = StellarClass::Evolved;
+        const double bp_rp = s.giant_bp_rp_mag + s.giant_bp_rp_scatter_mag * properties_.normal();
+        const double g_ks = s.giant_g_ks_mag + s.giant_g_ks_scatter_mag * properties_.normal();
+        const photometry::BandMagnitudes same_colour = photometry_.dwarf(photometry_.codeOfBpRp(bp_rp));
+        c.abs.g = kClumpAbsGMag + kClumpAbsGSlope * (g_ks - kClumpGKsPivotMag) +
+                  s.giant_abs_g_scatter_mag * properties_.normal();
+        c.abs.rp = c.abs.g - (same_colour.g - same_colour.rp);
+        c.abs.bp = c.abs.rp + bp_rp;
+        c.abs.ks = c.abs.g - g_ks;
+        c.abs.j = c.abs.ks + (same_colour.j - same_colour.ks);
+        c.abs.h = photometry::absHFromJKs(c.abs.j, c.abs.ks);
+        return c;
+    }
+    if (initial_mass_msun > s.max_white_dwarf_progenitor_msun) {
+        c.compact_remnant = true;
+        return c;
+    }
+    c.stage = MockStage::WhiteDwarf;
+    c.star_class = StellarClass::WhiteDwarf;
+    c.mass_msun = s.ifmr_slope * initial_mass_msun + s.ifmr_intercept_msun;
+    // The Montreal grids span log g 7.0-9.0.
+    const double log_g = std::clamp(whiteDwarfLogG(c.mass_msun), 7.0, 9.0);
+    const double cooling_age_yr = (age_gyr - giant_end_gyr) * 1e9;
+    const bool hydrogen = properties_.uniform() < s.hydrogen_atmosphere_share;
+    c.abs = photometry_.whiteDwarf(cooling_age_yr, log_g,
+                                   hydrogen ? photometry::WhiteDwarfAtmosphere::Hydrogen
+                                            : photometry::WhiteDwarfAtmosphere::Helium);
+    if (std::isnan(c.abs.g) && !hydrogen) {
+        // Older than the helium grid reaches (Teff < 3250 K): use the hydrogen grid.
+        c.abs = photometry_.whiteDwarf(cooling_age_yr, log_g, photometry::WhiteDwarfAtmosphere::Hydrogen);
+    }
+    return c;
+}
+
+bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::CatalogRow>& catalog,
+                         std::vector<ObjectTruth>& truth) {
+    const MockSettings& s = settings_;
+    for (std::size_t made = 0; made < max_systems && !done_; ++made) {
+        // Poisson process in enclosed volume: exponential gaps of mean 1/density.
+        enclosed_volume_pc3_ += -std::log(positions_.uniformOpen()) / s.system_density_per_pc3;
+        if (enclosed_volume_pc3_ > volume_max_pc3_) {
+            done_ = true;
+            break;
+        }
+        const double distance_pc = std::cbrt(3.0 * enclosed_volume_pc3_ / (4.0 * std::numbers::pi));
+        const double ra_deg = 360.0 * positions_.uniform();
+        const double dec_deg = std::asin(2.0 * positions_.uniform() - 1.0) * 180.0 / std::numbers::pi;
+
+        const double primary_mass = imf_.sample(properties_);
+        const double age_gyr = s.disc_age_gyr * properties_.uniform();
+        const bool binary = properties_.uniform() < s.binary_fraction;
+        Component primary = makeComponent(primary_mass, age_gyr);
+        Component companion;
+        companion.compact_remnant = true; // "no companion"
+        if (binary) {
+            const double q_min = std::min(1.0, s.imf.mass_min_msun / primary_mass);
+            const double q = q_min + (1.0 - q_min) * properties_.uniform();
+            companion = makeComponent(q * primary_mass, age_gyr);
+        }
+        if (primary.compact_remnant) {
+            // An NS/BH is removed; a visible companion becomes the object.
+            std::swap(primary, companion);
+        }
+        if (primary.compact_remnant) {
+            ++remnant_only_systems_;
+            continue;
+        }
+        const bool has_companion = !companion.compact_remnant;
+        if (has_companion && companion.abs.g < primary.abs.g) {
+            // The truth names the component that dominates the G light, the one a photometric census
+            // can classify (a white dwarf with a brighter M dwarf companion is seen as an M dwarf).
+            std::swap(primary, companion);
+        }
+        const photometry::BandMagnitudes abs =
+            has_companion ? combine(primary.abs, companion.abs) : primary.abs;
+        const double modulus = 5.0 * std::log10(distance_pc) - 5.0;
+
+        ObjectTruth object;
+        object.source_id = mockSourceId(seed_, systems_);
+        object.true_class = primary.star_class;
+        object.stage = primary.stage;
+        object.spectral_code = primary.spectral_code;
+        object.distance_pc = distance_pc;
+        object.mass_msun = primary.mass_msun;
+        object.initial_mass_msun = primary.initial_mass_msun;
+        object.age_gyr = age_gyr;
+        object.binary = has_companion;
+        if (has_companion) {
+            object.companion_class = companion.star_class;
+            object.companion_mass_msun = companion.mass_msun;
+        }
+        object.abs_g_mag = abs.g;
+        object.true_g_mag = abs.g + modulus;
+        ++systems_;
+
+        // What the survey measures.
+        photometry::CatalogRow row;
+        row.source_id = object.source_id;
+        row.ra_deg = ra_deg;
+        row.dec_deg = dec_deg;
+        const double g_obs =
+            observeMagnitude(object.true_g_mag, gMagErrorMag(object.true_g_mag), properties_);
+        row.g_mag = g_obs;
+        row.g_error_mag = gMagErrorMag(g_obs);
+        if (properties_.uniform() >=
+            bpRpLossProbability(g_obs, s.bp_rp_loss_start_g_mag, s.bp_rp_loss_end_g_mag)) {
+            row.bp_error_mag = bpMagErrorMag(g_obs);
+            row.rp_error_mag = rpMagErrorMag(g_obs);
+            row.bp_mag = observeMagnitude(abs.bp + modulus, row.bp_error_mag, properties_);
+            row.rp_mag = observeMagnitude(abs.rp + modulus, row.rp_error_mag, properties_);
+            if (std::isnan(row.bp_mag)) {
+                row.bp_error_mag = kNaN;
+            }
+            if (std::isnan(row.rp_mag)) {
+                row.rp_error_mag = kNaN;
+            }
+        }
+        const double parallax_mas = 1000.0 / distance_pc;
+        row.parallax_error_mas = parallaxErrorMas(g_obs);
+        row.parallax_mas = parallax_mas + row.parallax_error_mas * properties_.normal();
+        // Tangential velocity per axis -> proper motion: mu [mas/yr] = 1000 v / (4.74047 d [pc]).
+        const double pm_error = properMotionErrorMasPerYr(g_obs);
+        const double to_pm = 1000.0 / (kKmPerSecondPerAuPerYear * distance_pc);
+        row.pmra_mas_per_yr =
+            to_pm * s.velocity_dispersion_km_s * properties_.normal() + pm_error * properties_.normal();
+        row.pmdec_mas_per_yr =
+            to_pm * s.velocity_dispersion_km_s * properties_.normal() + pm_error * properties_.normal();
+        std::tie(row.j_mag, row.j_error_mag) =
+            twoMassObservation(abs.j + modulus, s.j_limit_mag, properties_);
+        std::tie(row.h_mag, row.h_error_mag) =
+            twoMassObservation(abs.h + modulus, s.h_limit_mag, properties_);
+        std::tie(row.ks_mag, row.ks_error_mag) =
+            twoMassObservation(abs.ks + modulus, s.ks_limit_mag, properties_);
+        if (has_companion && properties_.uniform() < s.binary_high_ruwe_share) {
+            row.ruwe = s.binary_high_ruwe_min *
+                       std::pow(s.binary_high_ruwe_max / s.binary_high_ruwe_min, properties_.uniform());
+        } else {
+            row.ruwe = std::pow(10.0, s.ruwe_scatter_dex * properties_.normal());
+        }
+        object.catalogued = g_obs <= s.g_limit_mag; // false for NaN
+        if (object.catalogued) {
+            row.row_index = catalogued_++;
+            catalog.push_back(row);
+        }
+        truth.push_back(object);
+    }
+    return !done_;
+}
+
+MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t seed,
+                                 const photometry::ModelPhotometry& photometry) {
+    MockResult result;
+    result.settings = settings;
+    result.seed = seed;
+    MockGenerator generator(settings, seed, photometry);
+    while (generator.next(100000, result.catalog, result.truth)) {
+    }
+    result.remnant_only_systems = generator.remnantOnlySystems();
+    return result;
+}
+
+MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t seed) {
+    return simulateNeighbourhood(settings, seed, photometry::shippedModelPhotometry());
+}
+
+} // namespace starcensus::census::mock

@@ -1,0 +1,183 @@
+#pragma once
+// A mock solar neighbourhood with known truth: stellar systems inside a sphere around the Sun, their
+// masses, ages and evolutionary stages, unresolved binaries, absolute and apparent photometry, and a
+// catalog of what a Gaia + 2MASS-like survey would measure. Numerics only, no I/O (see Output.h).
+//
+// Laws (defaults in MockSettings; sources beside each field):
+//  - Systems form a Poisson process of uniform density: they are generated in order of increasing
+//    distance from exponential gaps in enclosed volume, which makes the count inside every radius
+//    exactly Poisson and lets a large mock be produced in bounded memory, chunk by chunk.
+//  - Primary masses from the IMF (InitialMassFunction.h); ages uniform in [0, disc age] (constant
+//    star-formation rate).
+//  - Main-sequence lifetime t_MS = t_sun (M/Msun)^-2.5. Age < t_MS: main sequence (mass -> spectral code
+//    -> dwarf locus); t_MS..(1 + giant share) t_MS: giant near the red clump; later: white dwarf with
+//    cooling age = age - (1 + giant share) t_MS, or an NS/BH (initial mass > 8 Msun), which is removed.
+//  - Brown dwarfs (mass < 0.075 Msun) cool: Teff = 1550 K (M/0.05 Msun)^0.83 (t/Gyr)^-0.32 (Burrows et
+//    al. 2001, Rev. Mod. Phys. 73, 719; from memory), clamped to the settings' range; Teff -> code ->
+//    dwarf locus (L/T/Y).
+//  - Unresolved binaries: companion mass q * M1 with q uniform in [mass_min / M1, 1]; same age and
+//    distance; fluxes added per band. The object keeps the class of the component that is brighter in
+//    G (the one a photometric census can classify); the other is its companion.
+//  - Measurement errors from MeasurementErrors.h, Gaussian in flux for the Gaia bands and in magnitude for
+//    2MASS; an object is catalogued if its measured G is at most the survey limit.
+#include "census/InitialMassFunction.h"
+#include "census/Random.h"
+#include "photometry/ModelPhotometry.h"
+#include "photometry/StellarClass.h"
+#include "photometry/catalog/CatalogRow.h"
+
+#include <array>
+#include <cstdint>
+#include <span>
+#include <vector>
+
+namespace starcensus::census::mock {
+
+struct MockSettings {
+    // Volume and kinematics.
+    double radius_max_pc = 25.0;         // radius of the simulated sphere (pc)
+    double system_density_per_pc3 = 0.1; // stellar systems per pc^3 (common practice, no source)
+    double velocity_dispersion_km_s =
+        30.0; // 1-sigma tangential velocity per axis (common practice, no source)
+    // Masses and ages.
+    ImfSettings imf;
+    double disc_age_gyr = 10.0;         // constant star formation over this time (common practice, no source)
+    double ms_lifetime_sun_gyr = 10.0;  // t_MS at 1 Msun (Gyr; common practice, no source)
+    double ms_lifetime_exponent = -2.5; // t_MS ∝ M^exponent (common practice, no source)
+    double giant_phase_share = 0.1;     // giant phase length / t_MS (common practice, no source)
+    double max_white_dwarf_progenitor_msun = 8.0; // heavier stars leave an NS/BH (common practice, no source)
+    double hydrogen_burning_limit_msun = 0.075;   // brown dwarfs below (common practice, no source)
+    double brown_dwarf_teff_min_k = 250.0;        // clamp of the cooling law: the coolest locus type (Y4V)
+    double brown_dwarf_teff_max_k = 2900.0; // the law overshoots for young, massive brown dwarfs (~M5.5V)
+    // Initial-final mass relation M_f = slope * M_i + intercept (Msun; linear approximation of Cummings
+    // et al. 2018, ApJ 866, 21, from memory).
+    double ifmr_slope = 0.08;
+    double ifmr_intercept_msun = 0.49;
+    double hydrogen_atmosphere_share = 0.8; // DA share of white dwarfs, the rest DB (from memory)
+    // Binaries.
+    double binary_fraction = 0.3; // unresolved binary systems / all systems (Reylé et al. 2021 find ~27%
+                                  // multiplicity within 10 pc, published-figures.md section 1)
+    // Intrinsic scatter (mag; common practice, no source).
+    double ms_abs_mag_scatter_mag = 0.1;  // one shift of all bands of a main-sequence star or brown dwarf
+    double ms_colour_scatter_mag = 0.02;  // BP-RP and J-Ks, each split equally between its two bands
+    double giant_abs_g_scatter_mag = 0.3; // spread of giants around the clump relation
+    double giant_bp_rp_mag = 1.2;         // mean red-clump BP-RP (from memory)
+    double giant_bp_rp_scatter_mag = 0.1;
+    double giant_g_ks_mag = 2.1; // mean clump G-Ks, the pivot of Ruiz-Dern et al. 2018 (A&A 609, A116)
+    double giant_g_ks_scatter_mag = 0.15; // (from memory)
+    // Survey.
+    double g_limit_mag =
+        20.7; // objects with measured G above this are not catalogued (common practice, no source)
+    double bp_rp_loss_start_g_mag = 19.0; // BP/RP loss probability 0 here ...
+    double bp_rp_loss_end_g_mag = 21.0;   // ... rising linearly to 1 here (common practice, no source)
+    double j_limit_mag = 15.8; // 2MASS 10-sigma limits (Skrutskie et al. 2006, AJ 131, 1163; from memory);
+    double h_limit_mag = 15.1; // fainter: no value in that band
+    double ks_limit_mag = 14.3;
+    double ruwe_scatter_dex =
+        0.04; // log10 RUWE ~ N(0, this) for well-behaved sources (common practice, no source)
+    double binary_high_ruwe_share = 0.4; // binaries whose orbit shows: RUWE log-uniform in the range below
+    double binary_high_ruwe_min = 1.4;   // (common practice, no source)
+    double binary_high_ruwe_max = 10.0;
+};
+
+/// Throws InputError naming the option (Options.h spelling, e.g. "--density") for a bad value.
+void validateMockSettings(const MockSettings& settings);
+
+/// Evolutionary stage of one component.
+enum class MockStage : std::uint8_t {
+    MainSequence,
+    BrownDwarf,
+    Giant,
+    WhiteDwarf,
+};
+inline constexpr std::array<const char*, 4> kMockStageNames = {"main_sequence", "brown_dwarf", "giant",
+                                                               "white_dwarf"};
+
+/// The truth of one simulated object (an unresolved system), catalogued or not.
+struct ObjectTruth {
+    std::int64_t source_id = photometry::kMissingSourceId; // also the catalog row's source_id
+    photometry::StellarClass true_class =
+        photometry::StellarClass::Unclassified;  // the G-brighter component's
+    MockStage stage = MockStage::MainSequence;   // the G-brighter component's
+    double spectral_code = photometry::kMissing; // dwarf code; NaN for giants and white dwarfs
+    double distance_pc = photometry::kMissing;
+    double mass_msun = photometry::kMissing; // present-day primary mass
+    double initial_mass_msun = photometry::kMissing;
+    double age_gyr = photometry::kMissing;
+    bool binary = false; // a visible (non-NS/BH) companion
+    photometry::StellarClass companion_class = photometry::StellarClass::Unclassified;
+    double companion_mass_msun = photometry::kMissing; // present-day
+    double abs_g_mag = photometry::kMissing;           // combined absolute G (mag)
+    double true_g_mag = photometry::kMissing;          // combined apparent G without errors (mag)
+    bool catalogued = false;
+};
+
+/// Objects of each class within one radius. "components" counts primaries and companions separately,
+/// each by its own class (the stars-and-brown-dwarfs count of a census, vs. its system count).
+struct RadiusCounts {
+    double radius_pc = 0.0;
+    std::array<std::int64_t, photometry::kClassCount> all{};
+    std::array<std::int64_t, photometry::kClassCount> catalogued{};
+    std::array<std::int64_t, photometry::kClassCount> components{};
+};
+
+/// Counts by class within each radius (pc; any order). Pure: call once over all truth, or accumulate.
+std::vector<RadiusCounts> countWithinRadii(std::span<const ObjectTruth> truth,
+                                           std::span<const double> radii_pc);
+void addToCounts(std::span<const ObjectTruth> truth, std::vector<RadiusCounts>& counts);
+
+struct MockResult {
+    MockSettings settings;
+    std::uint64_t seed = 0;
+    std::vector<photometry::CatalogRow> catalog; // catalogued objects, nearest first
+    std::vector<ObjectTruth> truth;              // every object, nearest first
+    std::int64_t remnant_only_systems = 0;       // systems of NS/BH only: removed, in neither list
+};
+
+/// Simulates chunk by chunk; results do not depend on the chunk sizes, and the objects of a smaller
+/// sphere are the inner objects of a larger one with the same seed and settings.
+class MockGenerator {
+  public:
+    /// `photometry` must outlive the generator. Throws InputError for invalid settings.
+    MockGenerator(const MockSettings& settings, std::uint64_t seed,
+                  const photometry::ModelPhotometry& photometry);
+
+    /// Appends up to `max_systems` further systems to the two lists; false when the sphere is exhausted.
+    bool next(std::size_t max_systems, std::vector<photometry::CatalogRow>& catalog,
+              std::vector<ObjectTruth>& truth);
+    std::int64_t remnantOnlySystems() const { return remnant_only_systems_; }
+    const MockSettings& settings() const { return settings_; }
+
+  private:
+    struct Component;
+    Component makeComponent(double initial_mass_msun, double age_gyr);
+
+    MockSettings settings_;
+    std::uint64_t seed_;
+    const photometry::ModelPhotometry& photometry_;
+    InitialMassFunction imf_;
+    Xoshiro256 positions_;  // volume gaps, directions
+    Xoshiro256 properties_; // everything else
+    double enclosed_volume_pc3_ = 0.0;
+    double volume_max_pc3_;
+    std::int64_t systems_ = 0;
+    std::int64_t catalogued_ = 0;
+    std::int64_t remnant_only_systems_ = 0;
+    bool done_ = false;
+};
+
+/// The whole mock at once, with the shipped photometric tables.
+MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t seed);
+MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t seed,
+                                 const photometry::ModelPhotometry& photometry);
+
+/// Unique, positive, well-mixed source identifiers: a bijection of the object index (per seed), so ids
+/// carry no distance order.
+std::int64_t mockSourceId(std::uint64_t seed, std::int64_t object_index);
+
+/// log g (cgs) of a white dwarf of this mass (Msun): Nauenberg 1972 (ApJ 175, 417) zero-temperature
+/// mass-radius relation R = 0.0112 Rsun [(M/Mch)^-2/3 - (M/Mch)^2/3]^1/2, Mch = 1.454 Msun (from
+/// memory); 8.02 at 0.6 Msun.
+double whiteDwarfLogG(double mass_msun);
+
+} // namespace starcensus::census::mock

@@ -1,0 +1,180 @@
+#include "photometry/catalog/CatalogScan.h"
+
+#include "photometry/base/Threads.h"
+#include "photometry/catalog/CatalogScanDetail.h"
+#include "photometry/catalog/CsvCatalog.h"
+#include "photometry/catalog/FitsCatalog.h"
+
+#include <fitsio.h>
+
+#include <cmath>
+
+namespace starcensus::photometry {
+
+ScanCounts& ScanCounts::operator+=(const ScanCounts& other) {
+    rows_read += other.rows_read;
+    rows_no_parallax += other.rows_no_parallax;
+    rows_unusable_parallax_error += other.rows_unusable_parallax_error;
+    rows_below_parallax_limit += other.rows_below_parallax_limit;
+    rows_nonpositive_parallax += other.rows_nonpositive_parallax;
+    candidates += other.candidates;
+    candidates_nonpositive_parallax += other.candidates_nonpositive_parallax;
+    candidates_missing_g += other.candidates_missing_g;
+    candidates_missing_bp += other.candidates_missing_bp;
+    candidates_missing_rp += other.candidates_missing_rp;
+    candidates_missing_j += other.candidates_missing_j;
+    candidates_missing_h += other.candidates_missing_h;
+    candidates_missing_ks += other.candidates_missing_ks;
+    return *this;
+}
+
+namespace detail {
+
+double CatalogRow::*rowMember(CatalogField field) {
+    static constexpr std::array<double CatalogRow::*, kCatalogFieldCount> members = {
+        nullptr,
+        &CatalogRow::ra_deg,
+        &CatalogRow::dec_deg,
+        &CatalogRow::parallax_mas,
+        &CatalogRow::parallax_error_mas,
+        &CatalogRow::pmra_mas_per_yr,
+        &CatalogRow::pmdec_mas_per_yr,
+        &CatalogRow::g_mag,
+        &CatalogRow::bp_mag,
+        &CatalogRow::rp_mag,
+        &CatalogRow::g_error_mag,
+        &CatalogRow::bp_error_mag,
+        &CatalogRow::rp_error_mag,
+        &CatalogRow::j_mag,
+        &CatalogRow::h_mag,
+        &CatalogRow::ks_mag,
+        &CatalogRow::ruwe,
+        &CatalogRow::j_error_mag,
+        &CatalogRow::h_error_mag,
+        &CatalogRow::ks_error_mag,
+    };
+    return members[static_cast<std::size_t>(field)];
+}
+
+ScanAccumulator::ScanAccumulator(FileScanResult& result, const ScanSettings& settings)
+    : result_(result), min_parallax_mas_(settings.min_parallax_mas),
+      candidate_sigma_(settings.candidate_sigma), keep_candidates_(settings.keep_candidates),
+      null_counts_over_all_rows_(settings.null_counts_over_all_rows) {
+    result.report.null_counts_over_all_rows = null_counts_over_all_rows_;
+    for (const auto& resolved : result.report.mapping.fields) {
+        if (!resolved) {
+            continue;
+        }
+        if (resolved->field == CatalogField::SourceId) {
+            source_id_mapped_ = true;
+        } else {
+            mapped_doubles_.push_back(
+                {static_cast<std::size_t>(resolved->field), rowMember(resolved->field)});
+        }
+    }
+}
+
+void ScanAccumulator::countNulls(const CatalogRow& row) {
+    FileScanReport& report = result_.report;
+    if (source_id_mapped_ && row.source_id == kMissingSourceId) {
+        ++report.null_counts[static_cast<std::size_t>(CatalogField::SourceId)];
+    }
+    for (const auto& mapped : mapped_doubles_) {
+        if (std::isnan(row.*mapped.member)) {
+            ++report.null_counts[mapped.index];
+        }
+    }
+}
+
+void ScanAccumulator::keep(const CatalogRow& row) {
+    if (!null_counts_over_all_rows_) {
+        countNulls(row);
+    }
+    ScanCounts& counts = result_.report.counts;
+    ++counts.candidates;
+    counts.candidates_nonpositive_parallax += row.parallax_mas <= 0.0 ? 1 : 0;
+    counts.candidates_missing_g += std::isnan(row.g_mag) ? 1 : 0;
+    counts.candidates_missing_bp += std::isnan(row.bp_mag) ? 1 : 0;
+    counts.candidates_missing_rp += std::isnan(row.rp_mag) ? 1 : 0;
+    counts.candidates_missing_j += std::isnan(row.j_mag) ? 1 : 0;
+    counts.candidates_missing_h += std::isnan(row.h_mag) ? 1 : 0;
+    counts.candidates_missing_ks += std::isnan(row.ks_mag) ? 1 : 0;
+    if (keep_candidates_) {
+        result_.candidates.push_back(row);
+    }
+}
+
+void ScanAccumulator::finish(const std::string& where) {
+    FileScanReport& report = result_.report;
+    if (report.counts.rows_read == 0) {
+        report.warnings.push_back(where + ": the table has zero rows; no candidates");
+        return;
+    }
+    const bool all_rows = report.null_counts_over_all_rows;
+    const std::int64_t counted = all_rows ? report.counts.rows_read : report.counts.candidates;
+    for (const auto& resolved : report.mapping.fields) {
+        if (resolved && counted > 0 &&
+            report.null_counts[static_cast<std::size_t>(resolved->field)] == counted) {
+            report.warnings.push_back(where + ": column " + resolved->column_name + " (" +
+                                      std::string(fieldName(resolved->field)) + ") is null in every " +
+                                      (all_rows ? "row" : "candidate"));
+        }
+    }
+}
+
+void appendPart(FileScanResult& whole, FileScanResult&& part) {
+    FileScanReport& report = whole.report;
+    report.counts += part.report.counts;
+    for (std::size_t f = 0; f < kCatalogFieldCount; ++f) {
+        report.null_counts[f] += part.report.null_counts[f];
+    }
+    report.parallax_min_mas = std::fmin(report.parallax_min_mas, part.report.parallax_min_mas);
+    report.parallax_max_mas = std::fmax(report.parallax_max_mas, part.report.parallax_max_mas);
+    if (whole.candidates.empty()) {
+        whole.candidates = std::move(part.candidates);
+    } else {
+        whole.candidates.insert(whole.candidates.end(), part.candidates.begin(), part.candidates.end());
+    }
+}
+
+} // namespace detail
+
+CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings) {
+    std::vector<detail::FileScanResult> results(paths.size());
+    unsigned threads = resolveThreadCount(settings.threads);
+    if (fits_is_reentrant() == 0) {
+        threads = 1; // a cfitsio built without --enable-reentrant must not be used from two threads
+    }
+    const unsigned file_threads =
+        std::max(1U, std::min<unsigned>(threads, static_cast<unsigned>(paths.size())));
+    const unsigned threads_per_file = std::max(1U, threads / file_threads);
+    if (settings.progress != nullptr) {
+        settings.progress->parts_total += static_cast<int>(paths.size());
+    }
+    // Files are claimed in order; the error of the first failing file in `paths` is the one thrown.
+    forEachIndex(paths.size(), file_threads, [&](std::size_t index) {
+        const auto file_index = static_cast<std::uint32_t>(index);
+        results[index] = isCsvPath(paths[index])
+                             ? detail::scanCsvFile(paths[index], file_index, settings)
+                             : detail::scanFitsFile(paths[index], file_index, settings, threads_per_file);
+        if (settings.progress != nullptr) {
+            ++settings.progress->parts_done;
+        }
+    });
+
+    CatalogScan scan;
+    for (std::size_t index = 0; index < paths.size(); ++index) {
+        scan.totals += results[index].report.counts;
+        std::vector<CatalogRow>& rows = results[index].candidates;
+        if (scan.candidates.empty()) {
+            scan.candidates = std::move(rows); // no copy for the first (often only) file
+        } else {
+            scan.candidates.insert(scan.candidates.end(), rows.begin(), rows.end());
+            std::vector<CatalogRow>().swap(rows);
+        }
+        scan.files.push_back(std::move(results[index].report));
+    }
+    return scan;
+}
+
+} // namespace starcensus::photometry

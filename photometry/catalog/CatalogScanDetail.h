@@ -1,0 +1,89 @@
+#pragma once
+// Internals shared by the FITS and CSV readers: the per-file result and the row bookkeeping every reader
+// applies in the same way (null counts, candidate test, counters, warnings).
+#include "photometry/catalog/CatalogScan.h"
+
+#include <cmath>
+#include <vector>
+
+namespace starcensus::photometry::detail {
+
+struct FileScanResult {
+    FileScanReport report;
+    std::vector<CatalogRow> candidates;
+};
+
+/// The CatalogRow member of a floating-point field; nullptr for source_id.
+double CatalogRow::*rowMember(CatalogField field);
+
+/// Applies the candidate test of CatalogScan.h to decoded rows and keeps the counts. The report's
+/// mapping must be set before construction. Row-wise readers call add(); the FITS reader, which decodes
+/// column by column, counts nulls itself and calls passes() for every row and keep() for those that pass.
+class ScanAccumulator {
+  public:
+    ScanAccumulator(FileScanResult& result, const ScanSettings& settings);
+
+    /// One decoded row: every mapped field filled (canonical units), the others missing.
+    void add(const CatalogRow& row) {
+        if (null_counts_over_all_rows_) {
+            countNulls(row);
+        }
+        if (passes(row.parallax_mas, row.parallax_error_mas)) {
+            keep(row);
+        }
+    }
+    /// Counts the row and applies the candidate test to its parallax and error (mas); true: a candidate.
+    bool passes(double parallax_mas, double parallax_error_mas) {
+        FileScanReport& report = result_.report;
+        ScanCounts& counts = report.counts;
+        ++counts.rows_read;
+        if (!std::isfinite(parallax_mas)) {
+            ++counts.rows_no_parallax;
+            return false;
+        }
+        // The range starts as NaN, which every comparison fails.
+        if (!(parallax_mas >= report.parallax_min_mas)) {
+            report.parallax_min_mas = parallax_mas;
+        }
+        if (!(parallax_mas <= report.parallax_max_mas)) {
+            report.parallax_max_mas = parallax_mas;
+        }
+        if (!std::isfinite(parallax_error_mas) || parallax_error_mas <= 0.0) {
+            ++counts.rows_unusable_parallax_error;
+            return false;
+        }
+        counts.rows_nonpositive_parallax += parallax_mas <= 0.0 ? 1 : 0;
+        if (!(parallax_mas + candidate_sigma_ * parallax_error_mas > min_parallax_mas_)) {
+            ++counts.rows_below_parallax_limit;
+            return false;
+        }
+        return true;
+    }
+    /// A row that passed: counts its missing photometry (and its nulls, when they are counted over the
+    /// candidates) and keeps it (unless only counting).
+    void keep(const CatalogRow& row);
+    /// Adds the warnings that depend on the whole file; `where` names the file (and HDU).
+    void finish(const std::string& where);
+
+  private:
+    void countNulls(const CatalogRow& row);
+
+  private:
+    struct MappedField {
+        std::size_t index;
+        double CatalogRow::*member;
+    };
+    FileScanResult& result_;
+    std::vector<MappedField> mapped_doubles_;
+    bool source_id_mapped_ = false;
+    double min_parallax_mas_;
+    double candidate_sigma_;
+    bool keep_candidates_;
+    bool null_counts_over_all_rows_;
+};
+
+/// Adds a part of a file scanned separately (the rows after those already in `whole`): counts, null
+/// counts, parallax range and candidates.
+void appendPart(FileScanResult& whole, FileScanResult&& part);
+
+} // namespace starcensus::photometry::detail

@@ -1,0 +1,50 @@
+#include "census/HostMeasurements.h"
+
+#include "photometry/DwarfLocus.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <vector>
+
+using namespace starcensus;
+
+TEST_CASE("hosts classified from J and Ks get Teff errors from their 2MASS errors") {
+    // Three copies of an L5V dwarf at 10 pc (distance modulus 0; M_J and J-Ks of the shipped Pecaut &
+    // Mamajek locus, so J = M_J), no Gaia photometry: the near-infrared path. With J and Ks errors the
+    // re-measurements move along the locus and Teff spreads; without them only the 0.1% parallax error is
+    // left, which cannot move it off its 0.1-subtype locus point; larger errors spread it more.
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    const double abs_j = classifier.locus().valueAtCode(photometry::LocusQuantity::AbsJMag, 75.0);
+    const double j_ks = classifier.locus().valueAtCode(photometry::LocusQuantity::JKsMag, 75.0);
+    REQUIRE(std::isfinite(abs_j));
+    REQUIRE(std::isfinite(j_ks));
+    std::vector<photometry::CatalogRow> rows(3);
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        rows[i].parallax_mas = 100.0;
+        rows[i].parallax_error_mas = 0.1;
+        rows[i].j_mag = abs_j;
+        rows[i].ks_mag = abs_j - j_ks;
+        rows[i].row_index = static_cast<std::int64_t>(i);
+    }
+    rows[1].j_error_mag = rows[1].ks_error_mag = 0.03;
+    rows[2].j_error_mag = rows[2].ks_error_mag = 0.10;
+    const census::MembershipSettings membership;
+    const census::PreparedSample sample(rows, {20.0}, membership, 5.0, 1, &classifier);
+    census::HostListSettings settings;
+    settings.threads = 1;
+    const census::HostMeasurements measured =
+        census::measureHosts(rows, sample, classifier, membership, settings);
+    REQUIRE(measured.rows.size() == 3);
+    const double without_errors = measured.uncertainties[0].teff_k;
+    const double small_errors = measured.uncertainties[1].teff_k;
+    const double large_errors = measured.uncertainties[2].teff_k;
+    MESSAGE("teff_error without / with 0.03 / with 0.10 mag J, Ks errors: "
+            << without_errors << " / " << small_errors << " / " << large_errors << " K");
+    CHECK(without_errors == 0.0);
+    CHECK(small_errors > 0.0);
+    CHECK(large_errors > small_errors);
+    // L dwarfs span ~1000 K over ten subtypes (the same table): 0.1 mag errors cannot spread Teff by more
+    // than a few subtypes.
+    CHECK(large_errors < 500.0);
+}

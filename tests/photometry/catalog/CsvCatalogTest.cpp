@@ -1,0 +1,97 @@
+#include "FitsFixture.h"
+
+#include "photometry/catalog/CatalogScan.h"
+#include "photometry/catalog/CsvCatalog.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+
+using namespace starcensus::photometry;
+using namespace starcensus::testing;
+
+namespace {
+
+std::string scanError(const std::string& path, const ScanSettings& settings) {
+    return inputErrorOf([&] { scanCatalogs({path}, settings); });
+}
+
+} // namespace
+
+TEST_CASE("CSV rows round-trip, with Gaia names implying mas and missing fields as NaN") {
+    const ScratchDirectory directory("starcensus-reader");
+    const std::string path = directory.file("stars.CSV");
+    writeText(path, "# a comment before the header\n"
+                    "source_id, ra, dec, parallax, parallax_error, phot_g_mean_mag, phot_bp_mean_mag, j_m\n"
+                    "4295806720,10.5,-30.25,768.0665,0.0499,8.984,+9.5,5.357\r\n"
+                    "\n"
+                    "# comment between rows\n"
+                    "17,\"200.0\",45.0,NaN,0.5,12.0,,\n"
+                    "18,1.0,2.0,-0.25,0.3,13.0,nan,14.0\n");
+    CHECK(isCsvPath(path));
+    ScanSettings settings;
+    settings.min_parallax_mas = 0.5;
+    settings.null_counts_over_all_rows = true;
+    const CatalogScan scan = scanCatalogs({path}, settings);
+    const FileScanReport& report = scan.files[0];
+    CHECK(report.hdu_name == "CSV");
+    CHECK(report.rows == 3);
+    CHECK(report.mapping[CatalogField::Parallax]->unit_source == "Gaia name (mas)");
+    REQUIRE(scan.candidates.size() == 2);
+    const CatalogRow& first = scan.candidates[0];
+    CHECK(first.source_id == 4295806720);
+    CHECK(first.ra_deg == 10.5);
+    CHECK(first.dec_deg == -30.25);
+    CHECK(first.parallax_mas == 768.0665);
+    CHECK(first.parallax_error_mas == 0.0499);
+    CHECK(first.g_mag == 8.984);
+    CHECK(first.bp_mag == 9.5);
+    CHECK(first.j_mag == 5.357);
+    CHECK(std::isnan(first.rp_mag));
+    CHECK(scan.candidates[1].row_index == 2);
+    CHECK(scan.candidates[1].parallax_mas == -0.25);
+    CHECK(std::isnan(scan.candidates[1].bp_mag));
+    CHECK(scan.totals.rows_no_parallax == 1);
+    CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::Bp)] == 2);
+    CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::J)] == 1);
+}
+
+TEST_CASE("CSV parallaxes under other names need --unit, which converts") {
+    const ScratchDirectory directory("starcensus-reader");
+    const std::string path = directory.file("plx.csv");
+    writeText(path, "plx,e_plx,gmag\n0.1,0.001,10\n");
+    ScanSettings settings;
+    CHECK(scanError(path, settings) ==
+          path + ": column plx (parallax) has no unit; state it with TUNIT1 or --unit "
+                 "parallax=UNIT (accepted: mas, milliarcsec, marcsec, arcsec, arcsecond, "
+                 "uas, \xC2\xB5"
+                 "as, microarcsec, \xCE\xBC"
+                 "as)");
+    settings.user_units = {{"parallax", "arcsec"}, {"parallax_error", "arcsec"}};
+    const CatalogScan scan = scanCatalogs({path}, settings);
+    REQUIRE(scan.candidates.size() == 1);
+    CHECK(scan.candidates[0].parallax_mas == doctest::Approx(100.0).epsilon(1e-15));
+    CHECK(scan.candidates[0].parallax_error_mas == doctest::Approx(1.0).epsilon(1e-15));
+}
+
+TEST_CASE("bad CSV input names file, line and column") {
+    const ScratchDirectory directory("starcensus-reader");
+    const ScanSettings settings;
+    const std::string text_value = directory.file("text.csv");
+    writeText(text_value, "parallax,parallax_error,gmag\n1,0.1,10\n2,abc,11\n");
+    CHECK(scanError(text_value, settings) ==
+          text_value + " line 3: column parallax_error (parallax_error): 'abc' is not a number");
+    const std::string short_row = directory.file("short.csv");
+    writeText(short_row, "parallax,parallax_error,gmag\n1,0.1\n");
+    CHECK(scanError(short_row, settings) == short_row + " line 2: 2 fields, the header has 3");
+    const std::string empty = directory.file("empty.csv");
+    writeText(empty, "# only a comment\n");
+    CHECK(scanError(empty, settings) == empty + ": no header row (empty CSV file)");
+    const std::string header_only = directory.file("header.csv");
+    writeText(header_only, "parallax,parallax_error,gmag\n");
+    const CatalogScan scan = scanCatalogs({header_only}, settings);
+    CHECK(scan.files[0].rows == 0);
+    CHECK(scan.files[0].warnings.at(0) == header_only + ": the table has zero rows; no candidates");
+    CHECK(scanError(directory.file("absent.csv"), settings) ==
+          directory.file("absent.csv") + ": no such file or not readable");
+}
