@@ -30,6 +30,14 @@ struct CatalogRow {
     double j_error_mag = kMissing; // 2MASS J, H, Ks uncertainties (mag)
     double h_error_mag = kMissing;
     double ks_error_mag = kMissing;
+    double b_mag = kMissing;  // Johnson B (Vega)
+    double v_mag = kMissing;  // Johnson V (Vega)
+    double w1_mag = kMissing; // WISE W1, 3.4 um (Vega)
+    double w2_mag = kMissing; // WISE W2, 4.6 um (Vega)
+    double b_error_mag = kMissing;
+    double v_error_mag = kMissing;
+    double w1_error_mag = kMissing;
+    double w2_error_mag = kMissing;
     std::uint32_t file_index = 0; // which input file the row came from
     std::int64_t row_index = 0;   // 0-based row within that file's table
 };

@@ -52,6 +52,14 @@ double CatalogRow::*rowMember(CatalogField field) {
         &CatalogRow::j_error_mag,
         &CatalogRow::h_error_mag,
         &CatalogRow::ks_error_mag,
+        &CatalogRow::b_mag,
+        &CatalogRow::v_mag,
+        &CatalogRow::w1_mag,
+        &CatalogRow::w2_mag,
+        &CatalogRow::b_error_mag,
+        &CatalogRow::v_error_mag,
+        &CatalogRow::w1_error_mag,
+        &CatalogRow::w2_error_mag,
     };
     return members[static_cast<std::size_t>(field)];
 }

@@ -99,7 +99,9 @@ std::span<const UnitChoice> unitChoices(CatalogField field) {
 
 // UCD1+ words a column may carry for each field (see the header for the vocabulary). Gaia DR3 labels
 // G, BP and RP as em.opt, em.opt.B and em.opt.R (Gaia DR3 documentation, gaia_source datamodel); 2MASS
-// J, H, Ks are em.IR.J, em.IR.H, em.IR.K. "meta.main" is ignored except where it picks the main position
+// J, H, Ks are em.IR.J, em.IR.H, em.IR.K; WISE W1 and W2 are em.IR.3-4um and em.IR.4-8um (the AllWISE
+// and CatWISE renderings in VizieR; from memory), Johnson V em.opt.V. Johnson B is found by name only: its
+// UCD, em.opt.B, is also Gaia BP's. "meta.main" is ignored except where it picks the main position
 // or identifier out of several.
 struct FieldRule {
     std::vector<std::string_view> ucds;
@@ -137,6 +139,17 @@ const FieldRule& fieldRule(CatalogField field) {
         {{"stat.error;phot.mag;em.ir.k"},
          {"ks_msigcom", "k_msigcom", "e_kmag", "e_ksmag", "k_cmsig", "ks_cmsig", "ks_mag_error",
           "kmag_error"}},
+        {{}, {"bmag", "b_mag", "bjmag"}},
+        {{"phot.mag;em.opt.v"}, {"vmag", "v_mag", "vjmag"}},
+        // AllWISE and CatWISE: w1mpro (profile-fit magnitude) and w1sigmpro; VizieR's W1mag and e_W1mag.
+        {{"phot.mag;em.ir.3-4um"}, {"w1mpro", "w1mag", "w1_mag", "w1mpro_pm", "w1"}},
+        {{"phot.mag;em.ir.4-8um"}, {"w2mpro", "w2mag", "w2_mag", "w2mpro_pm", "w2"}},
+        {{}, {"e_bmag", "b_mag_error", "bmag_error", "e_bjmag"}},
+        {{"stat.error;phot.mag;em.opt.v"}, {"e_vmag", "v_mag_error", "vmag_error", "e_vjmag"}},
+        {{"stat.error;phot.mag;em.ir.3-4um"},
+         {"w1sigmpro", "e_w1mag", "w1_mag_error", "w1mag_error", "w1sigmpro_pm", "w1err"}},
+        {{"stat.error;phot.mag;em.ir.4-8um"},
+         {"w2sigmpro", "e_w2mag", "w2_mag_error", "w2mag_error", "w2sigmpro_pm", "w2err"}},
     }};
     return rules[static_cast<std::size_t>(field)];
 }

@@ -41,14 +41,23 @@ enum class CatalogField : std::uint8_t {
     JError,
     HError,
     KsError,
+    B,  // Johnson B
+    V,  // Johnson V
+    W1, // WISE W1 (3.4 um)
+    W2, // WISE W2 (4.6 um)
+    BError,
+    VError,
+    W1Error,
+    W2Error,
 };
 
-inline constexpr std::size_t kCatalogFieldCount = 20;
+inline constexpr std::size_t kCatalogFieldCount = 28;
 /// The logical names used by --column and --unit, in CatalogField order.
 inline constexpr std::array<std::string_view, kCatalogFieldCount> kCatalogFieldNames = {
     "source_id", "ra", "dec",  "parallax", "parallax_error", "pmra",     "pmdec",
     "g",         "bp", "rp",   "g_error",  "bp_error",       "rp_error", "j",
-    "h",         "ks", "ruwe", "j_error",  "h_error",        "ks_error"};
+    "h",         "ks", "ruwe", "j_error",  "h_error",        "ks_error", "b",
+    "v",         "w1", "w2",   "b_error",  "v_error",        "w1_error", "w2_error"};
 
 constexpr std::string_view fieldName(CatalogField field) {
     return kCatalogFieldNames[static_cast<std::size_t>(field)];

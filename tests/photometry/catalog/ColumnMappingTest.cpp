@@ -76,6 +76,47 @@ TEST_CASE("2MASS and VizieR names map by name, case-insensitively") {
     CHECK(mapping[CatalogField::Pmdec]->column_name == "pmDE");
 }
 
+TEST_CASE("Johnson B, V and WISE W1, W2 map by release names and by UCD") {
+    // AllWISE source-table names (w1mpro, w1sigmpro) and VizieR's Vmag/e_Vmag, Bmag/e_Bmag (AllWISE
+    // explanatory supplement and VizieR II/328 column names; from memory).
+    auto columns = describe({{"Plx", "mas", ""},
+                             {"e_Plx", "mas", ""},
+                             {"Gmag", "mag", ""},
+                             {"Bmag", "mag", ""},
+                             {"e_Bmag", "mag", ""},
+                             {"Vmag", "mag", ""},
+                             {"e_Vmag", "mag", ""},
+                             {"w1mpro", "mag", ""},
+                             {"w1sigmpro", "mag", ""},
+                             {"W2mag", "mag", ""},
+                             {"e_W2mag", "mag", ""}});
+    ColumnMapping mapping = resolveColumns(columns, {}, "bright.fits");
+    CHECK(mapping[CatalogField::B]->column_name == "Bmag");
+    CHECK(mapping[CatalogField::BError]->column_name == "e_Bmag");
+    CHECK(mapping[CatalogField::V]->column_name == "Vmag");
+    CHECK(mapping[CatalogField::VError]->column_name == "e_Vmag");
+    CHECK(mapping[CatalogField::W1]->column_name == "w1mpro");
+    CHECK(mapping[CatalogField::W1Error]->column_name == "w1sigmpro");
+    CHECK(mapping[CatalogField::W2]->column_name == "W2mag");
+    CHECK(mapping[CatalogField::W2Error]->column_name == "e_W2mag");
+    CHECK_FALSE(mapping[CatalogField::Bp].has_value()); // Johnson B is not Gaia BP
+    // UCD1+ words em.IR.3-4um, em.IR.4-8um and em.opt.V (the IVOA UCD1+ vocabulary, version 1.5).
+    columns = describe({{"parallax", "mas", ""},
+                        {"parallax_error", "mas", ""},
+                        {"G", "mag", "phot.mag;em.opt"},
+                        {"MAG_V", "mag", "phot.mag;em.opt.V"},
+                        {"F1", "mag", "phot.mag;em.IR.3-4um"},
+                        {"F2", "mag", "phot.mag;em.IR.4-8um"},
+                        {"S2", "mag", "stat.error;phot.mag;em.IR.4-8um"}});
+    mapping = resolveColumns(columns, {}, "ucd.fits");
+    CHECK(mapping[CatalogField::V]->column_name == "MAG_V");
+    CHECK(mapping[CatalogField::W1]->column_name == "F1");
+    CHECK(mapping[CatalogField::W2]->column_name == "F2");
+    CHECK(mapping[CatalogField::W2Error]->column_name == "S2");
+    CHECK(mapping[CatalogField::W2]->route == MappingRoute::Ucd);
+    CHECK(fieldFromName("W2_error") == CatalogField::W2Error);
+}
+
 TEST_CASE("UCDs beat names and the user's mapping beats both") {
     // UCD1+ words as used by the Gaia archive (Gaia DR3 documentation, gaia_source datamodel).
     const auto columns = describe({{"parallax", "mas", ""},
