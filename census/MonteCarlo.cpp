@@ -52,6 +52,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     modulus_quantiles_.resize(n * kQuantiles);
     if (classifier != nullptr) {
         colourless_categories_.resize(n * kQuantiles);
+        quantile_classified_.resize(n);
     }
     forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
         for (std::size_t s = begin; s < end; ++s) {
@@ -72,7 +73,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
             std::copy(posterior.distanceModulusQuantiles().begin(),
                       posterior.distanceModulusQuantiles().end(),
                       modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
-            if (classifier != nullptr && std::isnan(colour_mag_[s]) && std::isfinite(g_mag_[s])) {
+            if (classifier != nullptr && classifiable && std::isnan(colour_mag_[s])) {
+                quantile_classified_[s] = 1;
                 for (std::size_t k = 0; k < kQuantiles; ++k) {
                     const photometry::PhotometricInput input{.g_mag = row.g_mag,
                                                              .rp_mag = row.rp_mag,
@@ -173,7 +175,7 @@ class SampleDrawer {
             const bool has_colour = std::isfinite(colour);
             const bool has_magnitude = std::isfinite(g);
             const photometry::Category* colourless =
-                sample_.colourless_categories_.empty()
+                sample_.quantile_classified_.empty() || sample_.quantile_classified_[s] == 0
                     ? nullptr
                     : &sample_.colourless_categories_[s * PreparedSample::kQuantiles];
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
@@ -207,7 +209,7 @@ class SampleDrawer {
                     const float drawn_colour =
                         colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
                     assigned = classes_.lookup(drawn_colour, abs_g);
-                } else if (has_magnitude && colourless != nullptr) {
+                } else if (colourless != nullptr) {
                     assigned = colourless[static_cast<int>(position + 0.5f)];
                 } else if (has_magnitude) {
                     assigned = classes_.lookupMagnitudeOnly(abs_g);
@@ -234,16 +236,16 @@ class SampleDrawer {
                 return std::nullopt;
             }
         }
+        if (colourless != nullptr) {
+            const bool same = std::all_of(colourless, colourless + PreparedSample::kQuantiles,
+                                          [&](photometry::Category c) { return c == colourless[0]; });
+            return same ? std::optional(colourless[0]) : std::nullopt;
+        }
         const float g = sample_.g_mag_[s];
         if (!std::isfinite(g)) {
             return kUnclassified;
         }
         const float colour = sample_.colour_mag_[s];
-        if (!std::isfinite(colour) && colourless != nullptr) {
-            const bool same = std::all_of(colourless, colourless + PreparedSample::kQuantiles,
-                                          [&](photometry::Category c) { return c == colourless[0]; });
-            return same ? std::optional(colourless[0]) : std::nullopt;
-        }
         // Float rounding in the loop can move a value by a few ulps past these bounds: widen them.
         constexpr float kMarginMag = 1e-3f;
         const auto [nearest, farthest] =

@@ -66,6 +66,9 @@ class PreparedSample {
     std::vector<float> modulus_quantiles_;  // [star][kQuantiles], distance modulus (mag)
     // [star][kQuantiles]: category at each quantile for stars without BP-RP; empty without a classifier
     std::vector<photometry::Category> colourless_categories_;
+    // 1 where colourless_categories_ holds the star's classes: classifiable (parallax S/N), no BP-RP, with
+    // or without G (a brown dwarf seen only in the near infrared is classified as sample.fits has it)
+    std::vector<std::uint8_t> quantile_classified_;
 };
 
 /// Member counts per radius, census category and draw, and per-star class frequencies.

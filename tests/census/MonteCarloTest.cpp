@@ -1,6 +1,8 @@
 #include "census/MonteCarlo.h"
 
 #include "census/Random.h"
+#include "census/RowClassification.h"
+#include "photometry/ClassGrid.h"
 
 #include <doctest/doctest.h>
 
@@ -146,4 +148,38 @@ TEST_CASE("stars whose draws cannot differ are tallied in every draw; stars on a
     CHECK(share(star1_within_20) == doctest::Approx(0.5).epsilon(0.25));
     CHECK(star1_k_within_20 > 0);
     CHECK(star1_k_within_20 < star1_within_20);
+}
+
+TEST_CASE("objects without Gaia photometry are drawn with the class sample.fits gives them") {
+    // A T5 and an L5 dwarf seen only in 2MASS J and Ks (M_J and J-Ks of the shipped Pecaut & Mamajek
+    // locus at 10 pc, parallax S/N 100): the exact classifier names them from the near infrared, and the
+    // Monte Carlo, classifying at each distance quantile, must agree (it used to count them unclassified).
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    std::vector<photometry::CatalogRow> rows(2);
+    const std::array<double, 2> codes = {85.0, 75.0};
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        const double abs_j = classifier.locus().valueAtCode(photometry::LocusQuantity::AbsJMag, codes[i]);
+        const double j_ks = classifier.locus().valueAtCode(photometry::LocusQuantity::JKsMag, codes[i]);
+        REQUIRE(std::isfinite(abs_j));
+        REQUIRE(std::isfinite(j_ks));
+        rows[i].parallax_mas = 100.0;
+        rows[i].parallax_error_mas = 1.0;
+        rows[i].j_mag = abs_j;
+        rows[i].ks_mag = abs_j - j_ks;
+    }
+    const census::MembershipSettings membership;
+    const census::PreparedSample sample(rows, {20.0}, membership, 5.0, 1, &classifier);
+    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
+    const auto tallies = census::drawSample(sample, grid, {.draws = 200, .seed = 3, .threads = 1});
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        const photometry::Classification exact = census::classifyRow(rows[i], classifier, membership, 5.0);
+        CAPTURE(i);
+        CHECK(exact.stellar_class == (i == 0 ? StellarClass::T : StellarClass::L));
+        const std::uint32_t same_class =
+            tallies.star_classes[i * photometry::kClassCount + static_cast<std::size_t>(exact.stellar_class)];
+        CHECK(same_class >= 100u); // probability of the sample.fits class at least 0.5
+    }
+    // Both are members in every draw, counted in their own class.
+    CHECK(tallies.classCount(0, 0, StellarClass::T) == 1u);
+    CHECK(tallies.classCount(0, 0, StellarClass::L) == 1u);
 }
