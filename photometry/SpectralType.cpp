@@ -146,9 +146,12 @@ bool readDwarfType(TypeReader& in, LiteratureType& type) {
     in.advance(1);
     type.stellar_class = dwarfClassOfCode(10.0 * letter_index);
     in.skipSpaces();
+    const std::string_view subtype_text = in.rest();
     if (const auto subtype = in.takeNumber()) {
         if (*subtype >= 10.0) {
-            type.reason = "subtype " + std::to_string(*subtype) + " is not below 10";
+            type.reason = "subtype " +
+                          std::string(subtype_text.substr(0, subtype_text.size() - in.rest().size())) +
+                          " is not below 10";
             return false;
         }
         type.spectral_code = 10.0 * letter_index + *subtype;

@@ -208,7 +208,7 @@ TEST_CASE("literature spectral types: blanks and nonsense are refused with a rea
     };
     CHECK(refusedReason("foo") == "not understood: 'oo' in 'foo'");
     CHECK(refusedReason("Q5") == "no spectral class letter at 'Q5'");
-    CHECK(refusedReason("M12 V") == "subtype 12.000000 is not below 10");
+    CHECK(refusedReason("M12 V") == "subtype 12 is not below 10");
     CHECK(refusedReason("M8+xyz") == "companion: no spectral class letter at 'xyz'");
     CHECK(refusedReason("M5 V 42") == "not understood: '42' in 'M5 V 42'");
     CHECK(refusedReason("kA2 V") == "metallic-line type without a hydrogen ('h') part");
