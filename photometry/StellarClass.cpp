@@ -1,8 +1,8 @@
 #include "photometry/StellarClass.h"
 
+#include "photometry/SpectralType.h"
+
 #include <algorithm>
-#include <cctype>
-#include <charconv>
 #include <cmath>
 #include <cstdio>
 
@@ -62,24 +62,9 @@ std::string spectralTypeLabel(double spectral_code) {
 }
 
 std::optional<double> parseSpectralType(std::string_view type) {
-    while (!type.empty() && std::isspace(static_cast<unsigned char>(type.front()))) {
-        type.remove_prefix(1);
-    }
-    if (type.empty()) {
-        return std::nullopt;
-    }
-    const auto letter =
-        kDwarfLetters.find(static_cast<char>(std::toupper(static_cast<unsigned char>(type[0]))));
-    if (letter == std::string_view::npos) {
-        return std::nullopt;
-    }
-    type.remove_prefix(1);
-    double subtype = 0.0;
-    const auto [end, error] = std::from_chars(type.data(), type.data() + type.size(), subtype);
-    if (error != std::errc{} || end == type.data() || subtype < 0.0 || subtype >= 10.0) {
-        return std::nullopt;
-    }
-    return 10.0 * static_cast<double>(letter) + subtype;
+    const LiteratureType parsed = parseLiteratureType(type);
+    const bool dwarf_letter = parsed.parsed && parsed.stellar_class < StellarClass::WhiteDwarf;
+    return dwarf_letter ? parsed.spectral_code : std::nullopt;
 }
 
 } // namespace starcensus::photometry

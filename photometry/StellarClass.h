@@ -53,8 +53,9 @@ StellarClass dwarfClassOfCode(double spectral_code);
 /// "G2.0V"-style label of a spectral code.
 std::string spectralTypeLabel(double spectral_code);
 
-/// Parse "M4.5 V", "G2V", "L1", "T7.5" (luminosity class ignored) into a spectral code; nullopt if it is
-/// not a recognised dwarf type.
+/// The spectral code of "M4.5 V", "G2V", "L1", "T7.5", "G8 IV" (luminosity class ignored): the code of
+/// parseLiteratureType (SpectralType.h) for the letters O-Y; nullopt for white dwarfs, types without a
+/// subtype and strings it refuses.
 std::optional<double> parseSpectralType(std::string_view type);
 
 } // namespace starcensus::photometry
