@@ -214,6 +214,18 @@ bool readClass(TypeReader& in, LiteratureType& type) {
     return readDwarfType(in, type);
 }
 
+/// The value of the first spelling in `table` that the reader takes (so longer spellings go first).
+template <class Value, std::size_t N>
+std::optional<Value> takeFirstOf(TypeReader& in,
+                                 const std::array<std::pair<std::string_view, Value>, N>& table) {
+    for (const auto& [spelling, value] : table) {
+        if (in.take(spelling)) {
+            return value;
+        }
+    }
+    return std::nullopt;
+}
+
 std::optional<LuminosityClass> takeRomanNumeral(TypeReader& in) {
     // Longest spelling first, so "III" is not read as "II" + "I".
     constexpr std::array<std::pair<std::string_view, LuminosityClass>, 9> kNumerals = {{
@@ -227,12 +239,7 @@ std::optional<LuminosityClass> takeRomanNumeral(TypeReader& in) {
         {"VI", LuminosityClass::Subdwarf},
         {"V", LuminosityClass::Dwarf},
     }};
-    for (const auto& [spelling, luminosity_class] : kNumerals) {
-        if (in.take(spelling)) {
-            return luminosity_class;
-        }
-    }
-    return std::nullopt;
+    return takeFirstOf(in, kNumerals);
 }
 
 /// "V", "IV", "IV-V", "IV/V": a range is read as its later (fainter) class, the enum's larger value.
@@ -267,11 +274,9 @@ bool readGravity(TypeReader& in, LiteratureType& type) {
         {"\xCE\xB3", SurfaceGravity::VeryLow},
         {"\xCE\xB4", SurfaceGravity::ExtremelyLow},
     }};
-    for (const auto& [word, gravity] : kGravityWords) {
-        if (in.take(word)) {
-            type.gravity = gravity;
-            return true;
-        }
+    if (const auto gravity = takeFirstOf(in, kGravityWords)) {
+        type.gravity = *gravity;
+        return true;
     }
     return false;
 }
