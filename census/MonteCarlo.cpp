@@ -80,6 +80,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
                                                              .rp_mag = row.rp_mag,
                                                              .j_mag = row.j_mag,
                                                              .ks_mag = row.ks_mag,
+                                                             .w1_mag = row.w1_mag,
+                                                             .w2_mag = row.w2_mag,
                                                              .distance_modulus_mag =
                                                                  posterior.distanceModulusQuantiles()[k]};
                     const auto result = classifier->classify(input);

@@ -21,6 +21,8 @@ PhotometricInput photometricInput(const CatalogRow& row) {
     input.rp_mag = row.rp_mag;
     input.j_mag = row.j_mag;
     input.ks_mag = row.ks_mag;
+    input.w1_mag = row.w1_mag;
+    input.w2_mag = row.w2_mag;
     input.parallax_mas = row.parallax_mas;
     input.parallax_error_mas = row.parallax_error_mas;
     return input;
@@ -49,6 +51,10 @@ Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_
             near_infrared_locus_.push_back(
                 {abs_j / settings_.nir_magnitude_scale_mag, j_ks / settings_.nir_colour_scale_mag, code});
         }
+        if (const double w1_w2 = locus.valueAtCode(LocusQuantity::W1W2Mag, code); !std::isnan(w1_w2)) {
+            mid_infrared_locus_.push_back(
+                {abs_j / settings_.nir_magnitude_scale_mag, w1_w2 / settings_.mir_colour_scale_mag, code});
+        }
     }
     std::sort(near_infrared_locus_.begin(), near_infrared_locus_.end(),
               [](const NearInfraredPoint& a, const NearInfraredPoint& b) {
@@ -76,16 +82,17 @@ Classification Classifier::classify(const PhotometricInput& input) const {
         }
     }
     const double abs_j = input.j_mag - modulus;
-    Classification result = classifyAbsolute(input.g_mag - modulus, input.bp_mag - input.rp_mag,
-                                             input.g_mag - input.rp_mag, abs_j, input.j_mag - input.ks_mag);
+    Classification result =
+        classifyAbsolute(input.g_mag - modulus, input.bp_mag - input.rp_mag, input.g_mag - input.rp_mag,
+                         abs_j, input.j_mag - input.ks_mag, input.w1_mag - input.w2_mag);
     result.abs_g_error_mag = std::isnan(result.abs_g_mag) ? kNaN : modulus_error;
     result.flags |= flags;
     return result;
 }
 
 Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag,
-                                            double abs_j_mag, double j_ks_mag) const {
-    Classification result = classOf(abs_g_mag, bp_rp_mag, g_rp_mag, abs_j_mag, j_ks_mag);
+                                            double abs_j_mag, double j_ks_mag, double w1_w2_mag) const {
+    Classification result = classOf(abs_g_mag, bp_rp_mag, g_rp_mag, abs_j_mag, j_ks_mag, w1_w2_mag);
     if (result.stellar_class == StellarClass::WhiteDwarf) {
         // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
         // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
@@ -104,19 +111,22 @@ Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, 
 }
 
 Classification Classifier::classifyClassOnly(double abs_g_mag, double bp_rp_mag) const {
-    return classOf(abs_g_mag, bp_rp_mag, kNaN, kNaN, kNaN);
+    return classOf(abs_g_mag, bp_rp_mag, kNaN, kNaN, kNaN, kNaN);
 }
 
 Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
-                                   double j_ks_mag) const {
+                                   double j_ks_mag, double w1_w2_mag) const {
     Classification result;
     result.abs_g_mag = abs_g_mag;
     result.bp_rp_mag = bp_rp_mag;
     result.g_rp_mag = g_rp_mag;
     result.j_ks_mag = j_ks_mag;
     if (std::isnan(abs_g_mag)) {
+        // Without G nothing else can name the object: M_J alone is used as the last resort.
         result.flags |= bit(ClassificationFlag::NoAbsoluteMagnitude);
-        classifyNearInfrared(result, abs_j_mag, j_ks_mag);
+        if (!classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag)) {
+            classifyMidInfrared(result, abs_j_mag, w1_w2_mag, true);
+        }
         return result;
     }
     if (std::isnan(bp_rp_mag)) {
@@ -128,7 +138,7 @@ Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_
                       (std::isnan(bp_rp_mag) && result.stellar_class == StellarClass::Unclassified);
     if (late && result.stellar_class != StellarClass::WhiteDwarf &&
         result.stellar_class != StellarClass::Evolved) {
-        classifyNearInfrared(result, abs_j_mag, j_ks_mag);
+        classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag);
     }
     return result;
 }
@@ -225,9 +235,10 @@ void Classifier::classifyWithoutColour(Classification& result, double abs_j_mag)
     setDwarf(result, code);
 }
 
-bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag) const {
+bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
+                                      double w1_w2_mag) const {
     if (std::isnan(abs_j_mag) || std::isnan(j_ks_mag)) {
-        return false;
+        return classifyMidInfrared(result, abs_j_mag, w1_w2_mag, false);
     }
     // Nearest locus point in the scaled (J-Ks, M_J) plane; equal distances go to the earlier subtype.
     // Walking outward from the object's M_J, a point whose M_J difference alone is farther than the best
@@ -258,6 +269,42 @@ bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, 
     }
     for (auto brighter = split; brighter != near_infrared_locus_.begin() && consider(*(brighter - 1));) {
         --brighter;
+    }
+    if (!(best_distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
+        return false;
+    }
+    result.flags |= bit(ClassificationFlag::NearInfrared);
+    result.flags &= static_cast<std::uint16_t>(~bit(ClassificationFlag::OutsideLocus));
+    setDwarf(result, best_code);
+    return true;
+}
+
+bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
+                                     bool magnitude_only) const {
+    // Objects without J-Ks, typically late T and Y dwarfs that 2MASS did not see: the nearest locus point
+    // in the scaled (W1-W2, M_J) plane, in W1-W2 alone without J (the colour rises steadily from the late
+    // M dwarfs to Y4, Pecaut & Mamajek table), or, when asked, in M_J alone without W1-W2 (M_J too rises
+    // steadily through the T and Y dwarfs). Same scales and distance limit as the J-Ks path.
+    const bool with_colour = !std::isnan(w1_w2_mag);
+    const bool with_j = !std::isnan(abs_j_mag);
+    if (!with_colour && !(magnitude_only && with_j)) {
+        return false;
+    }
+    const double y = abs_j_mag / settings_.nir_magnitude_scale_mag;
+    const double x = w1_w2_mag / settings_.mir_colour_scale_mag;
+    double best_distance_squared = std::numeric_limits<double>::infinity();
+    double best_code = kNaN;
+    for (const MidInfraredPoint& point : mid_infrared_locus_) {
+        if (with_j && std::isnan(point.scaled_abs_j)) {
+            continue;
+        }
+        const double dx = with_colour ? point.scaled_w1_w2 - x : 0.0;
+        const double dy = with_j ? point.scaled_abs_j - y : 0.0;
+        const double distance_squared = dx * dx + dy * dy;
+        if (distance_squared < best_distance_squared) { // ties go to the earlier subtype (points ascend)
+            best_distance_squared = distance_squared;
+            best_code = point.spectral_code;
+        }
     }
     if (!(best_distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
         return false;

@@ -80,6 +80,10 @@ struct ClassifierSettings {
     double nir_colour_scale_mag = 0.2;
     double nir_magnitude_scale_mag = 0.5;
     double nir_max_distance = 3.0;
+    /// W1-W2 scale of the mid-infrared distance (objects without J-Ks), wider than J-Ks's: W1-W2 spreads by
+    /// about half a magnitude among Y dwarfs of one subtype and W1 is often an upper limit (common practice,
+    /// no source). M_J uses nir_magnitude_scale_mag, and the limit is nir_max_distance.
+    double mir_colour_scale_mag = 0.5;
     /// Without BP-RP: a G-RP bluer than the locus at the M_G code by more than this is unclassified.
     double g_rp_tolerance_mag = 0.3;
     /// Without BP-RP and fainter than the locus's faintest M_G (L8V, 20.0): a T dwarf if G-RP or G-J is
@@ -99,6 +103,8 @@ struct PhotometricInput {
     double rp_mag = std::numeric_limits<double>::quiet_NaN();
     double j_mag = std::numeric_limits<double>::quiet_NaN();  // 2MASS J
     double ks_mag = std::numeric_limits<double>::quiet_NaN(); // 2MASS Ks
+    double w1_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W1
+    double w2_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W2
     /// Used when not NaN; otherwise the distance modulus comes from the parallax.
     double distance_modulus_mag = std::numeric_limits<double>::quiet_NaN();
     double parallax_mas = std::numeric_limits<double>::quiet_NaN();
@@ -143,9 +149,10 @@ class Classifier {
 
     /// From apparent magnitudes and a distance (modulus or parallax).
     Classification classify(const PhotometricInput& input) const;
-    /// From absolute M_G, colours and near infrared (any may be NaN).
+    /// From absolute M_G, colours, near and mid infrared (any may be NaN).
     Classification classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag = kNaN,
-                                    double abs_j_mag = kNaN, double j_ks_mag = kNaN) const;
+                                    double abs_j_mag = kNaN, double j_ks_mag = kNaN,
+                                    double w1_w2_mag = kNaN) const;
     /// classifyAbsolute()'s class, subtype code and flags without Teff and mass (left NaN) and without
     /// the white-dwarf grid's OutsideLocus flag: what the class grid needs for each cell it classifies.
     Classification classifyClassOnly(double abs_g_mag, double bp_rp_mag) const;
@@ -154,10 +161,13 @@ class Classifier {
     static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
     /// Class, subtype code and flags; Teff and mass are added by classifyAbsolute().
     Classification classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
-                           double j_ks_mag) const;
+                           double j_ks_mag, double w1_w2_mag) const;
     void classifyWithColour(Classification& result) const;
     void classifyWithoutColour(Classification& result, double abs_j_mag) const;
-    bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag) const;
+    bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
+                              double w1_w2_mag) const;
+    bool classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
+                             bool magnitude_only) const;
     void setDwarf(Classification& result, double spectral_code) const;
 
     const DwarfLocus& locus_;
@@ -172,6 +182,11 @@ class Classifier {
     // M0V onward in 0.1-subtype steps, sorted by scaled M_J so the nearest-point search can stop once the
     // M_J difference alone exceeds the best distance.
     std::vector<NearInfraredPoint> near_infrared_locus_;
+    struct MidInfraredPoint {
+        double scaled_abs_j, scaled_w1_w2, spectral_code; // M_J (NaN where the locus has none), W1-W2
+    };
+    std::vector<MidInfraredPoint>
+        mid_infrared_locus_; // M0V onward in 0.1-subtype steps, where W1-W2 is known
 };
 
 } // namespace starcensus::photometry

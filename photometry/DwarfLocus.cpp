@@ -41,6 +41,8 @@ double locusValue(const LocusPoint& point, LocusQuantity quantity) {
         return point.log_l_lsun;
     case LocusQuantity::RadiusRsun:
         return point.radius_rsun;
+    case LocusQuantity::W1W2Mag:
+        return point.w1_w2_mag;
     }
     return kNaN;
 }
@@ -58,6 +60,7 @@ DwarfLocus DwarfLocus::load(const std::string& path) {
     const auto abs_v = table.numbers("abs_v_mag");
     const auto log_l = table.numbers("log_l_lsun");
     const auto radius = table.numbers("radius_rsun");
+    const auto w1_w2 = table.numbers("w1_w2_mag");
     std::vector<LocusPoint> points;
     for (std::size_t row = 0; row < table.rowCount(); ++row) {
         const std::string& type = table.text(row, type_column);
@@ -66,7 +69,7 @@ DwarfLocus DwarfLocus::load(const std::string& path) {
             throw InputError(path + ": spectral_type '" + type + "' is not a dwarf spectral type");
         }
         points.push_back({type, *code, teff[row], abs_g[row], bp_rp[row], g_rp[row], abs_j[row], abs_ks[row],
-                          mass[row], abs_v[row], log_l[row], radius[row]});
+                          mass[row], abs_v[row], log_l[row], radius[row], w1_w2[row]});
     }
     return DwarfLocus(std::move(points));
 }
@@ -122,7 +125,8 @@ LocusPoint DwarfLocus::atCode(double spectral_code) const {
             at(LocusQuantity::MassMsun),
             at(LocusQuantity::AbsVMag),
             at(LocusQuantity::LogLLsun),
-            at(LocusQuantity::RadiusRsun)};
+            at(LocusQuantity::RadiusRsun),
+            at(LocusQuantity::W1W2Mag)};
 }
 
 double DwarfLocus::valueAtCode(LocusQuantity quantity, double spectral_code) const {

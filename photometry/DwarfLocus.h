@@ -26,6 +26,7 @@ struct LocusPoint {
     double abs_v_mag = std::numeric_limits<double>::quiet_NaN();  // M_V (Johnson)
     double log_l_lsun = std::numeric_limits<double>::quiet_NaN(); // log10 L/Lsun
     double radius_rsun = std::numeric_limits<double>::quiet_NaN();
+    double w1_w2_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W1 - W2
 };
 
 /// The quantities of a LocusPoint that can be interpolated or inverted. JKsMag is M_J - M_Ks.
@@ -41,8 +42,9 @@ enum class LocusQuantity : std::uint8_t {
     AbsVMag,
     LogLLsun,
     RadiusRsun,
+    W1W2Mag,
 };
-inline constexpr std::size_t kLocusQuantityCount = 11;
+inline constexpr std::size_t kLocusQuantityCount = 12;
 
 /// The value of one quantity in a point (JKsMag is computed).
 double locusValue(const LocusPoint& point, LocusQuantity quantity);

