@@ -270,13 +270,7 @@ bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, 
     for (auto brighter = split; brighter != near_infrared_locus_.begin() && consider(*(brighter - 1));) {
         --brighter;
     }
-    if (!(best_distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
-        return false;
-    }
-    result.flags |= bit(ClassificationFlag::NearInfrared);
-    result.flags &= static_cast<std::uint16_t>(~bit(ClassificationFlag::OutsideLocus));
-    setDwarf(result, best_code);
-    return true;
+    return acceptInfraredMatch(result, best_distance_squared, best_code);
 }
 
 bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
@@ -306,12 +300,17 @@ bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, d
             best_code = point.spectral_code;
         }
     }
-    if (!(best_distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
+    return acceptInfraredMatch(result, best_distance_squared, best_code);
+}
+
+bool Classifier::acceptInfraredMatch(Classification& result, double distance_squared,
+                                     double spectral_code) const {
+    if (!(distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
         return false;
     }
     result.flags |= bit(ClassificationFlag::NearInfrared);
     result.flags &= static_cast<std::uint16_t>(~bit(ClassificationFlag::OutsideLocus));
-    setDwarf(result, best_code);
+    setDwarf(result, spectral_code);
     return true;
 }
 

@@ -168,6 +168,8 @@ class Classifier {
                               double w1_w2_mag) const;
     bool classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
                              bool magnitude_only) const;
+    /// The infrared paths' verdict: the nearest point's code if within nir_max_distance (scaled units).
+    bool acceptInfraredMatch(Classification& result, double distance_squared, double spectral_code) const;
     void setDwarf(Classification& result, double spectral_code) const;
 
     const DwarfLocus& locus_;
