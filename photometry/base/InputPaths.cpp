@@ -21,6 +21,10 @@ void addPathOrPattern(const std::string& entry, const std::string& origin, std::
         if (!std::filesystem::exists(entry, error)) {
             throw InputError(entry + ": no such file" + origin);
         }
+        if (std::filesystem::is_directory(entry, error)) {
+            throw InputError(entry + ": is a directory, not a catalogue file" + origin +
+                             " (name its files, or a pattern such as DIR/*.fits)");
+        }
         paths.push_back(entry);
         return;
     }

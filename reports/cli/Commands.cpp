@@ -71,6 +71,16 @@ bool parseOptions(const std::string& command, const std::vector<std::string>& ar
     return false;
 }
 
+/// --out must name a directory (or nothing yet): an existing file there is a user error, found before any
+/// work is done.
+void checkOutputDirectory(const std::string& output_directory) {
+    std::error_code error;
+    if (std::filesystem::exists(output_directory, error) &&
+        !std::filesystem::is_directory(output_directory, error)) {
+        throw InputError("--out " + output_directory + ": exists and is not a directory");
+    }
+}
+
 std::string mockSummary(const census::mock::MockResult& mock, const std::vector<double>& radii_pc) {
     std::ostringstream text;
     text << "simulated " << mock.truth.size() << " objects within " << mock.settings.radius_max_pc << " pc ("
@@ -211,6 +221,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
         return 0;
     }
     checkHostOptions(hosts);
+    checkOutputDirectory(output_directory);
     census_settings.draws.seed = request.seed;
     census::validate(census_settings);
     census::hostRadiusIndex(hosts, census_settings.radii_pc); // before the mock is simulated
@@ -269,6 +280,7 @@ int runCommand(const std::vector<std::string>& arguments) {
         throw InputError("--input: no input catalog given");
     }
     checkHostOptions(hosts);
+    checkOutputDirectory(output_directory);
     reports::PipelineSettings settings;
     settings.inputs = inputs;
     settings.output_directory = output_directory;

@@ -47,12 +47,16 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
     {
         std::ofstream not_fits(dir / "notes.fits");
         not_fits << "this is not a FITS file\n";
+        std::ofstream plain_file(dir / "a_file");
+        std::filesystem::create_directory(dir / "a_directory");
     }
     struct Case {
         const char* arguments;
         const char* expected; // part of the message
     };
-    const std::array<Case, 7> cases = {{
+    const std::array<Case, 9> cases = {{
+        {"run a_directory --out out", "a_directory: is a directory"},
+        {"run notes.fits --out a_file", "--out a_file: exists and is not a directory"},
         {"run missing.fits --out out", "missing.fits"},
         {"run notes.fits --out out", "notes.fits"},
         {"run notes.fits --radius -5 --out out", "--radius"},
