@@ -337,6 +337,10 @@ LiteratureType refused(std::string reason) {
 
 } // namespace
 
+bool isBlankLiteratureType(std::string_view text) {
+    return isBlankMarker(trim(text));
+}
+
 LiteratureType parseLiteratureType(std::string_view text) {
     const std::string_view trimmed = trim(text);
     if (isBlankMarker(trimmed)) {

@@ -61,4 +61,8 @@ struct LiteratureType {
 /// are refused with reason "empty", anything else not understood with a reason quoting the part.
 LiteratureType parseLiteratureType(std::string_view text);
 
+/// True for the blank markers parseLiteratureType() refuses as "empty" (surrounding blanks ignored), so a
+/// reader can count a null without parsing the string.
+bool isBlankLiteratureType(std::string_view text);
+
 } // namespace starcensus::photometry
