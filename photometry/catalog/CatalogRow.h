@@ -1,10 +1,19 @@
 #pragma once
 // One catalog source, reduced to what the census needs. Units are in the names; a missing value is
 // NaN (floating point) or kMissingSourceId.
+#include "photometry/StellarClass.h"
+
 #include <cstdint>
 #include <limits>
 
 namespace starcensus::photometry {
+
+/// What became of a row's literature spectral type (the spectral_type field).
+enum class LiteratureTypeStatus : std::uint8_t {
+    Absent,  // no column, or a blank or missing marker ("", "NaN", "--"): a null
+    Parsed,  // read by parseLiteratureType(); literature_class is set
+    Refused, // a string the parser did not understand: data, counted, not an error
+};
 
 inline constexpr std::int64_t kMissingSourceId = std::numeric_limits<std::int64_t>::min();
 inline constexpr double kMissing = std::numeric_limits<double>::quiet_NaN();
@@ -38,6 +47,13 @@ struct CatalogRow {
     double v_error_mag = kMissing;
     double w1_error_mag = kMissing;
     double w2_error_mag = kMissing;
+    // The catalogue's spectral type (spectral_type field), parsed at read time by parseLiteratureType()
+    // (photometry/SpectralType.h) so the row stays plain numbers. literature_code is the parser's spectral
+    // code (O0 = 0 ... M0 = 60 ... Y0 = 90; dimensionless), NaN when absent or refused, without a subtype
+    // ("M V"), and for white dwarfs; literature_class is Unclassified unless Parsed.
+    double literature_code = kMissing;
+    StellarClass literature_class = StellarClass::Unclassified;
+    LiteratureTypeStatus literature_status = LiteratureTypeStatus::Absent;
     std::uint32_t file_index = 0; // which input file the row came from
     std::int64_t row_index = 0;   // 0-based row within that file's table
 };

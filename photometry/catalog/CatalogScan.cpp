@@ -1,5 +1,6 @@
 #include "photometry/catalog/CatalogScan.h"
 
+#include "photometry/SpectralType.h"
 #include "photometry/base/Threads.h"
 #include "photometry/catalog/CatalogScanDetail.h"
 #include "photometry/catalog/CsvCatalog.h"
@@ -25,6 +26,7 @@ ScanCounts& ScanCounts::operator+=(const ScanCounts& other) {
     candidates_missing_j += other.candidates_missing_j;
     candidates_missing_h += other.candidates_missing_h;
     candidates_missing_ks += other.candidates_missing_ks;
+    candidates_refused_spectral_type += other.candidates_refused_spectral_type;
     return *this;
 }
 
@@ -60,8 +62,24 @@ double CatalogRow::*rowMember(CatalogField field) {
         &CatalogRow::v_error_mag,
         &CatalogRow::w1_error_mag,
         &CatalogRow::w2_error_mag,
+        nullptr,
     };
     return members[static_cast<std::size_t>(field)];
+}
+
+void setLiteratureType(CatalogRow& row, std::string_view text) {
+    if (isBlankLiteratureType(text)) {
+        row.literature_status = LiteratureTypeStatus::Absent;
+        return;
+    }
+    const LiteratureType type = parseLiteratureType(text);
+    if (!type.parsed) {
+        row.literature_status = LiteratureTypeStatus::Refused;
+        return;
+    }
+    row.literature_status = LiteratureTypeStatus::Parsed;
+    row.literature_class = type.stellar_class;
+    row.literature_code = type.spectral_code.value_or(kMissing);
 }
 
 ScanAccumulator::ScanAccumulator(FileScanResult& result, const ScanSettings& settings)
@@ -75,6 +93,8 @@ ScanAccumulator::ScanAccumulator(FileScanResult& result, const ScanSettings& set
         }
         if (resolved->field == CatalogField::SourceId) {
             source_id_mapped_ = true;
+        } else if (resolved->field == CatalogField::SpectralType) {
+            spectral_type_mapped_ = true;
         } else {
             mapped_doubles_.push_back(
                 {static_cast<std::size_t>(resolved->field), rowMember(resolved->field)});
@@ -86,6 +106,9 @@ void ScanAccumulator::countNulls(const CatalogRow& row) {
     FileScanReport& report = result_.report;
     if (source_id_mapped_ && row.source_id == kMissingSourceId) {
         ++report.null_counts[static_cast<std::size_t>(CatalogField::SourceId)];
+    }
+    if (spectral_type_mapped_ && row.literature_status == LiteratureTypeStatus::Absent) {
+        ++report.null_counts[static_cast<std::size_t>(CatalogField::SpectralType)];
     }
     for (const auto& mapped : mapped_doubles_) {
         if (std::isnan(row.*mapped.member)) {
@@ -107,6 +130,7 @@ void ScanAccumulator::keep(const CatalogRow& row) {
     counts.candidates_missing_j += std::isnan(row.j_mag) ? 1 : 0;
     counts.candidates_missing_h += std::isnan(row.h_mag) ? 1 : 0;
     counts.candidates_missing_ks += std::isnan(row.ks_mag) ? 1 : 0;
+    counts.candidates_refused_spectral_type += row.literature_status == LiteratureTypeStatus::Refused ? 1 : 0;
     if (keep_candidates_) {
         result_.candidates.push_back(row);
     }

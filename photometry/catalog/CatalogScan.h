@@ -60,6 +60,8 @@ struct ScanCounts {
     std::int64_t candidates_missing_j = 0;
     std::int64_t candidates_missing_h = 0;
     std::int64_t candidates_missing_ks = 0;
+    // Candidates whose spectral_type string parseLiteratureType() refused (kept, with no literature type).
+    std::int64_t candidates_refused_spectral_type = 0;
 
     ScanCounts& operator+=(const ScanCounts& other);
     bool operator==(const ScanCounts&) const = default;

@@ -4,6 +4,7 @@
 #include "photometry/catalog/CatalogScan.h"
 
 #include <cmath>
+#include <string_view>
 #include <vector>
 
 namespace starcensus::photometry::detail {
@@ -13,8 +14,12 @@ struct FileScanResult {
     std::vector<CatalogRow> candidates;
 };
 
-/// The CatalogRow member of a floating-point field; nullptr for source_id.
+/// The CatalogRow member of a floating-point field; nullptr for source_id and spectral_type.
 double CatalogRow::*rowMember(CatalogField field);
+
+/// Fills the row's literature_* members from a spectral_type string as stored (surrounding blanks
+/// ignored): Absent for a blank marker, Refused for a string the parser does not read, else Parsed.
+void setLiteratureType(CatalogRow& row, std::string_view text);
 
 /// Applies the candidate test of CatalogScan.h to decoded rows and keeps the counts. The report's
 /// mapping must be set before construction. Row-wise readers call add(); the FITS reader, which decodes
@@ -76,6 +81,7 @@ class ScanAccumulator {
     FileScanResult& result_;
     std::vector<MappedField> mapped_doubles_;
     bool source_id_mapped_ = false;
+    bool spectral_type_mapped_ = false;
     double min_parallax_mas_;
     double candidate_sigma_;
     bool keep_candidates_;

@@ -49,15 +49,42 @@ enum class CatalogField : std::uint8_t {
     VError,
     W1Error,
     W2Error,
+    // MK spectral type as text ("M5.5V", "L0: INT-G", "DA7.8"): the only text field; the readers parse it
+    // into CatalogRow's literature_* members.
+    SpectralType,
 };
 
-inline constexpr std::size_t kCatalogFieldCount = 28;
+inline constexpr std::size_t kCatalogFieldCount = 29;
 /// The logical names used by --column and --unit, in CatalogField order.
-inline constexpr std::array<std::string_view, kCatalogFieldCount> kCatalogFieldNames = {
-    "source_id", "ra", "dec",  "parallax", "parallax_error", "pmra",     "pmdec",
-    "g",         "bp", "rp",   "g_error",  "bp_error",       "rp_error", "j",
-    "h",         "ks", "ruwe", "j_error",  "h_error",        "ks_error", "b",
-    "v",         "w1", "w2",   "b_error",  "v_error",        "w1_error", "w2_error"};
+inline constexpr std::array<std::string_view, kCatalogFieldCount> kCatalogFieldNames = {"source_id",
+                                                                                        "ra",
+                                                                                        "dec",
+                                                                                        "parallax",
+                                                                                        "parallax_error",
+                                                                                        "pmra",
+                                                                                        "pmdec",
+                                                                                        "g",
+                                                                                        "bp",
+                                                                                        "rp",
+                                                                                        "g_error",
+                                                                                        "bp_error",
+                                                                                        "rp_error",
+                                                                                        "j",
+                                                                                        "h",
+                                                                                        "ks",
+                                                                                        "ruwe",
+                                                                                        "j_error",
+                                                                                        "h_error",
+                                                                                        "ks_error",
+                                                                                        "b",
+                                                                                        "v",
+                                                                                        "w1",
+                                                                                        "w2",
+                                                                                        "b_error",
+                                                                                        "v_error",
+                                                                                        "w1_error",
+                                                                                        "w2_error",
+                                                                                        "spectral_type"};
 
 constexpr std::string_view fieldName(CatalogField field) {
     return kCatalogFieldNames[static_cast<std::size_t>(field)];
@@ -66,6 +93,11 @@ constexpr std::string_view fieldName(CatalogField field) {
 std::optional<CatalogField> fieldFromName(std::string_view name);
 /// "source_id ra dec ..." for messages.
 std::string allFieldNames();
+
+/// True for the one field whose values are text (spectral_type); every other field is numeric.
+constexpr bool isTextField(CatalogField field) {
+    return field == CatalogField::SpectralType;
+}
 
 /// The unit every value of a field is converted to: "mas", "deg", "mas/yr", "mag" or "" (dimensionless).
 std::string_view canonicalUnit(CatalogField field);

@@ -131,6 +131,10 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
             if (isMissing(text)) {
                 continue;
             }
+            if (field.column->field == CatalogField::SpectralType) {
+                setLiteratureType(row, text); // text, not a number; a refused string is data, not an error
+                continue;
+            }
             if (text.front() == '+') { // from_chars does not take an explicit plus sign
                 text.remove_prefix(1);
             }

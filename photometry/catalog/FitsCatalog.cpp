@@ -1,5 +1,6 @@
 #include "photometry/catalog/FitsCatalog.h"
 
+#include "photometry/SpectralType.h"
 #include "photometry/base/InputError.h"
 #include "photometry/base/Threads.h"
 
@@ -21,6 +22,8 @@
 #include <filesystem>
 #include <functional>
 #include <optional>
+#include <string_view>
+#include <variant>
 
 namespace starcensus::photometry {
 
@@ -376,7 +379,7 @@ struct FieldDecoder {
     }
 };
 
-FieldDecoder decoderFor(const TableColumn& column, CatalogField field, const std::string& where) {
+FieldDecoder numericDecoderFor(const TableColumn& column, CatalogField field, const std::string& where) {
     const std::string described =
         where + ": column " + column.description.name + " (" + std::string(fieldName(field)) + ")";
     if (column.type == 'A' || column.type == 'L' || column.type == 'X') {
@@ -394,6 +397,34 @@ FieldDecoder decoderFor(const TableColumn& column, CatalogField field, const std
     decoder.has_null = column.null_value.has_value() && decoder.isInteger();
     decoder.null_value = column.null_value.value_or(0);
     return decoder;
+}
+
+// A character column read as one string (FITS Standard 4.0, section 7.3.3.1, TFORM rA: r ASCII
+// characters; the string may end early at an ASCII NUL, the bytes after it are undefined). Trailing (and
+// leading) blanks are dropped by the consumer, parseLiteratureType().
+struct TextDecoder {
+    std::size_t offset = 0;
+    std::size_t width = 0;
+
+    std::string_view text(const unsigned char* row) const {
+        const char* at = reinterpret_cast<const char*>(row + offset);
+        return {at, static_cast<std::size_t>(std::find(at, at + width, '\0') - at)};
+    }
+};
+
+/// The decoder of a column for `field`: text fields need a character column and numeric fields a scalar
+/// numeric one; anything else is an InputError naming the column and field.
+std::variant<FieldDecoder, TextDecoder> decoderFor(const TableColumn& column, CatalogField field,
+                                                   const std::string& where) {
+    if (!isTextField(field)) {
+        return numericDecoderFor(column, field, where);
+    }
+    if (column.type != 'A') {
+        throw InputError(where + ": column " + column.description.name + " (" +
+                         std::string(fieldName(field)) + ") is not a character column (TFORM " +
+                         column.description.tform + "); a spectral type must be text, TFORM rA");
+    }
+    return TextDecoder{column.offset, column.bytes};
 }
 
 } // namespace
@@ -813,6 +844,7 @@ struct TablePlan {
     std::size_t row_bytes = 0;
     std::vector<MappedField> fields;
     std::optional<FieldDecoder> source_id;
+    std::optional<TextDecoder> spectral_type;
     std::size_t parallax = 0; // positions in `fields` (both are required, so always mapped)
     std::size_t parallax_error = 0;
 };
@@ -855,6 +887,13 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
                         plan.source_id->identifier(at - plan.source_id->offset) == kMissingSourceId ? 1 : 0;
                 });
             }
+            if (all_row_nulls && plan.spectral_type) {
+                // A blank test, not a parse: non-candidates are never parsed.
+                for (std::size_t r = 0; r < slice; ++r) {
+                    null_counts[static_cast<std::size_t>(CatalogField::SpectralType)] +=
+                        isBlankLiteratureType(plan.spectral_type->text(slice_raw + r * row_bytes)) ? 1 : 0;
+                }
+            }
             for (std::size_t r = 0; r < slice; ++r) {
                 if (!accumulator.passes(parallax[r], parallax_error[r])) {
                     continue;
@@ -868,6 +907,9 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
                 }
                 for (const MappedField& field : plan.fields) {
                     row.*field.member = field.value(at);
+                }
+                if (plan.spectral_type) {
+                    detail::setLiteratureType(row, plan.spectral_type->text(at));
                 }
                 accumulator.keep(row);
             }
@@ -982,8 +1024,12 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
         if (!resolved) {
             continue;
         }
-        const FieldDecoder decoder =
-            decoderFor(columns[resolved->column_index], resolved->field, file.where());
+        const auto decoded = decoderFor(columns[resolved->column_index], resolved->field, file.where());
+        if (const auto* text = std::get_if<TextDecoder>(&decoded)) {
+            plan.spectral_type = *text;
+            continue;
+        }
+        const FieldDecoder& decoder = std::get<FieldDecoder>(decoded);
         if (resolved->field == CatalogField::SourceId) {
             plan.source_id = decoder;
             continue;

@@ -231,3 +231,29 @@ TEST_CASE("CSV parallaxes take mas only from the Gaia names") {
     CHECK(with_unit[CatalogField::Parallax]->scale_to_canonical == 1000.0);
     CHECK(with_unit[CatalogField::Parallax]->unit_source == "--unit");
 }
+
+TEST_CASE("spectral_type maps by UCD src.spType or a generic name; SpT_opt beside SpT_IR is not ambiguous") {
+    const auto required = std::vector<ColumnDescription>{
+        {1, "parallax", "D", "", "mas"}, {2, "parallax_error", "D", "", "mas"}, {3, "gmag", "D", "", ""}};
+    auto with = [&](std::vector<ColumnDescription> extra) {
+        auto columns = required;
+        for (auto& column : extra) {
+            column.number = static_cast<int>(columns.size() + 1);
+            columns.push_back(std::move(column));
+        }
+        return columns;
+    };
+    const auto by_ucd = resolveColumns(with({{0, "TYPE", "10A", "src.spType", ""}}), {}, "cat.fits");
+    CHECK(by_ucd[CatalogField::SpectralType]->column_name == "TYPE");
+    CHECK(by_ucd[CatalogField::SpectralType]->matched_by == "UCD src.spType");
+    const auto by_name = resolveColumns(with({{0, "SP_TYPE", "10A", "", ""}}), {}, "cat.fits");
+    CHECK(by_name[CatalogField::SpectralType]->route == MappingRoute::Name);
+    // Typed by two spectra: neither name is a candidate, so nothing is mapped and nothing is ambiguous.
+    const auto both =
+        resolveColumns(with({{0, "SpT_opt", "8A", "", ""}, {0, "SpT_IR", "8A", "", ""}}), {}, "cat.fits");
+    CHECK_FALSE(both[CatalogField::SpectralType].has_value());
+    CHECK(canonicalUnit(CatalogField::SpectralType).empty());
+    CHECK(acceptedUnits(CatalogField::SpectralType) == "none");
+    CHECK(mappingError(with({{0, "spt", "8A", "", "mag"}})) ==
+          "cat.fits [HDU 1]: column spt (spectral_type) has unit 'mag'; accepted: none");
+}

@@ -95,3 +95,42 @@ TEST_CASE("bad CSV input names file, line and column") {
     CHECK(scanError(directory.file("absent.csv"), settings) ==
           directory.file("absent.csv") + ": no such file or not readable");
 }
+
+TEST_CASE("CSV spectral types are parsed at read time; refused strings are counted, not thrown") {
+    const ScratchDirectory directory("starcensus-reader");
+    const std::string path = directory.file("types.csv");
+    writeText(path, "source_id,parallax,parallax_error,phot_g_mean_mag,SpT\n"
+                    "1,100,0.1,10,M4.5 V\n"
+                    "2,100,0.1,10,\"DA7.8\"\n"
+                    "3,100,0.1,10,\n"
+                    "4,100,0.1,10,L0: INT-G\n"
+                    "5,100,0.1,10,not a type\n"
+                    "6,100,0.1,10,NaN\n");
+    ScanSettings settings;
+    settings.null_counts_over_all_rows = true;
+    const CatalogScan scan = scanCatalogs({path}, settings);
+    const FileScanReport& report = scan.files[0];
+    REQUIRE(report.mapping[CatalogField::SpectralType].has_value());
+    CHECK(report.mapping[CatalogField::SpectralType]->column_name == "SpT");
+    CHECK(report.mapping[CatalogField::SpectralType]->route == MappingRoute::Name);
+    REQUIRE(scan.candidates.size() == 6);
+    const auto& rows = scan.candidates;
+    // Codes by SpectralType.h's scale: M0 = 60, L0 = 70.
+    CHECK(rows[0].literature_status == LiteratureTypeStatus::Parsed);
+    CHECK(rows[0].literature_class == StellarClass::M);
+    CHECK(rows[0].literature_code == 64.5);
+    CHECK(rows[1].literature_class == StellarClass::WhiteDwarf);
+    CHECK(std::isnan(rows[1].literature_code)); // white dwarfs have no dwarf code
+    CHECK(rows[2].literature_status == LiteratureTypeStatus::Absent);
+    CHECK(rows[2].literature_class == StellarClass::Unclassified);
+    CHECK(std::isnan(rows[2].literature_code));
+    CHECK(rows[3].literature_class == StellarClass::L);
+    CHECK(rows[3].literature_code == 70.0);
+    CHECK(rows[4].literature_status == LiteratureTypeStatus::Refused);
+    CHECK(rows[4].literature_class == StellarClass::Unclassified);
+    CHECK(rows[5].literature_status == LiteratureTypeStatus::Absent);
+    CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::SpectralType)] == 2);
+    CHECK(scan.totals.candidates_refused_spectral_type == 1);
+    // The numeric fields are read as before.
+    CHECK(rows[4].parallax_mas == 100.0);
+}

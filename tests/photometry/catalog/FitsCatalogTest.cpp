@@ -522,3 +522,63 @@ TEST_CASE("a terminal progress display ends with its owner") {
     }
     CHECK(std::chrono::steady_clock::now() - start < std::chrono::seconds(5));
 }
+
+TEST_CASE("a FITS character column of spectral types is parsed for candidates, on every read path") {
+    const ScratchDirectory directory("starcensus-reader");
+    const std::string path = directory.file("types.fits");
+    FixtureTable table = smallGaiaTable();
+    FixtureColumn types = makeColumn("TYPE", "10A", "", "src.spType");
+    // Row 3 has no parallax, so it is never a candidate and its string is never parsed.
+    types.texts = {"M4.5 V", "DA7.8", "", "   "};
+    table.columns.push_back(types);
+    writeFitsTable(path, table);
+    const std::string gz_path = directory.file("types.fits.gz");
+    gzipFile(path, gz_path);
+
+    const ScanSettings settings = everything();
+    const CatalogScan scan = scanCatalogs({path}, settings);
+    const FileScanReport& report = scan.files[0];
+    CHECK(report.mapping[CatalogField::SpectralType]->route == MappingRoute::Ucd);
+    REQUIRE(scan.candidates.size() == 3);
+    CHECK(scan.candidates[0].literature_status == LiteratureTypeStatus::Parsed);
+    CHECK(scan.candidates[0].literature_class == StellarClass::M);
+    CHECK(scan.candidates[0].literature_code == 64.5); // M0 = 60 (SpectralType.h)
+    CHECK(scan.candidates[1].literature_class == StellarClass::WhiteDwarf);
+    CHECK(std::isnan(scan.candidates[1].literature_code));
+    CHECK(scan.candidates[2].literature_status == LiteratureTypeStatus::Absent);
+    CHECK(std::isnan(scan.candidates[2].literature_code));
+    CHECK(report.null_counts[static_cast<std::size_t>(CatalogField::SpectralType)] == 2); // all rows
+    checkSameRows(scan.candidates, referenceCandidates(readCatalogReference(report, 0), settings));
+    checkSameRows(scanCatalogs({gz_path}, settings).candidates, scan.candidates);
+
+    ScanSettings candidates_only = settings;
+    candidates_only.null_counts_over_all_rows = false;
+    const CatalogScan counted = scanCatalogs({path}, candidates_only);
+    CHECK(counted.files[0].null_counts[static_cast<std::size_t>(CatalogField::SpectralType)] == 1);
+    checkSameRows(counted.candidates, scan.candidates);
+
+    const std::string text = formatInspection(inspectCatalogs({path}, settings));
+    CHECK(text.find("  spectral_type   TYPE                          UCD") != std::string::npos);
+}
+
+TEST_CASE("spectral_type needs a character column and numeric fields refuse one") {
+    const ScratchDirectory directory("starcensus-reader");
+    const std::string path = directory.file("types.fits");
+    FixtureTable table = smallGaiaTable();
+    FixtureColumn types = makeColumn("SPT", "6A");
+    types.texts = {"M4.5 V", "DA7.8", "", "K2"};
+    table.columns.push_back(types);
+    writeFitsTable(path, table);
+    ScanSettings settings = everything();
+    settings.user_columns = {{"spectral_type", "RUWE"}}; // unitless, so the type is what is refused
+    CHECK(inputErrorOf([&] { scanCatalogs({path}, settings); }) ==
+          path + " [HDU 1 GAIA]: column ruwe (spectral_type) is not a character column (TFORM 1E); a "
+                 "spectral type must be text, TFORM rA");
+    // A column with a unit is refused for its unit before its type is looked at.
+    settings.user_columns = {{"spectral_type", "PARALLAX"}};
+    CHECK(inputErrorOf([&] { scanCatalogs({path}, settings); }) ==
+          path + " [HDU 1 GAIA]: column parallax (spectral_type) has unit 'mas'; accepted: none");
+    settings.user_columns = {{"g", "spt"}};
+    CHECK(inputErrorOf([&] { scanCatalogs({path}, settings); }) ==
+          path + " [HDU 1 GAIA]: column SPT (g) is not numeric (TFORM 6A)");
+}
