@@ -124,9 +124,7 @@ Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_
     if (std::isnan(abs_g_mag)) {
         // Without G nothing else can name the object: M_J alone is used as the last resort.
         result.flags |= bit(ClassificationFlag::NoAbsoluteMagnitude);
-        if (!classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag)) {
-            classifyMidInfrared(result, abs_j_mag, w1_w2_mag, true);
-        }
+        classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag, true);
         return result;
     }
     if (std::isnan(bp_rp_mag)) {
@@ -138,7 +136,7 @@ Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_
                       (std::isnan(bp_rp_mag) && result.stellar_class == StellarClass::Unclassified);
     if (late && result.stellar_class != StellarClass::WhiteDwarf &&
         result.stellar_class != StellarClass::Evolved) {
-        classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag);
+        classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag, false);
     }
     return result;
 }
@@ -236,9 +234,9 @@ void Classifier::classifyWithoutColour(Classification& result, double abs_j_mag)
 }
 
 bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
-                                      double w1_w2_mag) const {
+                                      double w1_w2_mag, bool magnitude_only) const {
     if (std::isnan(abs_j_mag) || std::isnan(j_ks_mag)) {
-        return classifyMidInfrared(result, abs_j_mag, w1_w2_mag, false);
+        return classifyMidInfrared(result, abs_j_mag, w1_w2_mag, magnitude_only);
     }
     // Nearest locus point in the scaled (J-Ks, M_J) plane; equal distances go to the earlier subtype.
     // Walking outward from the object's M_J, a point whose M_J difference alone is farther than the best
@@ -270,7 +268,11 @@ bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, 
     for (auto brighter = split; brighter != near_infrared_locus_.begin() && consider(*(brighter - 1));) {
         --brighter;
     }
-    return acceptInfraredMatch(result, best_distance_squared, best_code);
+    if (acceptInfraredMatch(result, best_distance_squared, best_code)) {
+        return true;
+    }
+    // Without G, an object outside the J-Ks locus still gets the mid-infrared (or M_J-only) match.
+    return magnitude_only && classifyMidInfrared(result, abs_j_mag, w1_w2_mag, true);
 }
 
 bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
@@ -278,7 +280,8 @@ bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, d
     // Objects without J-Ks, typically late T and Y dwarfs that 2MASS did not see: the nearest locus point
     // in the scaled (W1-W2, M_J) plane, in W1-W2 alone without J (the colour rises steadily from the late
     // M dwarfs to Y4, Pecaut & Mamajek table), or, when asked, in M_J alone without W1-W2 (M_J too rises
-    // steadily through the T and Y dwarfs). Same scales and distance limit as the J-Ks path.
+    // steadily through the T and Y dwarfs). W1-W2 scaled by mir_colour_scale_mag; the J-Ks path's M_J scale
+    // and distance limit.
     const bool with_colour = !std::isnan(w1_w2_mag);
     const bool with_j = !std::isnan(abs_j_mag);
     if (!with_colour && !(magnitude_only && with_j)) {

@@ -164,8 +164,11 @@ class Classifier {
                            double j_ks_mag, double w1_w2_mag) const;
     void classifyWithColour(Classification& result) const;
     void classifyWithoutColour(Classification& result, double abs_j_mag) const;
-    bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
-                              double w1_w2_mag) const;
+    /// The J-Ks path, or without J-Ks the mid-infrared one. magnitude_only (objects without G, which nothing
+    /// else can name) also tries the mid-infrared path when the J-Ks match fails, and lets it fall back to
+    /// M_J alone.
+    bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag, double w1_w2_mag,
+                              bool magnitude_only) const;
     bool classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
                              bool magnitude_only) const;
     /// The infrared paths' verdict: the nearest point's code if within nir_max_distance (scaled units).
