@@ -76,14 +76,9 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
             if (classifier != nullptr && classifiable && std::isnan(colour_mag_[s])) {
                 quantile_classified_[s] = 1;
                 for (std::size_t k = 0; k < kQuantiles; ++k) {
-                    const photometry::PhotometricInput input{.g_mag = row.g_mag,
-                                                             .rp_mag = row.rp_mag,
-                                                             .j_mag = row.j_mag,
-                                                             .ks_mag = row.ks_mag,
-                                                             .w1_mag = row.w1_mag,
-                                                             .w2_mag = row.w2_mag,
-                                                             .distance_modulus_mag =
-                                                                 posterior.distanceModulusQuantiles()[k]};
+                    // The row's bands as sample.fits uses them (photometricInput), at this distance.
+                    photometry::PhotometricInput input = photometry::photometricInput(row);
+                    input.distance_modulus_mag = posterior.distanceModulusQuantiles()[k];
                     const auto result = classifier->classify(input);
                     colourless_categories_[s * kQuantiles + k] =
                         photometry::categoryOf(result.stellar_class, result.spectral_code);
