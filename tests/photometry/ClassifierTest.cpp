@@ -37,6 +37,28 @@ std::vector<std::string> splitCsv(const std::string& line) {
 double toNumber(const std::string& text) {
     return text.empty() ? kNaN : std::stod(text);
 }
+
+/// The rows of a reference table under tests/reference/ (split at commas), after checking its header line;
+/// every row must have as many fields as the header.
+std::vector<std::vector<std::string>> referenceRows(const std::string& file_name, const std::string& header) {
+    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/" + file_name);
+    REQUIRE_MESSAGE(file, file_name);
+    std::string line;
+    std::getline(file, line);
+    REQUIRE(line == header);
+    const std::size_t columns = splitCsv(header).size();
+    std::vector<std::vector<std::string>> rows;
+    while (std::getline(file, line)) {
+        rows.push_back(splitCsv(line));
+        REQUIRE(rows.back().size() == columns);
+    }
+    return rows;
+}
+
+/// A number of a reference table; the tables' missing markers ("-", "NaN", "null", empty) give NaN.
+double referenceNumber(const std::string& text) {
+    return text == "-" || text == "NaN" || text == "null" ? kNaN : toNumber(text);
+}
 } // namespace
 
 TEST_CASE("absolute magnitude and its error from the parallax") {
@@ -345,24 +367,17 @@ TEST_CASE("Y dwarfs classify as Y from WISE W1-W2 and M_J (MKO) without 2MASS") 
     // mid-infrared path can classify them. Measured: 17 Y, 5 T, 1 unclassified (74%): the T ones are Y0
     // dwarfs with M_J 19.4-19.9 and W1-W2 <= 3.6, on the T9.5V side of the locus's T9.5V/Y0V boundary
     // (M_J 19.75/20.15). The target of 80% needs published M_W2 relations (open issue, the real sky).
-    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/y_dwarfs_kirkpatrick2019_photometry.csv");
-    REQUIRE(file);
-    std::string line;
-    std::getline(file, line);
-    REQUIRE(line == "source,SpT,J_MKO,W1_mag,W2_mag,plx_mas,plx_err");
-    const auto number = [](const std::string& text) { return text == "-" ? kNaN : toNumber(text); };
     const Classifier& classifier = Classifier::shipped();
     int rows = 0, y_dwarfs = 0;
     std::map<std::string, int> assigned;
-    while (std::getline(file, line)) {
-        const auto fields = splitCsv(line);
-        REQUIRE(fields.size() == 7);
+    for (const auto& fields : referenceRows("y_dwarfs_kirkpatrick2019_photometry.csv",
+                                            "source,SpT,J_MKO,W1_mag,W2_mag,plx_mas,plx_err")) {
         PhotometricInput input;
-        input.j_mag = number(fields[2]);
-        input.w1_mag = number(fields[3]);
-        input.w2_mag = number(fields[4]);
-        input.parallax_mas = number(fields[5]);
-        input.parallax_error_mas = number(fields[6]);
+        input.j_mag = referenceNumber(fields[2]);
+        input.w1_mag = referenceNumber(fields[3]);
+        input.w2_mag = referenceNumber(fields[4]);
+        input.parallax_mas = referenceNumber(fields[5]);
+        input.parallax_error_mas = referenceNumber(fields[6]);
         const Classification c = classifier.classify(input);
         ++assigned[std::string(className(c.stellar_class))];
         ++rows;
@@ -385,30 +400,21 @@ TEST_CASE("ultracool dwarfs of Best et al. 2021 classify from the bands each row
     // usual standards of each range; common practice, no source). The issue asks for letter agreement
     // >= 0.9, median |subtype difference| <= 1.5 and every member of the 25 pc volume-limited sample
     // (Best20b_vollim_sample = Y) classified.
-    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/ultracool_best2021_photometry.csv");
-    REQUIRE(file);
-    std::string line;
-    std::getline(file, line);
-    REQUIRE(line == "name,spt_opt,spt_ir,plx_formula,plxerr_formula,G_DR2,J_2MASS,Ks_2MASS,W1,W2,"
-                    "Best20b_vollim_sample");
-    const auto number = [](const std::string& text) {
-        return text == "NaN" || text == "null" || text.empty() ? kNaN : toNumber(text);
-    };
     const Classifier& classifier = Classifier::shipped();
     int compared = 0, agreeing = 0, unclassified = 0, members = 0, members_classified = 0;
     std::vector<double> subtype_differences;
     std::map<std::string, int> confusion;
-    while (std::getline(file, line)) {
-        const auto fields = splitCsv(line);
-        REQUIRE(fields.size() == 11);
+    for (const auto& fields : referenceRows("ultracool_best2021_photometry.csv",
+                                            "name,spt_opt,spt_ir,plx_formula,plxerr_formula,G_DR2,J_2MASS,"
+                                            "Ks_2MASS,W1,W2,Best20b_vollim_sample")) {
         PhotometricInput input;
-        input.parallax_mas = number(fields[3]);
-        input.parallax_error_mas = number(fields[4]);
-        input.g_mag = number(fields[5]);
-        input.j_mag = number(fields[6]);
-        input.ks_mag = number(fields[7]);
-        input.w1_mag = number(fields[8]);
-        input.w2_mag = number(fields[9]);
+        input.parallax_mas = referenceNumber(fields[3]);
+        input.parallax_error_mas = referenceNumber(fields[4]);
+        input.g_mag = referenceNumber(fields[5]);
+        input.j_mag = referenceNumber(fields[6]);
+        input.ks_mag = referenceNumber(fields[7]);
+        input.w1_mag = referenceNumber(fields[8]);
+        input.w2_mag = referenceNumber(fields[9]);
         if (!(input.parallax_mas >= 5.0 * input.parallax_error_mas)) {
             continue; // the census leaves these unclassified by design (parallax S/N < 5)
         }
