@@ -55,6 +55,9 @@ PixelCounts countPerPixel(std::span<const GalacticPosition> positions, int nside
     const Healpix_Base base = ringBase(nside);
     PixelCounts result{nside, std::vector<std::int64_t>(static_cast<std::size_t>(base.Npix()), 0)};
     for (const auto& position : positions) {
+        if (!std::isfinite(position.l_deg) || !std::isfinite(position.b_deg)) {
+            continue; // a row without RA/Dec (compilations without positions) has no pixel
+        }
         const pointing direction((90.0 - position.b_deg) * kDegree, wrapDegrees360(position.l_deg) * kDegree);
         ++result.counts[static_cast<std::size_t>(base.ang2pix(direction))];
     }

@@ -31,6 +31,7 @@ struct PixelCounts {
     std::vector<std::int64_t> counts; // 12 nside^2 entries
 };
 
+/// Objects per RING pixel; positions with a NaN coordinate (rows without RA/Dec) are left out.
 PixelCounts countPerPixel(std::span<const GalacticPosition> positions, int nside);
 
 struct UniformitySettings {
