@@ -67,8 +67,8 @@ int main(int argc, char** argv) {
 
     const double cpu_start = processCpuSeconds();
     const auto start = std::chrono::steady_clock::now();
-    const census::PreparedSample sample(rows, {10.0, 25.0, 50.0, 100.0}, census::MembershipSettings{}, 5.0,
-                                        threads);
+    const census::PreparedSample sample(rows, {10.0, 25.0, 50.0, 100.0}, census::MembershipSettings{},
+                                        census::RowClassRules{}, threads);
     const auto prepared = std::chrono::steady_clock::now();
     const double cpu_prepared = processCpuSeconds();
     const auto tallies = census::drawSample(sample, grid, {.draws = draws, .seed = 1, .threads = threads});

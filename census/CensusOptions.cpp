@@ -52,6 +52,12 @@ po::options_description censusOptions(CensusSettings& settings) {
         "classify only rows with parallax/error at least this; others count as members, class unclassified");
     add("max-colour-error", number(quality.max_colour_error_mag, "MAG"),
         "drop BP-RP when the BP or RP error exceeds this (mag); the row is classified from M_G alone");
+    add("spectral-types",
+        po::value(&settings.spectral_types_name)
+            ->default_value(settings.spectral_types_name)
+            ->value_name("HOW"),
+        "catalogue spectral types (field spectral_type): use (they set the class; a spectrum beats colours), "
+        "check (photometric classes, compared with them), ignore");
     add("draws", po::value(&settings.draws.draws)->default_value(settings.draws.draws)->value_name("N"),
         "Monte Carlo draws over the measurement errors");
     add("seed", po::value(&settings.draws.seed)->default_value(settings.draws.seed)->value_name("N"),
@@ -102,6 +108,10 @@ void validate(CensusSettings& settings) {
     requireInRange("max-colour-error", settings.quality.max_colour_error_mag, 0.0, 10.0, "mag",
                    LowerBound::Exclusive);
     requireInRange("draws", settings.draws.draws, 1, 1e7, "");
+    const auto policy = spectralTypePolicyFromName(settings.spectral_types_name);
+    requireThat(policy.has_value(), "spectral-types",
+                "'" + settings.spectral_types_name + "' is not one of use, check, ignore");
+    settings.spectral_types = *policy;
     settings.groups = standardClassGroups();
     for (const auto& definition : settings.group_definitions) {
         ClassGroup group = parseClassGroup(definition);
@@ -111,6 +121,12 @@ void validate(CensusSettings& settings) {
                     "group", "'" + group.name + "' repeats the name of a class or an earlier group");
         settings.groups.push_back(std::move(group));
     }
+}
+
+RowClassRules rowClassRules(const CensusSettings& settings) {
+    return {.parallax_zero_point_mas = settings.membership.parallax_zero_point_mas,
+            .min_parallax_snr_to_classify = settings.quality.min_parallax_snr_to_classify,
+            .spectral_types = settings.spectral_types};
 }
 
 } // namespace starcensus::census

@@ -6,6 +6,7 @@
 #include "census/Membership.h"
 #include "census/MonteCarlo.h"
 #include "census/QualityCuts.h"
+#include "census/RowClassification.h"
 
 #include <boost/program_options.hpp>
 
@@ -19,6 +20,7 @@ struct CensusSettings {
     std::string radii_text = "10";               // --radius, comma-separated (pc)
     std::string prior_name = "constant-density"; // --distance-prior
     std::vector<std::string> group_definitions;  // --group NAME=ITEMS
+    std::string spectral_types_name = "use";     // --spectral-types use|check|ignore
     MembershipSettings membership;
     QualitySettings quality;
     DrawSettings draws;
@@ -26,7 +28,11 @@ struct CensusSettings {
     // Filled by validate():
     std::vector<double> radii_pc;
     std::vector<ClassGroup> groups; // the standard classes followed by the user's groups
+    SpectralTypePolicy spectral_types = SpectralTypePolicy::Use;
 };
+
+/// The classification rules of a validated census: zero point, S/N threshold, literature types.
+RowClassRules rowClassRules(const CensusSettings& settings);
 
 boost::program_options::options_description censusOptions(CensusSettings& settings);
 

@@ -29,6 +29,15 @@ std::array<double, photometry::kCategoryCount> categoryPriorShapes(double class_
     return shapes;
 }
 
+/// The unclassified categories (one per reason).
+std::bitset<photometry::kCategoryCount> unclassifiedCategories() {
+    std::bitset<photometry::kCategoryCount> categories;
+    for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
+        categories[c] = photometry::reasonOfCategory(static_cast<photometry::Category>(c)).has_value();
+    }
+    return categories;
+}
+
 } // namespace
 
 double sphereVolumePc3(double radius_pc) {
@@ -58,13 +67,17 @@ PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t ra
     // deviates is one Gamma(sum a_k) deviate. So the categories are merged into "atoms", the categories
     // that belong to exactly the same groups, and each atom gets one deviate: the same distribution as
     // one deviate per category, at ~15 deviates per draw instead of kCategoryCount.
+    // The last entry of a signature says whether the categories are classified, so that the classified
+    // total is a sum of atoms too (the standard groups already separate them: no extra atom).
+    const auto unclassified = unclassifiedCategories();
     std::vector<std::size_t> atom_of(photometry::kCategoryCount);
     std::vector<std::vector<bool>> atom_signatures;
     for (std::size_t c = 0; c < photometry::kCategoryCount; ++c) {
-        std::vector<bool> signature(groups.size());
+        std::vector<bool> signature(groups.size() + 1);
         for (std::size_t g = 0; g < groups.size(); ++g) {
             signature[g] = groups[g].categories.test(c);
         }
+        signature[groups.size()] = !unclassified.test(c);
         const auto found = std::find(atom_signatures.begin(), atom_signatures.end(), signature);
         atom_of[c] = static_cast<std::size_t>(found - atom_signatures.begin());
         if (found == atom_signatures.end()) {
@@ -84,6 +97,7 @@ PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t ra
     PopulationDeviates result;
     result.fraction.assign(groups.size(), std::vector<double>(total_deviates));
     result.count.assign(groups.size(), std::vector<double>(total_deviates));
+    result.classified_count.assign(total_deviates, 0.0);
     std::vector<double> atom_count(atoms);
     std::vector<double> expected(atoms);
     for (int d = 0; d < tallies.draws; ++d) {
@@ -93,11 +107,12 @@ PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t ra
         }
         for (std::size_t k = 0; k < deviates; ++k) {
             double total = 0.0;
+            const std::size_t i = static_cast<std::size_t>(d) * deviates + k;
             for (std::size_t a = 0; a < atoms; ++a) {
                 expected[a] = random.gamma(atom_count[a] + atom_prior[a]);
                 total += expected[a];
+                result.classified_count[i] += atom_signatures[a][groups.size()] ? expected[a] : 0.0;
             }
-            const std::size_t i = static_cast<std::size_t>(d) * deviates + k;
             for (std::size_t g = 0; g < groups.size(); ++g) {
                 double sum = 0.0;
                 for (std::size_t a = 0; a < atoms; ++a) {
@@ -139,6 +154,17 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         const std::vector<double> totals = groupCountsByDraw(tallies, r, everything);
         std::vector<double> sorted_totals = totals;
         estimate.members = summarizeDraws(sorted_totals);
+        const std::vector<double> classified =
+            groupCountsByDraw(tallies, r, {"classified", ~unclassifiedCategories()});
+        std::vector<double> sorted_classified = classified;
+        estimate.classified_members = summarizeDraws(sorted_classified);
+        for (std::size_t reason = 0; reason < photometry::kUnclassifiedReasonCount; ++reason) {
+            ClassGroup reason_group{"", {}};
+            reason_group.categories.set(
+                photometry::unclassifiedCategory(static_cast<photometry::UnclassifiedReason>(reason)));
+            std::vector<double> reason_counts = groupCountsByDraw(tallies, r, reason_group);
+            estimate.unclassified_by_reason[reason] = summarizeDraws(reason_counts);
+        }
 
         PopulationDeviates population = population_by_radius.at(r); // summarising reorders a copy
         for (std::size_t g = 0; g < groups.size(); ++g) {
@@ -147,11 +173,24 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
             for (std::size_t d = 0; d < draws; ++d) {
                 fraction[d] = totals[d] > 0 ? count[d] / totals[d] : 0.0;
             }
+            std::optional<TwoIntervals> of_classified;
+            if ((groups[g].categories & unclassifiedCategories()).none()) {
+                std::vector<double> share(draws);
+                for (std::size_t d = 0; d < draws; ++d) {
+                    share[d] = classified[d] > 0 ? count[d] / classified[d] : 0.0;
+                }
+                std::vector<double> population_share(population.count[g].size());
+                for (std::size_t i = 0; i < population_share.size(); ++i) {
+                    population_share[i] = population.count[g][i] / population.classified_count[i];
+                }
+                of_classified = TwoIntervals{summarizeDraws(share), summarizeDraws(population_share)};
+            }
             const TwoIntervals counts{summarizeDraws(count), summarizeDraws(population.count[g])};
             const double per_volume = 1.0 / estimate.volume_pc3; // densities are counts over the volume
             estimate.groups.push_back(
                 {groups[g].name,
                  {summarizeDraws(fraction), summarizeDraws(population.fraction[g])},
+                 of_classified,
                  counts,
                  {scaled(counts.this_volume, per_volume), scaled(counts.population, per_volume)}});
         }

@@ -16,7 +16,9 @@
 #include "census/Intervals.h"
 #include "census/MonteCarlo.h"
 
+#include <array>
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -31,6 +33,9 @@ struct TwoIntervals {
 struct GroupEstimate {
     std::string name;
     TwoIntervals fraction;
+    // The share among the classified members only (n_g / (N - n_unclassified)), for groups without
+    // unclassified categories; absent for groups that contain some.
+    std::optional<TwoIntervals> fraction_of_classified;
     TwoIntervals count;
     TwoIntervals density_pc3; // per cubic parsec
 };
@@ -38,9 +43,12 @@ struct GroupEstimate {
 struct RadiusEstimate {
     double radius_pc = 0.0;
     double volume_pc3 = 0.0;
-    double expected_members = 0.0;     // sum of membership probabilities
-    std::int64_t hard_cut_members = 0; // corrected parallax > 1000 / R
-    IntervalSummary members;           // total members over the draws
+    double expected_members = 0.0;      // sum of membership probabilities
+    std::int64_t hard_cut_members = 0;  // corrected parallax > 1000 / R
+    IntervalSummary members;            // total members over the draws
+    IntervalSummary classified_members; // members with a class, over the draws
+    // Unclassified members per reason (photometry::UnclassifiedReason order), this volume, over the draws.
+    std::array<IntervalSummary, photometry::kUnclassifiedReasonCount> unclassified_by_reason;
     std::vector<GroupEstimate> groups;
 };
 
@@ -58,6 +66,7 @@ double sphereVolumePc3(double radius_pc);
 struct PopulationDeviates {
     std::vector<std::vector<double>> fraction; // [group][deviate]
     std::vector<std::vector<double>> count;    // [group][deviate], expected member count
+    std::vector<double> classified_count;      // [deviate], expected count of the classified members
 };
 
 PopulationDeviates populationDeviates(const DrawTallies& tallies, std::size_t radius_index,

@@ -23,12 +23,12 @@ std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> 
                                         const CensusSettings& census) {
     std::vector<ClassifiedRow> classified;
     const double zero_point = census.membership.parallax_zero_point_mas;
+    const RowClassRules rules = rowClassRules(census);
     for (const auto& row : rows) {
         const double parallax_mas = row.parallax_mas - zero_point;
-        const photometry::Classification result =
-            classifyRow(row, classifier, census.membership, census.quality.min_parallax_snr_to_classify);
+        const photometry::Classification result = classifyRow(row, classifier, rules);
         classified.push_back({result.abs_g_mag, parallax_mas > 0.0 ? 1000.0 / parallax_mas : kInfinity,
-                              photometry::categoryOf(result.stellar_class, result.spectral_code)});
+                              photometry::censusCategory(result)});
     }
     return classified;
 }

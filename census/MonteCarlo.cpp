@@ -40,7 +40,7 @@ float finiteOrZero(double value) {
 } // namespace
 
 PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
-                               const MembershipSettings& membership, double min_parallax_snr_to_classify,
+                               const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier)
     : radii_pc_(std::move(radii_pc)) {
     const std::size_t n = rows.size();
@@ -50,6 +50,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     colour_error_mag_.resize(n);
     probability_within_.resize(n * radii_pc_.size());
     modulus_quantiles_.resize(n * kQuantiles);
+    fixed_categories_.assign(n, kDrawnCategory);
     if (classifier != nullptr) {
         colourless_categories_.resize(n * kQuantiles);
         quantile_classified_.resize(n);
@@ -58,9 +59,17 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
         for (std::size_t s = begin; s < end; ++s) {
             const photometry::CatalogRow& row = rows[s];
             const bool classifiable =
-                row.parallax_mas >= min_parallax_snr_to_classify * row.parallax_error_mas;
-            g_mag_[s] =
-                classifiable ? static_cast<float>(row.g_mag) : std::numeric_limits<float>::quiet_NaN();
+                row.parallax_mas >= rules.min_parallax_snr_to_classify * row.parallax_error_mas;
+            if (classifier != nullptr && usesLiteratureType(row, rules)) {
+                fixed_categories_[s] = photometry::censusCategory(classifyRow(row, *classifier, rules));
+            } else if (!classifiable) {
+                fixed_categories_[s] =
+                    photometry::unclassifiedCategory(photometry::UnclassifiedReason::LowParallaxSnr);
+            } else if (!photometry::hasClassifiableBands(photometry::photometricInput(row))) {
+                fixed_categories_[s] =
+                    photometry::unclassifiedCategory(photometry::UnclassifiedReason::NoPhotometry);
+            }
+            g_mag_[s] = static_cast<float>(row.g_mag);
             g_error_mag_[s] = finiteOrZero(row.g_error_mag);
             colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
             colour_error_mag_[s] =
@@ -73,15 +82,15 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
             std::copy(posterior.distanceModulusQuantiles().begin(),
                       posterior.distanceModulusQuantiles().end(),
                       modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
-            if (classifier != nullptr && classifiable && std::isnan(colour_mag_[s])) {
+            if (classifier != nullptr && fixed_categories_[s] == kDrawnCategory &&
+                std::isnan(colour_mag_[s])) {
                 quantile_classified_[s] = 1;
                 for (std::size_t k = 0; k < kQuantiles; ++k) {
                     // The row's bands as sample.fits uses them (photometricInput), at this distance.
                     photometry::PhotometricInput input = photometry::photometricInput(row);
                     input.distance_modulus_mag = posterior.distanceModulusQuantiles()[k];
                     const auto result = classifier->classify(input);
-                    colourless_categories_[s * kQuantiles + k] =
-                        photometry::categoryOf(result.stellar_class, result.spectral_code);
+                    colourless_categories_[s * kQuantiles + k] = photometry::censusCategory(result);
                 }
             }
         }
@@ -177,7 +186,8 @@ class SampleDrawer {
                     : &sample_.colourless_categories_[s * PreparedSample::kQuantiles];
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
             const auto draws = static_cast<std::size_t>(settings_.draws);
-            if (const auto category = certainCategory(s, quantiles, within, colourless)) {
+            const photometry::Category fixed = sample_.fixed_categories_[s];
+            if (const auto category = certainCategory(s, quantiles, within, colourless, fixed)) {
                 // Every draw gives this category, and each radius counts the star in every draw or in
                 // none: the tallies follow without drawing (the same numbers the loop below would give).
                 for (std::size_t r = 0; r < radii; ++r) {
@@ -202,7 +212,9 @@ class SampleDrawer {
                 const float abs_g =
                     g + g_error * normal_(static_cast<std::uint32_t>(bits_photometry)) - modulus;
                 photometry::Category assigned = kUnclassified;
-                if (has_colour && has_magnitude) {
+                if (fixed != PreparedSample::kDrawnCategory) {
+                    assigned = fixed;
+                } else if (has_colour && has_magnitude) {
                     const float drawn_colour =
                         colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
                     assigned = classes_.lookup(drawn_colour, abs_g);
@@ -227,11 +239,15 @@ class SampleDrawer {
     /// distance quantiles, normal deviates up to FastNormal's largest) inside cells of one category.
     std::optional<photometry::Category> certainCategory(std::size_t s, const float* quantiles,
                                                         const float* within,
-                                                        const photometry::Category* colourless) const {
+                                                        const photometry::Category* colourless,
+                                                        photometry::Category fixed) const {
         for (std::size_t r = 0; r < sample_.radii_pc_.size(); ++r) {
             if (within[r] > 0.0f && within[r] < 1.0f) {
                 return std::nullopt;
             }
+        }
+        if (fixed != PreparedSample::kDrawnCategory) {
+            return fixed;
         }
         if (colourless != nullptr) {
             const bool same = std::all_of(colourless, colourless + PreparedSample::kQuantiles,

@@ -9,6 +9,7 @@
 // draws cannot differ (membership probability exactly 0 or 1 at every radius, and every outcome its errors
 // allow inside cells of one category) is tallied without drawing: the numbers the draws would give.
 #include "census/Membership.h"
+#include "census/RowClassification.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 #include "photometry/StellarClass.h"
@@ -36,15 +37,18 @@ class PreparedSample {
   public:
     static constexpr int kQuantiles = DistancePosterior::kQuantileNodes;
 
-    /// Stars without G, or with parallax_mas / parallax_error_mas below min_parallax_snr_to_classify, are
-    /// counted as members by their probabilities but always get the class `unclassified`.
+    /// A star whose class no draw can change gets it in every draw (while its membership is still
+    /// drawn): rows with parallax_mas / parallax_error_mas below rules.min_parallax_snr_to_classify (the
+    /// low-S/N unclassified category), rows with no band the classifier can place (no photometry,
+    /// photometry::hasClassifiableBands), and, with a classifier,
+    /// rows whose class comes from their literature spectral type (RowClassification.h).
     /// Stars without BP-RP are classified from M_G, G-RP and the near infrared, which the (BP-RP, M_G)
     /// grid cannot see: with a classifier, their category is tabulated once at every distance quantile
     /// (exact classifier; their small G noise is neglected beside the distance spread). Without one, the
     /// grid's M_G-only table is used.
     PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
-                   const MembershipSettings& membership, double min_parallax_snr_to_classify,
-                   unsigned threads, const photometry::Classifier* classifier = nullptr);
+                   const MembershipSettings& membership, const RowClassRules& rules, unsigned threads,
+                   const photometry::Classifier* classifier = nullptr);
 
     std::size_t size() const { return g_mag_.size(); }
     const std::vector<double>& radii() const { return radii_pc_; }
@@ -58,7 +62,7 @@ class PreparedSample {
   private:
     friend class SampleDrawer;
     std::vector<double> radii_pc_;
-    std::vector<float> g_mag_; // NaN marks a star that is not classified
+    std::vector<float> g_mag_;
     std::vector<float> g_error_mag_;
     std::vector<float> colour_mag_; // BP-RP, NaN if either band is missing
     std::vector<float> colour_error_mag_;
@@ -69,6 +73,9 @@ class PreparedSample {
     // 1 where colourless_categories_ holds the star's classes: classifiable (parallax S/N), no BP-RP, with
     // or without G (a brown dwarf seen only in the near infrared is classified as sample.fits has it)
     std::vector<std::uint8_t> quantile_classified_;
+    // [star]: the category of every draw, or kDrawnCategory where the draws decide it
+    std::vector<photometry::Category> fixed_categories_;
+    static constexpr photometry::Category kDrawnCategory = 0xff;
 };
 
 /// Member counts per radius, census category and draw, and per-star class frequencies.

@@ -64,7 +64,7 @@ class ClassGrid {
     double cellMag() const { return axes_.cell_mag; }
 
   private:
-    static constexpr Category kOutside = kDwarfCategories + 2; // unclassified
+    static constexpr Category kOutside = kDwarfCategories + 2; // unclassified: outside every locus
     static constexpr Category kNotYetClassified = 0xff;        // no category has this value
 
     /// The category of a 2-D cell, classifying it on first use. Threads that reach a new cell together

@@ -28,12 +28,26 @@ PhotometricInput photometricInput(const CatalogRow& row) {
     return input;
 }
 
+bool hasClassifiableBands(const PhotometricInput& input) {
+    return !std::isnan(input.g_mag) || !std::isnan(input.j_mag) || !std::isnan(input.w1_mag - input.w2_mag);
+}
+
 AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, double parallax_error_mas) {
     if (!(parallax_mas > 0.0)) {
         return {kNaN, kNaN};
     }
     return {apparent_mag + 5.0 * std::log10(parallax_mas) - 10.0,
             5.0 / std::log(10.0) * parallax_error_mas / parallax_mas};
+}
+
+Category censusCategory(const Classification& result) {
+    if (result.stellar_class != StellarClass::Unclassified) {
+        return categoryOf(result.stellar_class, result.spectral_code);
+    }
+    return unclassifiedCategory(
+        hasFlag(result.flags, ClassificationFlag::LowParallaxSnr) ? UnclassifiedReason::LowParallaxSnr
+        : hasFlag(result.flags, ClassificationFlag::NoUsableBand) ? UnclassifiedReason::NoPhotometry
+                                                                  : UnclassifiedReason::OutsideLoci);
 }
 
 Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_dwarfs,
@@ -80,6 +94,9 @@ Classification Classifier::classify(const PhotometricInput& input) const {
         if (!(input.parallax_mas >= settings_.min_parallax_snr * input.parallax_error_mas)) {
             flags |= bit(ClassificationFlag::LowParallaxSnr);
         }
+    }
+    if (!hasClassifiableBands(input)) {
+        flags |= bit(ClassificationFlag::NoUsableBand);
     }
     const double abs_j = input.j_mag - modulus;
     Classification result =

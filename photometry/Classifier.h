@@ -44,6 +44,8 @@ enum class ClassificationFlag : std::uint16_t {
     BelowLocus = 1u << 4,          // fainter than the locus by more than subluminous_offset_mag
     NearInfrared = 1u << 5,        // class and code from M_J and J-Ks
     LowParallaxSnr = 1u << 6,      // parallax / error below min_parallax_snr
+    NoUsableBand = 1u << 7,        // none of G, J, W1-W2: nothing the classifier can place
+    LiteratureType = 1u << 8,      // class and code from the catalogue's spectral type (census, not here)
 };
 constexpr std::uint16_t flagBit(ClassificationFlag flag) {
     return static_cast<std::uint16_t>(flag);
@@ -114,6 +116,10 @@ struct PhotometricInput {
 /// The photometry and parallax of a catalogue row (distance from the parallax).
 PhotometricInput photometricInput(const CatalogRow& row);
 
+/// True when the input has a band the classifier can place: G, J, or W1 and W2 together. Without one the
+/// classification is flagged NoUsableBand (the census's "no photometry").
+bool hasClassifiableBands(const PhotometricInput& input);
+
 struct AbsoluteMagnitude {
     double mag;
     double error_mag;
@@ -136,6 +142,10 @@ struct Classification {
     double j_ks_mag = std::numeric_limits<double>::quiet_NaN();
     std::uint16_t flags = 0;
 };
+
+/// The census category of a classification: its class and code, or for an unclassified object the
+/// category of its reason (LowParallaxSnr, then NoUsableBand, otherwise outside every locus).
+Category censusCategory(const Classification& result);
 
 class Classifier {
   public:

@@ -28,7 +28,7 @@ Category categoryOf(StellarClass stellar_class, double spectral_code) {
     case StellarClass::Evolved:
         return static_cast<Category>(kDwarfCategories + 1);
     case StellarClass::Unclassified:
-        return static_cast<Category>(kDwarfCategories + 2);
+        return unclassifiedCategory(UnclassifiedReason::OutsideLoci);
     default: {
         // Keep the code inside its letter so the category never contradicts the class.
         const double letter_start = 10.0 * static_cast<double>(static_cast<int>(stellar_class));
@@ -36,6 +36,17 @@ Category categoryOf(StellarClass stellar_class, double spectral_code) {
         return static_cast<Category>(std::clamp(code, letter_start, letter_start + 9.999));
     }
     }
+}
+
+Category unclassifiedCategory(UnclassifiedReason reason) {
+    return static_cast<Category>(kDwarfCategories + 2 + static_cast<std::size_t>(reason));
+}
+
+std::optional<UnclassifiedReason> reasonOfCategory(Category category) {
+    if (category < kDwarfCategories + 2 || category >= kCategoryCount) {
+        return std::nullopt;
+    }
+    return static_cast<UnclassifiedReason>(category - kDwarfCategories - 2);
 }
 
 StellarClass classOfCategory(Category category) {

@@ -37,15 +37,34 @@ constexpr std::string_view className(StellarClass c) {
 
 std::optional<StellarClass> classFromName(std::string_view name);
 
+/// Why an object has no class. Each reason is a census category of its own, so the counts keep it.
+enum class UnclassifiedReason : std::uint8_t {
+    OutsideLoci,    // photometry present, but on no locus or sequence the classifier knows
+    NoPhotometry,   // none of G, J, W1-W2: no band the classifier can place
+    LowParallaxSnr, // parallax / error below the classification threshold (--min-parallax-snr)
+};
+inline constexpr std::size_t kUnclassifiedReasonCount = 3;
+inline constexpr std::array<std::string_view, kUnclassifiedReasonCount> kUnclassifiedReasonNames = {
+    "outside_loci", "no_photometry", "low_parallax_snr"};
+
+constexpr std::string_view reasonName(UnclassifiedReason reason) {
+    return kUnclassifiedReasonNames[static_cast<std::size_t>(reason)];
+}
+
 /// Census categories: the finest unit the Monte Carlo counts. Dwarfs are binned by whole subtypes of the
-/// spectral code (category = floor(code), 0..99), then white dwarfs, evolved stars and unclassified
-/// objects. Classes and user-defined groups (e.g. FGK, M0-M4) are unions of categories.
+/// spectral code (category = floor(code), 0..99), then white dwarfs, evolved stars and one category per
+/// unclassified reason (in UnclassifiedReason order). Classes and user-defined groups (e.g. FGK, M0-M4)
+/// are unions of categories; the class `unclassified` is the union of the reasons.
 inline constexpr std::size_t kDwarfCategories = 100;
-inline constexpr std::size_t kCategoryCount = kDwarfCategories + 3;
+inline constexpr std::size_t kCategoryCount = kDwarfCategories + 2 + kUnclassifiedReasonCount;
 using Category = std::uint8_t;
 
+/// The category of a class and code; Unclassified gives the OutsideLoci category.
 Category categoryOf(StellarClass stellar_class, double spectral_code);
+Category unclassifiedCategory(UnclassifiedReason reason);
 StellarClass classOfCategory(Category category);
+/// The reason of an unclassified category; nullopt for the categories of classes.
+std::optional<UnclassifiedReason> reasonOfCategory(Category category);
 
 /// The dwarf letter class (O..Y) of a spectral code; codes beyond Y9.5 stay Y.
 StellarClass dwarfClassOfCode(double spectral_code);

@@ -48,7 +48,8 @@ nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector
             {"max_ruwe", census.quality.max_ruwe},
             {"min_parallax_snr", census.quality.min_parallax_snr_to_classify},
             {"max_colour_error_mag", census.quality.max_colour_error_mag},
-            {"candidate_sigma", settings.scan.candidate_sigma}};
+            {"candidate_sigma", settings.scan.candidate_sigma},
+            {"spectral_types", census::spectralTypePolicyName(census.spectral_types)}};
 }
 
 /// provenance.json: the inputs with checksums, every option value, the resolved settings and the timings.
@@ -123,9 +124,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     start = Clock::now();
     progress.begin("posteriors");
     const photometry::Classifier& classifier = photometry::Classifier::shipped();
-    const census::PreparedSample sample(rows, census.radii_pc, census.membership,
-                                        census.quality.min_parallax_snr_to_classify, census.draws.threads,
-                                        &classifier);
+    const census::RowClassRules class_rules = census::rowClassRules(census);
+    const census::PreparedSample sample(rows, census.radii_pc, census.membership, class_rules,
+                                        census.draws.threads, &classifier);
     result.timings.posteriors_s = secondsSince(start);
 
     start = Clock::now();
@@ -171,8 +172,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     const std::filesystem::path& directory = settings.output_directory;
     std::filesystem::create_directories(directory);
     std::future<void> draw_tables = std::async(std::launch::async, [&] {
-        writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, census.membership,
-                         census.quality.min_parallax_snr_to_classify);
+        writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, class_rules);
         writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
         writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     });
@@ -199,6 +199,8 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     }
     nlohmann::json fractions = fractionsJson(result.estimates, provenance);
     addCompletenessToFractions(fractions, luminosity);
+    addSpectralTypeAgreement(fractions, census::compareSpectralTypes(rows, sample, classifier, class_rules),
+                             census.spectral_types);
     result.corrected = luminosity.corrected;
     writeJsonFile(directory / "fractions.json", fractions);
     writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
@@ -206,8 +208,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     const census::HostMeasurements measured_hosts = host_measurements.get();
     if (hosts.enabled) {
         result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
-                                      census.quality.min_parallax_snr_to_classify, census.membership, hosts,
-                                      measured_hosts);
+                                      class_rules, hosts, measured_hosts);
     }
     result.timings.outputs_s = secondsSince(start);
     std::vector<std::string> outputs = {"sample.fits",       "fractions.json", "fractions.csv",

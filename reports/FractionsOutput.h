@@ -2,6 +2,7 @@
 // fractions.json (schema "starcensus.fractions/1") and fractions.csv: the type fractions, counts and
 // densities per radius, for other tools to read. The layout is documented in README.md.
 #include "census/Fractions.h"
+#include "census/SpectralTypeAgreement.h"
 
 #include <nlohmann/json.hpp>
 
@@ -17,6 +18,13 @@ nlohmann::json intervalJson(const census::IntervalSummary& interval);
 
 nlohmann::json fractionsJson(const std::vector<census::RadiusEstimate>& estimates,
                              const nlohmann::json& provenance);
+
+/// Adds "spectral_type_check" to each radius of fractions.json (one agreement per radius, same order):
+/// members compared, agreeing, the shares, the subtype difference and the confusion table
+/// {literature class: {photometric class: count}} (non-zero cells only).
+void addSpectralTypeAgreement(nlohmann::json& fractions,
+                              const std::vector<census::SpectralTypeAgreement>& agreements,
+                              census::SpectralTypePolicy policy);
 
 /// One row per radius and group, with median / 68% / 95% columns for each quantity and interval kind.
 std::string fractionsCsv(const std::vector<census::RadiusEstimate>& estimates);

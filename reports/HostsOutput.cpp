@@ -76,8 +76,7 @@ std::vector<FitsColumn> hostColumns() {
 
 std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                           const photometry::Classifier& classifier, double min_parallax_snr_to_classify,
-                           const census::MembershipSettings& membership,
+                           const photometry::Classifier& classifier, const census::RowClassRules& rules,
                            const census::HostListSettings& settings,
                            const census::HostMeasurements& measured) {
     const std::size_t r = measured.radius_index;
@@ -92,8 +91,7 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
     auto block = writer.makeBlock();
     for (std::size_t h = 0; h < hosts.size(); ++h) {
         const auto& row = rows[hosts[h]];
-        const photometry::Classification result =
-            census::classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
+        const photometry::Classification result = census::classifyRow(row, classifier, rules);
         std::size_t c = 0;
         appendRowIdentity(block, c, row);
         for (const double value : {row.g_mag, result.abs_g_mag, result.bp_rp_mag}) {

@@ -16,8 +16,7 @@ namespace starcensus::reports {
 /// of hosts.
 std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                           const photometry::Classifier& classifier, double min_parallax_snr_to_classify,
-                           const census::MembershipSettings& membership,
+                           const photometry::Classifier& classifier, const census::RowClassRules& rules,
                            const census::HostListSettings& settings,
                            const census::HostMeasurements& measured);
 

@@ -3,6 +3,7 @@
 #include "photometry/StellarClass.h"
 #include "photometry/base/AtomicOutput.h"
 
+#include <algorithm>
 #include <cmath>
 #include <fstream>
 #include <iomanip>
@@ -116,8 +117,18 @@ std::string fractionTables(const nlohmann::json& fractions) {
             << "probabilities) " << number(radius.value("n_expected", NAN), 5) << "; hard parallax cut "
             << number(radius.value("n_hard_cut", NAN), 5) << "; members over the draws "
             << intervalText(radius.value("members", nlohmann::json::object()), true, 5) << ".</p>\n";
+        if (radius.contains("unclassified_by_reason")) {
+            out << "<p>Unclassified members by reason (this volume):";
+            const char* separator = " ";
+            for (const auto& [reason, interval] : radius.at("unclassified_by_reason").items()) {
+                out << separator << escapeHtml(reason) << " " << intervalText(interval, false, 4);
+                separator = "; ";
+            }
+            out << ". The share among the classified leaves them out.</p>\n";
+        }
         HtmlTable table({"class or group", "fraction, this volume [68%]", "fraction, population [68%] (95%)",
-                         "count, population [68%] (95%)", "density, population (pc⁻³) [68%] (95%)"});
+                         "share of the classified, population [68%]", "count, population [68%] (95%)",
+                         "density, population (pc⁻³) [68%] (95%)"});
         const auto& classes = radius.at("classes");
         std::vector<std::string> names;
         for (const auto name : photometry::kClassNames) {
@@ -134,6 +145,9 @@ std::string fractionTables(const nlohmann::json& fractions) {
             const auto& entry = classes.at(name);
             table.row({escapeHtml(name), intervalText(entry.at("fraction").at("this_volume"), false),
                        intervalText(entry.at("fraction").at("population"), true),
+                       entry.contains("fraction_of_classified")
+                           ? intervalText(entry.at("fraction_of_classified").at("population"), false)
+                           : "—",
                        intervalText(entry.at("count").at("population"), true),
                        intervalText(entry.at("density_pc3").at("population"), true)});
         }
@@ -142,9 +156,66 @@ std::string fractionTables(const nlohmann::json& fractions) {
     return out.str();
 }
 
+/// The agreement of photometric classes with the literature types (fractions.json "spectral_type_check"):
+/// a line per radius and the confusion table of the largest; "" when the run compared none.
+std::string spectralTypeSection(const nlohmann::json& fractions) {
+    const auto& radii = fractions.at("radii");
+    if (radii.empty() || !radii.back().contains("spectral_type_check")) {
+        return "";
+    }
+    std::ostringstream out;
+    const auto& last = radii.back().at("spectral_type_check");
+    out << "<p>Members (membership probability ≥ 0.5) with a catalogue spectral type, their photometric "
+           "class "
+           "against the class of the type (<code>--spectral-types "
+        << escapeHtml(last.value("policy", "?")) << "</code>; under <code>use</code> the type sets the class "
+        << "in the census).</p>\n";
+    HtmlTable summary({"radius (pc)", "compared", "same class",
+                       "same class among the photometrically classified", "median |subtype difference|"});
+    for (const auto& radius : radii) {
+        const auto& check = radius.at("spectral_type_check");
+        summary.row({number(radius.value("radius_pc", NAN)), jsonCell(check.at("compared")),
+                     jsonCell(check.at("agreeing")) + " (" + number(check.value("agreement", NAN)) + ")",
+                     number(check.value("agreement_among_classified", NAN)),
+                     number(check.value("median_abs_subtype_difference", NAN))});
+    }
+    out << summary.html();
+    // Confusion table of the largest radius: literature classes as rows, photometric ones as columns,
+    // only the classes that occur.
+    std::vector<std::string> columns;
+    for (const auto name : photometry::kClassNames) {
+        for (const auto& [literature, row] : last.at("confusion").items()) {
+            if (row.contains(std::string(name)) &&
+                std::find(columns.begin(), columns.end(), name) == columns.end()) {
+                columns.emplace_back(name);
+            }
+        }
+    }
+    std::vector<std::string> header = {"literature \\ photometric"};
+    header.insert(header.end(), columns.begin(), columns.end());
+    HtmlTable confusion(header);
+    for (const auto name : photometry::kClassNames) {
+        if (!last.at("confusion").contains(std::string(name))) {
+            continue;
+        }
+        const auto& row = last.at("confusion").at(std::string(name));
+        std::vector<std::string> cells = {escapeHtml(name)};
+        for (const auto& column : columns) {
+            cells.push_back(row.contains(column) ? jsonCell(row.at(column)) : "");
+        }
+        confusion.row(std::move(cells));
+    }
+    out << "<p>Within " << number(radii.back().value("radius_pc", NAN)) << " pc:</p>\n" << confusion.html();
+    return out.str();
+}
+
 std::string uniformitySection(const ReportAnalysis& analysis) {
     const auto& test = analysis.uniformity;
     std::ostringstream out;
+    if (test.objects == 0) {
+        return "<p class=\"note\">No member has a position (RA/Dec): no sky map and no uniformity "
+               "test.</p>\n";
+    }
     HtmlTable table({"quantity", "value"});
     table.row({"stars mapped (p ≥ " + number(analysis.member_probability) + " at " +
                    number(analysis.largest_radius_pc) + " pc)",
@@ -321,6 +392,9 @@ std::string reportHtml(const ReportInputs& inputs, const ReportAnalysis& analysi
            "parentheses. <i>This volume</i>: the stars actually within the radius (measurement errors only); "
            "<i>population</i>: the underlying population the volume samples (adds Poisson variation).</p>\n"
         << fractionTables(inputs.fractions);
+    if (const std::string types = spectralTypeSection(inputs.fractions); !types.empty()) {
+        html << "<h2>Photometric classes and literature spectral types</h2>\n" << types;
+    }
     if (inputs.luminosity_function_fit) {
         html << "<h2>Luminosity-function fits</h2>\n"
              << luminosityFitSection(*inputs.luminosity_function_fit);

@@ -74,6 +74,27 @@ std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
              0,
              {}},
             {"flags", FitsColumnType::Int32, "", "meta.code.qual", "classification flags (README)", 0, {}},
+            {"unclassified_reason",
+             FitsColumnType::String,
+             "",
+             "meta.code",
+             "why class is unclassified: outside_loci, no_photometry, low_parallax_snr; empty otherwise",
+             16,
+             {}},
+            {"photometric_class",
+             FitsColumnType::String,
+             "",
+             "src.class",
+             "class from the photometry alone (differs from class where a literature type is used)",
+             12,
+             {}},
+            {"literature_class",
+             FitsColumnType::String,
+             "",
+             "src.class",
+             "class of the catalogue's spectral type; empty without one (or with --spectral-types ignore)",
+             12,
+             {}},
         });
     for (const double radius : radii_pc) {
         columns.push_back({"p_within_" + radiusLabel(radius) + "pc",
@@ -147,8 +168,7 @@ std::string spectralTypeColumn(const photometry::Classification& result) {
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                      const photometry::Classifier& classifier, const census::MembershipSettings& membership,
-                      double min_parallax_snr_to_classify) {
+                      const photometry::Classifier& classifier, const census::RowClassRules& rules) {
     photometry::FitsTableWriter writer(
         path, "SAMPLE", sampleColumns(sample.radii()),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"}});
@@ -157,8 +177,9 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
     const std::size_t radii = sample.radii().size();
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
+        const photometry::Classification photometric = census::classifyRowPhotometry(row, classifier, rules);
         const photometry::Classification result =
-            census::classifyRow(row, classifier, membership, min_parallax_snr_to_classify);
+            census::applySpectralTypePolicy(photometric, row, classifier, rules);
         std::size_t c = 0;
         appendRowIdentity(block, c, row);
         for (const double value : {row.g_mag, row.bp_mag, row.rp_mag, result.abs_g_mag,
@@ -172,6 +193,14 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::int32_t>(c++).push_back(result.flags);
+        const auto reason = photometry::reasonOfCategory(photometry::censusCategory(result));
+        block.values<std::string>(c++).push_back(reason ? std::string(photometry::reasonName(*reason)) : "");
+        block.values<std::string>(c++).push_back(
+            std::string(photometry::className(photometric.stellar_class)));
+        const bool literature = rules.spectral_types != census::SpectralTypePolicy::Ignore &&
+                                row.literature_status == photometry::LiteratureTypeStatus::Parsed;
+        block.values<std::string>(c++).push_back(
+            literature ? std::string(photometry::className(row.literature_class)) : std::string());
         for (std::size_t r = 0; r < radii; ++r) {
             block.values<float>(c++).push_back(sample.probabilityWithin(s, r));
         }

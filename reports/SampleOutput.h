@@ -29,7 +29,6 @@ std::string radiusLabel(double radius_pc);
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                      const photometry::Classifier& classifier, const census::MembershipSettings& membership,
-                      double min_parallax_snr_to_classify);
+                      const photometry::Classifier& classifier, const census::RowClassRules& rules);
 
 } // namespace starcensus::reports

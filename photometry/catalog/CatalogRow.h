@@ -50,7 +50,8 @@ struct CatalogRow {
     // The catalogue's spectral type (spectral_type field), parsed at read time by parseLiteratureType()
     // (photometry/SpectralType.h) so the row stays plain numbers. literature_code is the parser's spectral
     // code (O0 = 0 ... M0 = 60 ... Y0 = 90; dimensionless), NaN when absent or refused, without a subtype
-    // ("M V"), and for white dwarfs; literature_class is Unclassified unless Parsed.
+    // ("M V"), and for white dwarfs; literature_class is Unclassified unless Parsed, Evolved for luminosity
+    // classes I-IV (a range such as "G8IV-V" is read as V), otherwise the type's letter or WD.
     double literature_code = kMissing;
     StellarClass literature_class = StellarClass::Unclassified;
     LiteratureTypeStatus literature_status = LiteratureTypeStatus::Absent;

@@ -78,7 +78,13 @@ void setLiteratureType(CatalogRow& row, std::string_view text) {
         return;
     }
     row.literature_status = LiteratureTypeStatus::Parsed;
-    row.literature_class = type.stellar_class;
+    // Subgiants and giants are the census's evolved class (as the classifier's, Classifier.h), whatever
+    // their letter; the code keeps the letter and subtype.
+    const bool evolved = type.luminosity_class == LuminosityClass::Supergiant ||
+                         type.luminosity_class == LuminosityClass::BrightGiant ||
+                         type.luminosity_class == LuminosityClass::Giant ||
+                         type.luminosity_class == LuminosityClass::Subgiant;
+    row.literature_class = evolved ? StellarClass::Evolved : type.stellar_class;
     row.literature_code = type.spectral_code.value_or(kMissing);
 }
 

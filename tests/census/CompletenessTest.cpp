@@ -97,7 +97,7 @@ TEST_CASE("corrected fractions of a mock whose faint limit hides the L and T dwa
     settings.g_limit_mag = 17.0;
     const MockResult mock = simulateNeighbourhood(settings, 11);
     const std::vector<double> radii = {10.0, 20.0};
-    const PreparedSample sample(mock.catalog, radii, {}, 5.0, 2);
+    const PreparedSample sample(mock.catalog, radii, {}, RowClassRules{}, 2);
     const auto grid =
         starcensus::photometry::ClassGrid::fromClassifier(starcensus::photometry::Classifier::shipped());
     DrawSettings draws;

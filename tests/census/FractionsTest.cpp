@@ -115,3 +115,42 @@ TEST_CASE("user groups must not repeat a class's or another group's name") {
     settings.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4"};
     CHECK_NOTHROW(census::validate(settings));
 }
+
+TEST_CASE("unclassified members are counted by reason, and shares among the classified leave them out") {
+    // 30 G and 10 M dwarfs, 20 objects outside every locus and 5 with too low a parallax S/N, in every
+    // draw.
+    constexpr int kDraws = 2000;
+    auto tallies = fixedTallies(kDraws, 30, 10);
+    const auto set = [&](photometry::UnclassifiedReason reason, std::uint32_t n) {
+        const auto category = photometry::unclassifiedCategory(reason);
+        std::fill_n(tallies.counts.begin() + static_cast<std::ptrdiff_t>(category * std::size_t{kDraws}),
+                    kDraws, n);
+    };
+    set(photometry::UnclassifiedReason::OutsideLoci, 20);
+    set(photometry::UnclassifiedReason::LowParallaxSnr, 5);
+    const auto groups = census::standardClassGroups();
+    const auto estimates = census::estimateFractions(tallies, {10.0}, {65}, {65.0}, groups,
+                                                     census::populationDeviatesByRadius(tallies, groups, {}));
+    const auto& estimate = estimates.at(0);
+    CHECK(estimate.members.median == 65.0);
+    CHECK(estimate.classified_members.median == 40.0);
+    CHECK(estimate.unclassified_by_reason[0].median == 20.0); // outside_loci
+    CHECK(estimate.unclassified_by_reason[1].median == 0.0);  // no_photometry
+    CHECK(estimate.unclassified_by_reason[2].median == 5.0);  // low_parallax_snr
+    const auto& g = estimate.groups[static_cast<std::size_t>(StellarClass::G)];
+    CHECK(g.fraction.this_volume.median == doctest::Approx(30.0 / 65.0));
+    REQUIRE(g.fraction_of_classified.has_value());
+    CHECK(g.fraction_of_classified->this_volume.median == doctest::Approx(0.75));
+    // Among the classified, G's share of the Jeffreys-Dirichlet is Beta(30.5, 10.5 + 10 * 1/2) (M and the
+    // ten other classified classes): median 0.6654, 68% interval [0.5934, 0.7326]
+    // (scipy.stats.beta(30.5, 15.5).median() and .ppf); tolerance for 8000 deviates.
+    CHECK(g.fraction_of_classified->population.median == doctest::Approx(0.6654).epsilon(0.01));
+    CHECK(g.fraction_of_classified->population.lo68 == doctest::Approx(0.5934).epsilon(0.015));
+    CHECK(g.fraction_of_classified->population.hi68 == doctest::Approx(0.7326).epsilon(0.015));
+    // The unclassified class itself has no share among the classified.
+    CHECK_FALSE(estimate.groups[static_cast<std::size_t>(StellarClass::Unclassified)]
+                    .fraction_of_classified.has_value());
+    // The reasons are one class: its count is their sum.
+    CHECK(estimate.groups[static_cast<std::size_t>(StellarClass::Unclassified)].count.this_volume.median ==
+          25.0);
+}

@@ -30,7 +30,7 @@ TEST_CASE("hosts classified from J and Ks get Teff errors from their 2MASS error
     rows[1].j_error_mag = rows[1].ks_error_mag = 0.03;
     rows[2].j_error_mag = rows[2].ks_error_mag = 0.10;
     const census::MembershipSettings membership;
-    const census::PreparedSample sample(rows, {20.0}, membership, 5.0, 1, &classifier);
+    const census::PreparedSample sample(rows, {20.0}, membership, census::RowClassRules{}, 1, &classifier);
     census::HostListSettings settings;
     settings.threads = 1;
     const census::HostMeasurements measured =

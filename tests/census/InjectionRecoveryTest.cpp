@@ -43,9 +43,10 @@ Trial runTrial(std::uint64_t seed, const photometry::ClassGrid& grid) {
     census::QualitySettings quality;
     quality.max_ruwe = 0.0; // the mock's RUWE marks binaries; keep every object so the truth is comparable
     census::applyQualityCuts(rows, quality);
-    const census::PreparedSample sample(rows, {kRadiusPc}, census::MembershipSettings{},
-                                        quality.min_parallax_snr_to_classify, 1,
-                                        &photometry::Classifier::shipped());
+    const census::PreparedSample sample(
+        rows, {kRadiusPc}, census::MembershipSettings{},
+        {.min_parallax_snr_to_classify = quality.min_parallax_snr_to_classify}, 1,
+        &photometry::Classifier::shipped());
     const census::DrawTallies tallies =
         census::drawSample(sample, grid, {.draws = 100, .seed = seed, .threads = 1});
     const auto groups = census::standardClassGroups();
@@ -119,8 +120,8 @@ TEST_CASE("rules of thumb on a mock at the usual local density") {
 
     const auto grid = photometry::ClassGrid::fromClassifier(photometry::Classifier::shipped());
     std::vector<photometry::CatalogRow> rows = mock.catalog;
-    const census::PreparedSample sample(rows, {20.0}, census::MembershipSettings{}, 5.0, 0,
-                                        &photometry::Classifier::shipped());
+    const census::PreparedSample sample(rows, {20.0}, census::MembershipSettings{}, census::RowClassRules{},
+                                        0, &photometry::Classifier::shipped());
     const auto tallies = census::drawSample(sample, grid, {.draws = 100, .seed = 7, .threads = 0});
     const auto standard_groups = census::standardClassGroups();
     const auto estimates =

@@ -118,7 +118,7 @@ TEST_CASE("the luminosity function of a realistic mock peaks at M_G 10-12") {
     // broad maximum at M_G ~ 10-12 (GCNS, Smart et al. 2021; from memory), and the raw 10 pc counts of
     // Reyle et al. 2021 peak in the 1-mag bins M_G 9-12 (shared/reference/published-figures.md section 5).
     const MockResult mock = simulateNeighbourhood(MockSettings{}, 31);
-    const PreparedSample sample(mock.catalog, {25.0}, {}, 5.0, 2);
+    const PreparedSample sample(mock.catalog, {25.0}, {}, RowClassRules{}, 2);
     const auto stars = testing::classifiedStars(mock, sample, 0);
     LuminositySettings settings;
     settings.bin_width_mag = 1.0; // as in the published comparison

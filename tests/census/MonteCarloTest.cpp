@@ -46,8 +46,10 @@ std::vector<photometry::CatalogRow> toyStars(int n, std::uint64_t seed) {
 
 TEST_CASE("Monte Carlo results do not depend on the thread count") {
     const auto rows = toyStars(3000, 7);
-    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 1);
-    const census::PreparedSample sample_threaded(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 2);
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                        {.min_parallax_snr_to_classify = 0.0}, 1);
+    const census::PreparedSample sample_threaded(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                                 {.min_parallax_snr_to_classify = 0.0}, 2);
     const auto grid = toyGrid();
     census::DrawSettings one_thread{.draws = 50, .seed = 11, .threads = 1};
     census::DrawSettings two_threads{.draws = 50, .seed = 11, .threads = 2};
@@ -69,7 +71,8 @@ TEST_CASE("Monte Carlo results do not depend on the thread count") {
 
 TEST_CASE("mean Monte Carlo counts equal the summed membership probabilities") {
     const auto rows = toyStars(4000, 3);
-    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 0);
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                        {.min_parallax_snr_to_classify = 0.0}, 0);
     const auto tallies = census::drawSample(sample, toyGrid(), {.draws = 400, .seed = 5, .threads = 0});
     for (std::size_t r = 0; r < 2; ++r) {
         double total = 0.0;
@@ -96,11 +99,13 @@ TEST_CASE("stars too noisy to classify, or without colour, take the documented c
     rows[1].bp_mag = 10.5;
     rows[1].rp_mag = 9.2;
     const auto grid = toyGrid();
-    const census::PreparedSample sample(rows, {10.0}, census::MembershipSettings{}, 5.0, 1);
+    const census::PreparedSample sample(rows, {10.0}, census::MembershipSettings{}, census::RowClassRules{},
+                                        1);
     const auto tallies = census::drawSample(sample, grid, {.draws = 20, .seed = 1, .threads = 1});
     CHECK(tallies.classCount(0, 0, StellarClass::L) == 1); // no colour: magnitude-only grid
     CHECK(tallies.classCount(0, 0, StellarClass::M) == 1);
-    const census::PreparedSample strict(rows, {10.0}, census::MembershipSettings{}, 5000.0, 1);
+    const census::PreparedSample strict(rows, {10.0}, census::MembershipSettings{},
+                                        {.min_parallax_snr_to_classify = 5000.0}, 1);
     CHECK(census::drawSample(strict, grid, {.draws = 20, .seed = 1, .threads = 1})
               .classCount(3, 0, StellarClass::Unclassified) == 2);
 }
@@ -125,7 +130,8 @@ TEST_CASE("stars whose draws cannot differ are tallied in every draw; stars on a
     rows[1].parallax_error_mas = 2.0;
     rows[1].g_mag = 9.505;
     rows[1].g_error_mag = 0.3;
-    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{}, 0.0, 1);
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                        {.min_parallax_snr_to_classify = 0.0}, 1);
     REQUIRE(sample.probabilityWithin(0, 0) == 1.0f);
     REQUIRE(sample.probabilityWithin(0, 1) == 1.0f);
     const int draws = 400;
@@ -168,11 +174,11 @@ TEST_CASE("objects without Gaia photometry are drawn with the class sample.fits 
         rows[i].ks_mag = abs_j - j_ks;
     }
     const census::MembershipSettings membership;
-    const census::PreparedSample sample(rows, {20.0}, membership, 5.0, 1, &classifier);
+    const census::PreparedSample sample(rows, {20.0}, membership, census::RowClassRules{}, 1, &classifier);
     const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     const auto tallies = census::drawSample(sample, grid, {.draws = 200, .seed = 3, .threads = 1});
     for (std::size_t i = 0; i < rows.size(); ++i) {
-        const photometry::Classification exact = census::classifyRow(rows[i], classifier, membership, 5.0);
+        const photometry::Classification exact = census::classifyRow(rows[i], classifier, {});
         CAPTURE(i);
         CHECK(exact.stellar_class == (i == 0 ? StellarClass::T : StellarClass::L));
         const std::uint32_t same_class =

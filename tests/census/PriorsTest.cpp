@@ -161,7 +161,8 @@ TEST_CASE(
     mock_settings.radius_max_pc = 12.0;
     const auto mock = census::mock::simulateNeighbourhood(mock_settings, 20240611);
     const std::vector<double> radii = {5.0, 10.0};
-    const census::PreparedSample sample(mock.catalog, radii, census::MembershipSettings{}, 5.0, 2);
+    const census::PreparedSample sample(mock.catalog, radii, census::MembershipSettings{},
+                                        census::RowClassRules{}, 2);
     const auto grid = photometry::ClassGrid::fromClassifier(photometry::Classifier::shipped());
     const auto tallies = census::drawSample(sample, grid, {.draws = 500, .seed = 7, .threads = 2});
     auto groups = census::standardClassGroups();

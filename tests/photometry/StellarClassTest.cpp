@@ -26,3 +26,18 @@ TEST_CASE("census categories bin dwarfs by whole subtypes and never leave their 
     CHECK(classOfCategory(categoryOf(StellarClass::Evolved, 0.0)) == StellarClass::Evolved);
     CHECK(classOfCategory(categoryOf(StellarClass::Unclassified, 0.0)) == StellarClass::Unclassified);
 }
+
+TEST_CASE("each unclassified reason is a category of the class unclassified") {
+    for (const auto reason : {UnclassifiedReason::OutsideLoci, UnclassifiedReason::NoPhotometry,
+                              UnclassifiedReason::LowParallaxSnr}) {
+        const Category category = unclassifiedCategory(reason);
+        CHECK(category < kCategoryCount);
+        CHECK(classOfCategory(category) == StellarClass::Unclassified);
+        CHECK(reasonOfCategory(category) == reason);
+    }
+    CHECK(categoryOf(StellarClass::Unclassified, 0.0) ==
+          unclassifiedCategory(UnclassifiedReason::OutsideLoci));
+    CHECK_FALSE(reasonOfCategory(categoryOf(StellarClass::M, 64.5)).has_value());
+    CHECK_FALSE(reasonOfCategory(categoryOf(StellarClass::WhiteDwarf, 0.0)).has_value());
+    CHECK(reasonName(UnclassifiedReason::NoPhotometry) == "no_photometry");
+}

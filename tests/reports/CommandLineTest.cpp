@@ -110,3 +110,68 @@ TEST_CASE("a mock run end to end: simulate, inspect and run exit 0 and write com
     CHECK(runStarcensus("report lean", dir).exit_code == 0);
     CHECK(std::filesystem::is_regular_file(dir / "lean" / "report.html"));
 }
+
+TEST_CASE("published spectral types: compared with the photometric classes, and used for the class") {
+    // CARMENES input catalogue IX (Cifuentes et al., arXiv:2412.12264; tests/reference/): 2634 M dwarfs
+    // and their companions, each with a literature spectral type (column SpT, found by name), Gaia DR3
+    // astrometry and photometry and 2MASS J/Ks.
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-spectral-types");
+    const auto& dir = scratch.path();
+    const std::string table =
+        std::string(STARCENSUS_SOURCE_DIR) + "/tests/reference/carmenes_ix_photometry.csv";
+    const std::string lean =
+        " --radius 10,20 --draws 50 --no-report --no-hosts --lf-fit none --checksum none";
+    for (const char* policy : {"use", "check", "ignore"}) {
+        CAPTURE(policy);
+        REQUIRE(runStarcensus(
+                    "run '" + table + "'" + lean + " --spectral-types " + policy + " --out " + policy, dir)
+                    .exit_code == 0);
+    }
+    const auto fractions = [&](const char* run) {
+        std::ifstream stream(dir / run / "fractions.json");
+        return nlohmann::json::parse(stream).at("radii").at(1); // 20 pc
+    };
+    const nlohmann::json checked = fractions("check");
+    const nlohmann::json& agreement = checked.at("spectral_type_check");
+    CHECK(agreement.at("policy") == "check");
+    // Measured on this table: 1062 members with types within 20 pc, 1038 of the same class (0.977), median
+    // subtype difference 0.21. The published types are the reference; 95% agreement and half a subtype
+    // are the bars (common practice, no source: the usual +-0.5 subtype accuracy of M-dwarf types).
+    CHECK(agreement.at("compared").get<int>() >= 1000);
+    CHECK(agreement.at("agreement").get<double>() >= 0.95);
+    CHECK(agreement.at("median_abs_subtype_difference").get<double>() <= 0.5);
+    CHECK(agreement.at("confusion").at("M").at("M").get<int>() >= 950);
+    // Under 'check' the rows without usable photometry stay unclassified, by reason, and the shares among
+    // the classified members leave them out.
+    CHECK(checked.at("unclassified_by_reason").at("no_photometry").at("median").get<double>() >= 1.0);
+    CHECK(checked.at("classes")
+              .at("M")
+              .at("fraction_of_classified")
+              .at("this_volume")
+              .at("median")
+              .get<double>() >
+          checked.at("classes").at("M").at("fraction").at("this_volume").at("median").get<double>());
+    // Under 'use' every typed member takes its literature class: nothing is unclassified, and the M count
+    // is the number of M-typed members (the confusion table's row), within the membership noise.
+    const nlohmann::json used = fractions("use");
+    CHECK(used.at("classes").at("unclassified").at("count").at("this_volume").at("median").get<double>() ==
+          0.0);
+    int m_typed = 0;
+    for (const auto& [photometric, count] : agreement.at("confusion").at("M").items()) {
+        m_typed += count.get<int>();
+    }
+    CHECK(used.at("classes").at("M").at("count").at("this_volume").at("median").get<double>() ==
+          doctest::Approx(m_typed).epsilon(0.03));
+    CHECK_FALSE(fractions("ignore").contains("spectral_type_check"));
+    // The report shows the agreement; the table has no RA/Dec, which the sky section says (it used to
+    // abort in the HEALPix library).
+    REQUIRE(runStarcensus("report check", dir).exit_code == 0);
+    std::ifstream report_stream(dir / "check" / "report.html");
+    const std::string report((std::istreambuf_iterator<char>(report_stream)),
+                             std::istreambuf_iterator<char>());
+    CHECK(report.find("Photometric classes and literature spectral types") != std::string::npos);
+    CHECK(report.find("No member has a position (RA/Dec)") != std::string::npos);
+    CHECK(
+        runStarcensus("run '" + table + "'" + lean + " --spectral-types maybe --out bad", dir).stderr_text ==
+        "starcensus: error: --spectral-types: 'maybe' is not one of use, check, ignore\n");
+}
