@@ -21,6 +21,7 @@ PhotometricInput photometricInput(const CatalogRow& row) {
     input.rp_mag = row.rp_mag;
     input.j_mag = row.j_mag;
     input.ks_mag = row.ks_mag;
+    input.v_mag = row.v_mag;
     input.w1_mag = row.w1_mag;
     input.w2_mag = row.w2_mag;
     input.parallax_mas = row.parallax_mas;
@@ -29,7 +30,8 @@ PhotometricInput photometricInput(const CatalogRow& row) {
 }
 
 bool hasClassifiableBands(const PhotometricInput& input) {
-    return !std::isnan(input.g_mag) || !std::isnan(input.j_mag) || !std::isnan(input.w1_mag - input.w2_mag);
+    return !std::isnan(input.g_mag) || !std::isnan(input.j_mag) || !std::isnan(input.w1_mag - input.w2_mag) ||
+           !std::isnan(input.v_mag - input.ks_mag);
 }
 
 AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, double parallax_error_mas) {
@@ -55,7 +57,10 @@ Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_
     : locus_(locus), white_dwarfs_(white_dwarfs), settings_(settings),
       white_dwarf_boundary_(locus, white_dwarfs, settings.white_dwarf_boundary),
       locus_bp_rp_range_mag_(locus.invertibleRange(LocusQuantity::BpRpMag)),
-      locus_abs_g_range_mag_(locus.invertibleRange(LocusQuantity::AbsGMag)) {
+      locus_abs_g_range_mag_(locus.invertibleRange(LocusQuantity::AbsGMag)),
+      locus_v_ks_range_mag_(locus.invertibleRange(LocusQuantity::VKsMag)),
+      evolved_red_v_ks_mag_(
+          locus.valueAtCode(LocusQuantity::VKsMag, locus.codeFromBpRp(settings.evolved_red_bp_rp_mag))) {
     const double last_code = locus.points().back().spectral_code;
     for (int step = 0; kFirstNearInfraredCode + step * kNearInfraredCodeStep <= last_code; ++step) {
         const double code = kFirstNearInfraredCode + step / kNearInfraredCodesPerSubtype;
@@ -101,16 +106,19 @@ Classification Classifier::classify(const PhotometricInput& input) const {
     const double abs_j = input.j_mag - modulus;
     Classification result =
         classifyAbsolute(input.g_mag - modulus, input.bp_mag - input.rp_mag, input.g_mag - input.rp_mag,
-                         abs_j, input.j_mag - input.ks_mag, input.w1_mag - input.w2_mag);
+                         abs_j, input.j_mag - input.ks_mag, input.w1_mag - input.w2_mag,
+                         input.v_mag - modulus, input.v_mag - input.ks_mag);
     result.abs_g_error_mag = std::isnan(result.abs_g_mag) ? kNaN : modulus_error;
     result.flags |= flags;
     return result;
 }
 
 Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag,
-                                            double abs_j_mag, double j_ks_mag, double w1_w2_mag) const {
-    Classification result = classOf(abs_g_mag, bp_rp_mag, g_rp_mag, abs_j_mag, j_ks_mag, w1_w2_mag);
-    if (result.stellar_class == StellarClass::WhiteDwarf) {
+                                            double abs_j_mag, double j_ks_mag, double w1_w2_mag,
+                                            double abs_v_mag, double v_ks_mag) const {
+    Classification result =
+        classOf(abs_g_mag, bp_rp_mag, g_rp_mag, abs_j_mag, j_ks_mag, w1_w2_mag, abs_v_mag, v_ks_mag);
+    if (result.stellar_class == StellarClass::WhiteDwarf && !std::isnan(result.bp_rp_mag)) {
         // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
         // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
         const WhiteDwarfParameters parameters = white_dwarfs_.fromColourMagnitude(
@@ -128,26 +136,32 @@ Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, 
 }
 
 Classification Classifier::classifyClassOnly(double abs_g_mag, double bp_rp_mag) const {
-    return classOf(abs_g_mag, bp_rp_mag, kNaN, kNaN, kNaN, kNaN);
+    return classOf(abs_g_mag, bp_rp_mag, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN);
 }
 
 Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
-                                   double j_ks_mag, double w1_w2_mag) const {
+                                   double j_ks_mag, double w1_w2_mag, double abs_v_mag,
+                                   double v_ks_mag) const {
     Classification result;
     result.abs_g_mag = abs_g_mag;
     result.bp_rp_mag = bp_rp_mag;
     result.g_rp_mag = g_rp_mag;
     result.j_ks_mag = j_ks_mag;
+    // Without BP-RP, Johnson V-Ks is the optical colour when there is one (step 6).
+    const bool johnson = std::isnan(bp_rp_mag) && classifyWithJohnsonColour(result, abs_v_mag, v_ks_mag);
     if (std::isnan(abs_g_mag)) {
-        // Without G nothing else can name the object: M_J alone is used as the last resort.
         result.flags |= bit(ClassificationFlag::NoAbsoluteMagnitude);
-        classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag, true);
-        return result;
-    }
-    if (std::isnan(bp_rp_mag)) {
-        classifyWithoutColour(result, abs_j_mag);
-    } else {
-        classifyWithColour(result);
+        if (!johnson) {
+            // Without G or V-Ks nothing else can name the object: M_J alone is used as the last resort.
+            classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag, true);
+            return result;
+        }
+    } else if (!johnson) {
+        if (std::isnan(bp_rp_mag)) {
+            classifyWithoutColour(result, abs_j_mag);
+        } else {
+            classifyWithColour(result);
+        }
     }
     const bool late = result.spectral_code >= 70.0 || abs_g_mag > settings_.late_type_abs_g_mag ||
                       (std::isnan(bp_rp_mag) && result.stellar_class == StellarClass::Unclassified);
@@ -216,6 +230,38 @@ void Classifier::classifyWithColour(Classification& result) const {
         result.flags |= bit(ClassificationFlag::BelowLocus);
     }
     setDwarf(result, code);
+}
+
+bool Classifier::classifyWithJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const {
+    const auto [blue_end, red_end] = locus_v_ks_range_mag_;
+    if (std::isnan(abs_v_mag) || !(v_ks_mag <= red_end)) {
+        return false; // redder than the locus's last V-Ks (L4V): left to the near infrared
+    }
+    const double colour_code = locus_.codeAtValue(LocusQuantity::VKsMag, std::max(v_ks_mag, blue_end));
+    const double offset_mag = abs_v_mag - locus_.valueAtCode(LocusQuantity::AbsVMag, colour_code);
+    result.flags |= bit(ClassificationFlag::JohnsonColour);
+    if (offset_mag > settings_.white_dwarf_v_offset_mag) {
+        result.stellar_class = StellarClass::WhiteDwarf;
+        return true;
+    }
+    if (v_ks_mag < blue_end) {
+        result.flags |= bit(ClassificationFlag::OutsideLocus); // bluer than O9V and not a white dwarf
+        return true;
+    }
+    const double evolved_offset_mag =
+        v_ks_mag > evolved_red_v_ks_mag_ ? settings_.evolved_offset_red_mag : settings_.evolved_offset_mag;
+    if (offset_mag < -evolved_offset_mag) {
+        result.stellar_class = StellarClass::Evolved;
+        result.spectral_code = colour_code; // the dwarf type of the same colour
+        return true;
+    }
+    if (offset_mag < -settings_.binary_band_mag) {
+        result.flags |= bit(ClassificationFlag::AboveBinaryBand);
+    } else if (offset_mag > settings_.subluminous_offset_mag) {
+        result.flags |= bit(ClassificationFlag::BelowLocus);
+    }
+    setDwarf(result, colour_code);
+    return true;
 }
 
 void Classifier::classifyWithoutColour(Classification& result, double abs_j_mag) const {

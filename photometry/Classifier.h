@@ -20,7 +20,12 @@
 //     of the code's letter.
 //  5. Late objects (code L0 or later, M_G fainter than late_type_abs_g_mag, or no optical colour) with
 //     M_J and J-Ks: the nearest point of the M/L/T/Y locus in (J-Ks, M_J), flagged NearInfrared.
-//  6. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
+//  6. Without BP-RP but with Johnson V and 2MASS Ks (bright stars that saturate Gaia, compilations
+//     without Gaia colours): the same regions in (V-Ks, M_V) against the locus's V-Ks and M_V, flagged
+//     JohnsonColour: code from V-Ks, evolved / binary band / below the locus by the M_V offset (the red
+//     evolved threshold at the locus V-Ks of evolved_red_bp_rp_mag), and a white dwarf more than
+//     white_dwarf_v_offset_mag below the locus. Late codes then take step 5.
+//  7. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
 //     more than g_rp_tolerance_mag bluer than the locus G-RP at that code, unclassified, OutsideLocus.
 //     Fainter than the locus's faintest M_G (L8V) and red in G-RP or G-J: T dwarf (OutsideLocus).
 #include "photometry/DwarfLocus.h"
@@ -46,6 +51,7 @@ enum class ClassificationFlag : std::uint16_t {
     LowParallaxSnr = 1u << 6,      // parallax / error below min_parallax_snr
     NoUsableBand = 1u << 7,        // none of G, J, W1-W2: nothing the classifier can place
     LiteratureType = 1u << 8,      // class and code from the catalogue's spectral type (census, not here)
+    JohnsonColour = 1u << 9,       // class and code from M_V and V-Ks (no BP-RP)
 };
 constexpr std::uint16_t flagBit(ClassificationFlag flag) {
     return static_cast<std::uint16_t>(flag);
@@ -93,6 +99,11 @@ struct ClassifierSettings {
     /// (1500 K) have G-RP of -0.5 to 0 and warmer ones G-J below ~1.5, so the cuts sit well apart.
     double t_dwarf_min_g_rp_mag = 1.2;
     double t_dwarf_min_g_j_mag = 3.0;
+    /// With V-Ks instead of BP-RP: more than this below the locus M_V at the object's V-Ks is a white
+    /// dwarf. The Montreal DA grid (Bergeron group table of 13 Jan 2021, the source of data/'s white-dwarf
+    /// table; log g 7.0-9.0, 1500-150000 K) lies 8.1 mag or more below it in V-Ks (measured over the
+    /// table's V and 2MASS Ks); hot subdwarfs (~6-7 mag below, from memory) stay above.
+    double white_dwarf_v_offset_mag = 7.5;
     /// Parallax signal-to-noise below which LowParallaxSnr is set.
     double min_parallax_snr = 5.0;
     WhiteDwarfBoundarySettings white_dwarf_boundary;
@@ -105,6 +116,7 @@ struct PhotometricInput {
     double rp_mag = std::numeric_limits<double>::quiet_NaN();
     double j_mag = std::numeric_limits<double>::quiet_NaN();  // 2MASS J
     double ks_mag = std::numeric_limits<double>::quiet_NaN(); // 2MASS Ks
+    double v_mag = std::numeric_limits<double>::quiet_NaN();  // Johnson V
     double w1_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W1
     double w2_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W2
     /// Used when not NaN; otherwise the distance modulus comes from the parallax.
@@ -116,7 +128,7 @@ struct PhotometricInput {
 /// The photometry and parallax of a catalogue row (distance from the parallax).
 PhotometricInput photometricInput(const CatalogRow& row);
 
-/// True when the input has a band the classifier can place: G, J, or W1 and W2 together. Without one the
+/// True when the input has a band the classifier can place: G, J, W1 with W2, or V with Ks. Without one the
 /// classification is flagged NoUsableBand (the census's "no photometry").
 bool hasClassifiableBands(const PhotometricInput& input);
 
@@ -159,10 +171,10 @@ class Classifier {
 
     /// From apparent magnitudes and a distance (modulus or parallax).
     Classification classify(const PhotometricInput& input) const;
-    /// From absolute M_G, colours, near and mid infrared (any may be NaN).
+    /// From absolute M_G, colours, near and mid infrared, Johnson M_V and V-Ks (any may be NaN).
     Classification classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag = kNaN,
-                                    double abs_j_mag = kNaN, double j_ks_mag = kNaN,
-                                    double w1_w2_mag = kNaN) const;
+                                    double abs_j_mag = kNaN, double j_ks_mag = kNaN, double w1_w2_mag = kNaN,
+                                    double abs_v_mag = kNaN, double v_ks_mag = kNaN) const;
     /// classifyAbsolute()'s class, subtype code and flags without Teff and mass (left NaN) and without
     /// the white-dwarf grid's OutsideLocus flag: what the class grid needs for each cell it classifies.
     Classification classifyClassOnly(double abs_g_mag, double bp_rp_mag) const;
@@ -171,7 +183,9 @@ class Classifier {
     static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
     /// Class, subtype code and flags; Teff and mass are added by classifyAbsolute().
     Classification classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
-                           double j_ks_mag, double w1_w2_mag) const;
+                           double j_ks_mag, double w1_w2_mag, double abs_v_mag, double v_ks_mag) const;
+    /// Step 6 (Johnson V-Ks, M_V); false when either is NaN or V-Ks lies outside the locus's range.
+    bool classifyWithJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const;
     void classifyWithColour(Classification& result) const;
     void classifyWithoutColour(Classification& result, double abs_j_mag) const;
     /// The J-Ks path, or without J-Ks the mid-infrared one. magnitude_only (objects without G, which nothing
@@ -191,6 +205,8 @@ class Classifier {
     WhiteDwarfBoundary white_dwarf_boundary_;
     std::array<double, 2> locus_bp_rp_range_mag_;
     std::array<double, 2> locus_abs_g_range_mag_;
+    std::array<double, 2> locus_v_ks_range_mag_;
+    double evolved_red_v_ks_mag_; // the locus V-Ks where BP-RP is settings_.evolved_red_bp_rp_mag
     struct NearInfraredPoint {
         double scaled_abs_j, scaled_j_ks, spectral_code; // M_J and J-Ks divided by their scales
     };

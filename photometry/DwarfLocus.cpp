@@ -43,6 +43,8 @@ double locusValue(const LocusPoint& point, LocusQuantity quantity) {
         return point.radius_rsun;
     case LocusQuantity::W1W2Mag:
         return point.w1_w2_mag;
+    case LocusQuantity::VKsMag:
+        return point.abs_v_mag - point.abs_ks_mag;
     }
     return kNaN;
 }

@@ -29,7 +29,8 @@ struct LocusPoint {
     double w1_w2_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W1 - W2
 };
 
-/// The quantities of a LocusPoint that can be interpolated or inverted. JKsMag is M_J - M_Ks.
+/// The quantities of a LocusPoint that can be interpolated or inverted. JKsMag is M_J - M_Ks, VKsMag
+/// M_V - M_Ks.
 enum class LocusQuantity : std::uint8_t {
     TeffK,
     AbsGMag,
@@ -43,8 +44,9 @@ enum class LocusQuantity : std::uint8_t {
     LogLLsun,
     RadiusRsun,
     W1W2Mag,
+    VKsMag, // M_V - M_Ks (Johnson V, 2MASS Ks), computed like JKsMag
 };
-inline constexpr std::size_t kLocusQuantityCount = 12;
+inline constexpr std::size_t kLocusQuantityCount = 13;
 
 /// The value of one quantity in a point (JKsMag is computed).
 double locusValue(const LocusPoint& point, LocusQuantity quantity);

@@ -142,6 +142,51 @@ TEST_CASE("Montreal DA and DB models classify as white dwarfs") {
     CHECK(classifier.classifyAbsolute(15.76, 1.42).stellar_class == StellarClass::WhiteDwarf);
 }
 
+TEST_CASE("without Gaia colours, Johnson V and 2MASS Ks classify dwarfs, giants and white dwarfs") {
+    const Classifier& classifier = Classifier::shipped();
+    const auto fromJohnson = [&](double abs_v, double v_ks) {
+        return classifier.classifyAbsolute(NAN, NAN, NAN, NAN, NAN, NAN, abs_v, v_ks);
+    };
+    // Every row of the Pecaut & Mamajek table (data/) with M_V and M_Ks, from M_V and V-Ks alone: A0V and
+    // later its own type within one subtype, B stars (whose V-Ks barely changes) their letter.
+    int rows = 0;
+    for (const LocusPoint& row : classifier.locus().points()) {
+        if (std::isnan(row.abs_v_mag) || std::isnan(row.abs_ks_mag) || row.spectral_code < 10.0) {
+            continue; // O stars: V-Ks nearly constant
+        }
+        ++rows;
+        const Classification c = fromJohnson(row.abs_v_mag, row.abs_v_mag - row.abs_ks_mag);
+        INFO(row.spectral_type, " -> ", className(c.stellar_class), " ", c.spectral_code);
+        CHECK(c.stellar_class == dwarfClassOfCode(row.spectral_code));
+        CHECK(std::abs(c.spectral_code - row.spectral_code) <= (row.spectral_code < 20.0 ? 10.0 : 1.0));
+        CHECK(hasFlag(c.flags, ClassificationFlag::JohnsonColour));
+    }
+    CHECK(rows == 80); // B0V to L4V
+    // Montreal DA models, log g 8.0, V and 2MASS Ks (Bergeron group, Montreal_WD_Table_DA_13012021.txt):
+    // 20000 K, 10000 K, 6500 K and 4250 K.
+    for (const auto& [abs_v, abs_ks] : {std::pair{10.763, 11.433}, std::pair{12.170, 12.117},
+                                        std::pair{13.826, 12.675}, std::pair{15.984, 14.042}}) {
+        CAPTURE(abs_v);
+        CHECK(fromJohnson(abs_v, abs_v - abs_ks).stellar_class == StellarClass::WhiteDwarf);
+    }
+    // Red-clump giants: M_V about +0.9, V-Ks about 2.4 (from memory), ~6 mag above K dwarfs of that colour.
+    CHECK(fromJohnson(0.9, 2.4).stellar_class == StellarClass::Evolved);
+    // Altair, too bright for Gaia's colours: V 0.76, Ks 0.24, parallax 194.95 mas, A7V (all from memory;
+    // the Ks of so bright a star is uncertain by ~0.1 mag, about a subtype).
+    PhotometricInput altair;
+    altair.v_mag = 0.76;
+    altair.ks_mag = 0.24;
+    altair.parallax_mas = 194.95;
+    altair.parallax_error_mas = 0.57;
+    const Classification c = classifier.classify(altair);
+    CHECK(c.stellar_class == StellarClass::A);
+    CHECK(std::abs(c.spectral_code - 27.0) <= 3.0);
+    CHECK(hasClassifiableBands(altair));
+    altair.ks_mag = NAN; // V alone has no colour: nothing to place
+    CHECK_FALSE(hasClassifiableBands(altair));
+    CHECK(hasFlag(classifier.classify(altair).flags, ClassificationFlag::NoUsableBand));
+}
+
 TEST_CASE("red-clump giants classify as evolved") {
     // Ruiz-Dern et al. 2018 (A&A 609, A116): M_G = 0.495 + 1.121 (G-Ks - 2.1), for G-Ks 2.1-2.5; the
     // BP-RP range 1.1-1.3 of clump giants is from memory.
