@@ -6,6 +6,7 @@
 
 #include <filesystem>
 #include <fstream>
+#include <unordered_map>
 
 namespace starcensus {
 
@@ -44,9 +45,28 @@ void addPathOrPattern(const std::string& entry, const std::string& origin, std::
     }
 }
 
+/// The paths with repeats of one file (same canonical path) removed after their first appearance.
+std::vector<std::string> withoutRepeats(const std::vector<std::string>& paths,
+                                        std::vector<std::string>* warnings) {
+    std::vector<std::string> kept;
+    std::unordered_map<std::string, std::string> first_name; // canonical path -> path as first given
+    for (const auto& path : paths) {
+        std::error_code error;
+        const std::filesystem::path canonical = std::filesystem::canonical(path, error);
+        const auto [it, inserted] = first_name.emplace(error ? path : canonical.string(), path);
+        if (inserted) {
+            kept.push_back(path);
+        } else if (warnings != nullptr) {
+            warnings->push_back(path + ": the same file as " + it->second + ", given earlier; read once");
+        }
+    }
+    return kept;
+}
+
 } // namespace
 
-std::vector<std::string> expandInputPaths(const std::vector<std::string>& arguments) {
+std::vector<std::string> expandInputPaths(const std::vector<std::string>& arguments,
+                                          std::vector<std::string>* warnings) {
     std::vector<std::string> paths;
     for (const auto& argument : arguments) {
         if (!argument.starts_with("@")) {
@@ -76,7 +96,7 @@ std::vector<std::string> expandInputPaths(const std::vector<std::string>& argume
                 " (listed in " + list_path.string() + " line " + std::to_string(line_number) + ")", paths);
         }
     }
-    return paths;
+    return withoutRepeats(paths, warnings);
 }
 
 } // namespace starcensus

@@ -96,10 +96,23 @@ TEST_CASE("input paths expand globs and @lists, and name what is missing") {
           std::vector<std::string>{directory.file("a.fits"), directory.file("b.fits")});
     writeText(directory.file("list.txt"),
               "# inputs\n\nc.csv\n  " + directory.file("b.fits") + "  \n*.fits\n");
-    CHECK(starcensus::expandInputPaths({listOf(directory.file("list.txt")), directory.file("c.csv")}) ==
-          std::vector<std::string>{(folder / "c.csv").string(), directory.file("b.fits"),
-                                   (folder / "a.fits").string(), (folder / "b.fits").string(),
-                                   directory.file("c.csv")});
+    // b.fits (listed, then matched by the pattern) and c.csv (listed, then given) are kept once, where
+    // they first appear, each repeat with one warning (issue 15).
+    std::vector<std::string> warnings;
+    CHECK(starcensus::expandInputPaths({listOf(directory.file("list.txt")), directory.file("c.csv")},
+                                       &warnings) == std::vector<std::string>{(folder / "c.csv").string(),
+                                                                              directory.file("b.fits"),
+                                                                              (folder / "a.fits").string()});
+    CHECK(warnings ==
+          std::vector<std::string>{(folder / "b.fits").string() + ": the same file as " +
+                                       directory.file("b.fits") + ", given earlier; read once",
+                                   directory.file("c.csv") + ": the same file as " +
+                                       (folder / "c.csv").string() + ", given earlier; read once"});
+    // Through a symbolic link and a "./" detour it is still the same file.
+    std::filesystem::create_symlink(directory.file("a.fits"), directory.file("link.fits"));
+    CHECK(starcensus::expandInputPaths(
+              {directory.file("a.fits"), directory.file("link.fits"), (folder / "." / "a.fits").string()}) ==
+          std::vector<std::string>{directory.file("a.fits")});
     CHECK(expandError({directory.file("none.fits")}) == directory.file("none.fits") + ": no such file");
     CHECK(expandError({directory.file("*.fz")}) == directory.file("*.fz") + ": no file matches this pattern");
     CHECK(expandError({listOf(directory.file("nolist.txt"))}) ==
