@@ -65,6 +65,16 @@ po::options_description censusOptions(CensusSettings& settings) {
     add("group", po::value(&settings.group_definitions)->composing()->value_name("NAME=ITEMS"),
         "extra class group NAME=ITEM[,ITEM...]; items are classes or subtype ranges, e.g. FGK=F,G,K or "
         "earlyM=M0-M4 (repeatable)");
+    CatalogMergeSettings& merge = settings.merge;
+    add("match-radius", number(merge.match_radius_arcsec, "ARCSEC"),
+        "rows of different files closer than this at J2016.0 (after their proper motions) are one object "
+        "(arcsec; 0: merge by source_id only)");
+    add("match-parallax-sigma", number(merge.parallax_consistency_sigma, "K"),
+        "a positional match also needs parallaxes within K combined standard errors");
+    add("catalog-epoch", number(merge.default_epoch_yr, "YEAR"),
+        "epoch of the positions of every input without its own --file-epoch (Julian year; Gaia DR3: 2016)");
+    add("file-epoch", po::value(&settings.file_epoch_definitions)->composing()->value_name("FILE=YEAR"),
+        "epoch of one input file's positions (Julian year), e.g. 2mass.csv=2000 (repeatable)");
     return options;
 }
 
@@ -112,6 +122,24 @@ void validate(CensusSettings& settings) {
     requireThat(policy.has_value(), "spectral-types",
                 "'" + settings.spectral_types_name + "' is not one of use, check, ignore");
     settings.spectral_types = *policy;
+    requireInRange("match-radius", settings.merge.match_radius_arcsec, 0.0, 3600.0, "arcsec");
+    requireInRange("match-parallax-sigma", settings.merge.parallax_consistency_sigma, 0.0, 100.0, "",
+                   LowerBound::Exclusive);
+    requireInRange("catalog-epoch", settings.merge.default_epoch_yr, 1900.0, 2100.0, "yr");
+    settings.file_epochs.clear();
+    for (const auto& definition : settings.file_epoch_definitions) {
+        const auto equals = definition.rfind('=');
+        double year = 0.0;
+        bool parsed = equals != std::string::npos && equals > 0;
+        if (parsed) {
+            const char* end = definition.data() + definition.size();
+            const auto [stop, error] = std::from_chars(definition.data() + equals + 1, end, year);
+            parsed = error == std::errc{} && stop == end && equals + 1 < definition.size();
+        }
+        requireThat(parsed, "file-epoch", "'" + definition + "' is not FILE=YEAR");
+        requireInRange("file-epoch", year, 1900.0, 2100.0, "yr");
+        settings.file_epochs.emplace_back(definition.substr(0, equals), year);
+    }
     settings.groups = standardClassGroups();
     for (const auto& definition : settings.group_definitions) {
         ClassGroup group = parseClassGroup(definition);

@@ -2,6 +2,7 @@
 // Command-line / config-file options owned by the census library: membership, quality cuts, the Monte
 // Carlo and the reported classes. Each builder binds options to a settings struct; validate*() rejects
 // values outside their ranges with an InputError naming the option.
+#include "census/CatalogMerge.h"
 #include "census/ClassGroups.h"
 #include "census/Membership.h"
 #include "census/MonteCarlo.h"
@@ -11,21 +12,25 @@
 #include <boost/program_options.hpp>
 
 #include <string>
+#include <utility>
 #include <vector>
 
 namespace starcensus::census {
 
 /// Settings of one census run that come from options.
 struct CensusSettings {
-    std::string radii_text = "10";               // --radius, comma-separated (pc)
-    std::string prior_name = "constant-density"; // --distance-prior
-    std::vector<std::string> group_definitions;  // --group NAME=ITEMS
-    std::string spectral_types_name = "use";     // --spectral-types use|check|ignore
+    std::string radii_text = "10";                   // --radius, comma-separated (pc)
+    std::string prior_name = "constant-density";     // --distance-prior
+    std::vector<std::string> group_definitions;      // --group NAME=ITEMS
+    std::vector<std::string> file_epoch_definitions; // --file-epoch FILE=YEAR
+    std::string spectral_types_name = "use";         // --spectral-types use|check|ignore
     MembershipSettings membership;
     QualitySettings quality;
     DrawSettings draws;
+    CatalogMergeSettings merge; // file_epochs_yr is filled per run from file_epochs
 
     // Filled by validate():
+    std::vector<std::pair<std::string, double>> file_epochs; // (path as given, Julian year)
     std::vector<double> radii_pc;
     std::vector<ClassGroup> groups; // the standard classes followed by the user's groups
     SpectralTypePolicy spectral_types = SpectralTypePolicy::Use;

@@ -33,6 +33,14 @@ double secondsSince(Clock::time_point start) {
     return std::chrono::duration<double>(Clock::now() - start).count();
 }
 
+nlohmann::json fileEpochsJson(const std::vector<std::pair<std::string, double>>& file_epochs) {
+    nlohmann::json epochs = nlohmann::json::object();
+    for (const auto& [path, year] : file_epochs) {
+        epochs[std::filesystem::absolute(path).string()] = year;
+    }
+    return epochs;
+}
+
 nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector<std::string>& paths) {
     const auto& census = settings.census;
     return {{"software", "starcensus"},
@@ -49,13 +57,58 @@ nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector
             {"min_parallax_snr", census.quality.min_parallax_snr_to_classify},
             {"max_colour_error_mag", census.quality.max_colour_error_mag},
             {"candidate_sigma", settings.scan.candidate_sigma},
-            {"spectral_types", census::spectralTypePolicyName(census.spectral_types)}};
+            {"spectral_types", census::spectralTypePolicyName(census.spectral_types)},
+            {"match_radius_arcsec", census.merge.match_radius_arcsec},
+            {"match_parallax_sigma", census.merge.parallax_consistency_sigma},
+            {"match_epoch_yr", census.merge.match_epoch_yr},
+            {"catalog_epoch_yr", census.merge.default_epoch_yr},
+            {"file_epochs_yr", fileEpochsJson(census.file_epochs)}};
+}
+
+/// The merge counts for provenance.json and fractions.json: totals and, per pair of input files with a
+/// merge, rows merged by source_id and by position.
+nlohmann::json mergesJson(const census::MergeReport& report, const std::vector<std::string>& paths) {
+    nlohmann::json pairs = nlohmann::json::array();
+    for (const auto& pair : report.file_pairs) {
+        pairs.push_back({{"file_a", std::filesystem::absolute(paths[pair.file_a]).string()},
+                         {"file_b", std::filesystem::absolute(paths[pair.file_b]).string()},
+                         {"by_source_id", pair.by_source_id},
+                         {"by_position", pair.by_position}});
+    }
+    return {{"rows_in", report.rows_in},
+            {"rows_out", report.rows_out},
+            {"by_source_id", report.source_id_merges},
+            {"by_position", report.positional_merges},
+            {"pairs_refused_by_parallax", report.pairs_refused_by_parallax},
+            {"file_pairs", std::move(pairs)}};
+}
+
+/// Epoch of each input file's positions, by file index, from --file-epoch (matched to the inputs by
+/// canonical path); throws InputError for a --file-epoch naming no input.
+std::vector<double> fileEpochsByIndex(const std::vector<std::pair<std::string, double>>& file_epochs,
+                                      const std::vector<std::string>& paths) {
+    std::vector<double> epochs(paths.size(), photometry::kMissing);
+    const auto canonical = [](const std::string& path) {
+        std::error_code error;
+        const auto resolved = std::filesystem::canonical(path, error);
+        return error ? std::filesystem::absolute(path).lexically_normal() : resolved;
+    };
+    for (const auto& [path, year] : file_epochs) {
+        const auto wanted = canonical(path);
+        const auto it = std::find_if(paths.begin(), paths.end(),
+                                     [&](const std::string& input) { return canonical(input) == wanted; });
+        if (it == paths.end()) {
+            throw InputError("--file-epoch " + path + ": not one of the input files");
+        }
+        epochs[static_cast<std::size_t>(it - paths.begin())] = year;
+    }
+    return epochs;
 }
 
 /// provenance.json: the inputs with checksums, every option value, the resolved settings and the timings.
 nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vector<std::string>& paths,
-                              nlohmann::json input_files, const PipelineTimings& timings,
-                              const std::vector<std::string>& outputs) {
+                              nlohmann::json input_files, nlohmann::json merges,
+                              const PipelineTimings& timings, const std::vector<std::string>& outputs) {
     const std::time_t now = std::time(nullptr);
     char created[32];
     std::strftime(created, sizeof created, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&now));
@@ -65,10 +118,12 @@ nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vecto
             {"created_utc", created},
             {"seed", settings.census.draws.seed},
             {"inputs", std::move(input_files)},
+            {"merges", std::move(merges)},
             {"command_options", settings.options},
             {"settings", runProvenance(settings, paths)},
             {"timings_s",
              {{"scan", timings.scan_s},
+              {"merge", timings.merge_s},
               {"posteriors", timings.posteriors_s},
               {"draws", timings.draws_s},
               {"outputs", timings.outputs_s}}},
@@ -89,7 +144,13 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     auto start = Clock::now();
     progress.begin("scan");
 
-    const std::vector<std::string> paths = expandInputPaths(settings.inputs);
+    std::vector<std::string> path_warnings;
+    const std::vector<std::string> paths = expandInputPaths(settings.inputs, &path_warnings);
+    for (const auto& warning : path_warnings) {
+        log << "starcensus: warning: " << warning << '\n';
+    }
+    census::CatalogMergeSettings merge_settings = census.merge;
+    merge_settings.file_epochs_yr = fileEpochsByIndex(census.file_epochs, paths);
     // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
     // the scan, so it runs beside the census instead of after it.
     std::future<nlohmann::json> input_files = std::async(
@@ -112,12 +173,20 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     }
     result.files = scan.files;
     result.scan_totals = scan.totals;
-    std::vector<photometry::CatalogRow> rows = std::move(scan.candidates);
-    if (rows.empty()) {
+    if (scan.candidates.empty()) {
         throw InputError("no candidates: none of the " + std::to_string(scan.totals.rows_read) + " rows in " +
                          std::to_string(paths.size()) + " input file(s) can lie within " +
                          std::to_string(census.radii_pc.back()) + " pc");
     }
+    // One row per object before anything counts them: overlapping catalogues, or one file under two
+    // names, would otherwise count a star twice.
+    const auto merge_start = Clock::now();
+    census::MergedCatalog merged =
+        census::mergeCatalogRows(std::move(scan.candidates), merge_settings, census.draws.threads);
+    std::vector<photometry::CatalogRow> rows = std::move(merged.rows);
+    result.merges = std::move(merged.report);
+    result.merges.links.clear(); // per-row detail, not reported
+    result.timings.merge_s = secondsSince(merge_start);
     result.cuts = census::applyQualityCuts(rows, census.quality);
     result.candidates_after_cuts = rows.size();
 
@@ -190,8 +259,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     prior_fits.get();
     nlohmann::json provenance = runProvenance(settings, paths);
     // What each quality cut removed or changed, for the report's table.
-    provenance["candidates_before_cuts"] = result.scan_totals.candidates;
+    provenance["candidates_before_cuts"] = result.merges.rows_out; // one row per object
     provenance["candidates_after_cuts"] = result.candidates_after_cuts;
+    provenance["merges"] = mergesJson(result.merges, paths);
     provenance["quality_cuts"] = nlohmann::json::array();
     for (const auto& cut : result.cuts) {
         provenance["quality_cuts"].push_back(
@@ -218,8 +288,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
         outputs.push_back("hosts.fits");
     }
     outputs.push_back("provenance.json");
-    writeJsonFile(directory / "provenance.json",
-                  provenanceJson(settings, paths, input_files.get(), result.timings, outputs));
+    writeJsonFile(
+        directory / "provenance.json",
+        provenanceJson(settings, paths, input_files.get(), provenance["merges"], result.timings, outputs));
     progress.end();
     return result;
 }
@@ -229,6 +300,11 @@ std::string summarizeRun(const PipelineResult& result) {
     text << std::fixed << std::setprecision(1);
     text << "read " << result.scan_totals.rows_read << " rows, " << result.scan_totals.candidates
          << " candidates, " << result.candidates_after_cuts << " after quality cuts\n";
+    const census::MergeReport& merges = result.merges;
+    text << "  merged " << merges.rows_in << " candidate rows into " << merges.rows_out
+         << " objects: " << merges.source_id_merges << " by source_id, " << merges.positional_merges
+         << " by position (" << merges.pairs_refused_by_parallax
+         << " close pairs kept apart by their parallaxes)\n";
     for (const auto& cut : result.cuts) {
         text << "  cut " << cut.name << ": " << cut.rows_affected << " (" << cut.description << ")\n";
     }

@@ -5,6 +5,7 @@
 // draws.fits, draws.csv, hosts.fits, provenance.json and the completeness and luminosity-function files
 // (reports/LuminosityOutput.h) into the output directory. Every file is complete before it appears under
 // its name; nothing is written if any step fails before output.
+#include "census/CatalogMerge.h"
 #include "census/CensusOptions.h"
 #include "census/CompletenessCorrection.h"
 #include "census/Fractions.h"
@@ -38,6 +39,7 @@ struct PipelineSettings {
 
 struct PipelineTimings {
     double scan_s = 0.0;
+    double merge_s = 0.0;
     double posteriors_s = 0.0;
     double draws_s = 0.0;
     double outputs_s = 0.0;
@@ -46,6 +48,7 @@ struct PipelineTimings {
 struct PipelineResult {
     std::vector<photometry::FileScanReport> files;
     photometry::ScanCounts scan_totals;
+    census::MergeReport merges; // without the per-row links
     std::vector<census::CutOutcome> cuts;
     std::vector<census::RadiusEstimate> estimates;
     std::vector<census::CorrectedRadius> corrected; // completeness-corrected counts; empty without a fit

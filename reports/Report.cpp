@@ -267,6 +267,33 @@ std::string qualityCutsSection(const nlohmann::json& provenance) {
     return out.str();
 }
 
+/// The merge of overlapping inputs (fractions.json provenance "merges"): totals and one row per pair of
+/// files with a merge.
+std::string mergeSection(const nlohmann::json& provenance) {
+    if (!provenance.contains("merges")) {
+        return "<p class=\"note\">fractions.json records no merges (written by an older starcensus).</p>\n";
+    }
+    const auto& merges = provenance.at("merges");
+    const auto count = [&](const char* key) { return jsonCell(merges.value(key, nlohmann::json())); };
+    std::ostringstream out;
+    out << "<p>" << count("rows_in") << " candidate rows, " << count("rows_out")
+        << " objects after merging: " << count("by_source_id") << " rows repeated a source_id, "
+        << count("by_position") << " matched by position (within "
+        << jsonCell(provenance.value("match_radius_arcsec", nlohmann::json())) << " arcsec at J"
+        << jsonCell(provenance.value("match_epoch_yr", nlohmann::json())) << "); "
+        << count("pairs_refused_by_parallax")
+        << " close pairs from different files kept apart by inconsistent parallaxes.</p>\n";
+    HtmlTable table({"file", "file", "merged by source_id", "merged by position"});
+    for (const auto& pair : merges.value("file_pairs", nlohmann::json::array())) {
+        table.row({"<code>" + escapeHtml(pair.value("file_a", "")) + "</code>",
+                   "<code>" + escapeHtml(pair.value("file_b", "")) + "</code>",
+                   jsonCell(pair.value("by_source_id", nlohmann::json())),
+                   jsonCell(pair.value("by_position", nlohmann::json()))});
+    }
+    out << table.html();
+    return out.str();
+}
+
 std::string completenessSection(const nlohmann::json& completeness) {
     std::ostringstream out;
     out << "<p>Faint limit G = " << jsonCell(completeness.value("faint_limit_g", nlohmann::json())) << " ("
@@ -402,10 +429,12 @@ std::string reportHtml(const ReportInputs& inputs, const ReportAnalysis& analysi
     if (inputs.completeness) {
         html << "<h2>Completeness</h2>\n" << completenessSection(*inputs.completeness);
     }
+    html << "<h2>Inputs: merged rows</h2>\n" << mergeSection(provenance);
     html << "<h2>Quality cuts</h2>\n" << qualityCutsSection(provenance);
     html << "<h2>Provenance</h2>\n<h3>Run settings (fractions.json)</h3>\n";
     auto settings = provenance;
     settings.erase("quality_cuts");
+    settings.erase("merges");
     html << keyValueTable(settings);
     if (inputs.provenance) {
         html << "<h3>provenance.json</h3>\n" << keyValueTable(*inputs.provenance);

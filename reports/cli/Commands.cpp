@@ -351,7 +351,12 @@ int inspectCommand(const std::vector<std::string>& arguments) {
     photometry::ScanSettings settings = photometry::scanSettingsFromOptions(values);
     const auto radii = census::parsePositiveList(radius_text, "radius");
     settings.min_parallax_mas = 1000.0 / *std::max_element(radii.begin(), radii.end());
-    const auto inspections = photometry::inspectCatalogs(expandInputPaths(inputs), settings);
+    std::vector<std::string> path_warnings;
+    const auto paths = expandInputPaths(inputs, &path_warnings);
+    for (const auto& warning : path_warnings) {
+        std::cerr << "starcensus: warning: " << warning << '\n';
+    }
+    const auto inspections = photometry::inspectCatalogs(paths, settings);
     std::cout << photometry::formatInspection(inspections);
     const bool all_read =
         std::all_of(inspections.begin(), inspections.end(),
