@@ -1,14 +1,12 @@
 // Benchmark of the Monte Carlo over measurement errors: a 300,000-candidate sample, 1000 draws.
 // Prints star-draws per second per core and in total, wall time and peak resident memory.
 // Not a test: figures depend on the machine. Usage: census_draws_bench [candidates] [draws] [threads]
+#include "bench/Measure.h"
 #include "census/MonteCarlo.h"
 #include "census/Random.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/Classifier.h"
 #include "photometry/DwarfLocus.h"
-
-#include <sys/resource.h>
-#include <time.h>
 
 #include <chrono>
 #include <cmath>
@@ -17,6 +15,8 @@
 #include <thread>
 
 using namespace starcensus;
+using starcensus::bench::peakResidentMiB;
+using starcensus::bench::processCpuSeconds;
 
 namespace {
 
@@ -40,19 +40,6 @@ std::vector<photometry::CatalogRow> benchSample(std::size_t n) {
         row.rp_error_mag = 0.003;
     }
     return rows;
-}
-
-// CPU seconds of the whole process (all threads): less sensitive than wall time to other load.
-double processCpuSeconds() {
-    timespec now{};
-    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &now);
-    return static_cast<double>(now.tv_sec) + 1e-9 * static_cast<double>(now.tv_nsec);
-}
-
-double peakResidentMiB() {
-    rusage usage{};
-    getrusage(RUSAGE_SELF, &usage);
-    return static_cast<double>(usage.ru_maxrss) / 1024.0;
 }
 
 } // namespace

@@ -2,9 +2,8 @@
 // from the given files, and prints rows per second, wall time and the peak resident memory of the process.
 // Not a test: figures depend on the machine and on the page cache.
 // Usage: scan_bench [--radius PC] [--threads N] [--block-kib KIB] FILE...
+#include "bench/Measure.h"
 #include "photometry/catalog/CatalogScan.h"
-
-#include <sys/resource.h>
 
 #include <chrono>
 #include <cstdio>
@@ -39,13 +38,11 @@ int main(int argc, char** argv) {
         const auto scan = starcensus::photometry::scanCatalogs(paths, settings);
         const double seconds =
             std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-        rusage usage{};
-        getrusage(RUSAGE_SELF, &usage);
         std::printf("scan: files %zu, rows %lld, candidates %lld, %.3f s, %.1f M rows/s, peak RSS %.0f MiB\n",
                     paths.size(), static_cast<long long>(scan.totals.rows_read),
                     static_cast<long long>(scan.totals.candidates), seconds,
                     static_cast<double>(scan.totals.rows_read) / seconds / 1e6,
-                    static_cast<double>(usage.ru_maxrss) / 1024.0);
+                    starcensus::bench::peakResidentMiB());
     } catch (const std::exception& error) {
         std::fprintf(stderr, "scan_bench: %s\n", error.what());
         return 1;

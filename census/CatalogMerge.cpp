@@ -11,6 +11,7 @@
 #include <map>
 #include <numbers>
 #include <numeric>
+#include <span>
 #include <unordered_map>
 
 namespace starcensus::census {
@@ -83,15 +84,9 @@ int literatureRank(photometry::LiteratureTypeStatus status) {
     return 0;
 }
 
-/// An object being merged: its row so far and the epoch of that row's position (Julian year).
-struct MergedObject {
-    CatalogRow row;
-    double epoch_yr = kGaiaDr3EpochYr;
-};
-
-/// Folds a later row into an object by the rules of mergeCatalogRows().
-void absorb(MergedObject& object, const CatalogRow& other, double other_epoch_yr) {
-    CatalogRow& kept = object.row;
+/// Folds a later row into an object's row by the rules of mergeCatalogRows(); kept_epoch_yr is the
+/// epoch of the kept row's position, which changes with the astrometry.
+void absorb(CatalogRow& kept, double& kept_epoch_yr, const CatalogRow& other, double other_epoch_yr) {
     if (measuresBetter(other.parallax_mas, other.parallax_error_mas, kept.parallax_mas,
                        kept.parallax_error_mas)) {
         // One astrometric solution: position, proper motion and RUWE go with the parallax.
@@ -100,7 +95,7 @@ void absorb(MergedObject& object, const CatalogRow& other, double other_epoch_yr
         kept.pmra_mas_per_yr = other.pmra_mas_per_yr;
         kept.pmdec_mas_per_yr = other.pmdec_mas_per_yr;
         kept.ruwe = other.ruwe;
-        object.epoch_yr = other_epoch_yr;
+        kept_epoch_yr = other_epoch_yr;
     }
     for (const Band& band : kBands) {
         if (measuresBetter(other.*band.value, other.*band.error, kept.*band.value, kept.*band.error)) {
@@ -126,20 +121,67 @@ bool parallaxesConsistent(const CatalogRow& a, const CatalogRow& b, double sigma
     return std::abs(a.parallax_mas - b.parallax_mas) <= sigma * combined_error;
 }
 
-/// Sorted, distinct input files an object's rows came from.
-using FileSet = std::vector<std::uint32_t>;
-
-bool disjoint(const FileSet& a, const FileSet& b) {
-    auto i = a.begin();
-    auto j = b.begin();
-    while (i != a.end() && j != b.end()) {
-        if (*i == *j) {
-            return false;
+/// The input files each object's rows came from. Nearly every object has one file, kept in a plain
+/// array; the few with more (after a merge) keep a sorted list on the side.
+class FileSets {
+  public:
+    void addObject(std::uint32_t file) { single_.push_back(file); }
+    /// Adds `file` to the object's files (no effect if it is there already).
+    void add(std::uint32_t object, std::uint32_t file) {
+        if (file == single_[object] && !several_.contains(object)) {
+            return;
         }
-        *i < *j ? ++i : ++j;
+        std::vector<std::uint32_t>& list = listOf(object);
+        const auto place = std::lower_bound(list.begin(), list.end(), file);
+        if (place == list.end() || *place != file) {
+            list.insert(place, file);
+        }
     }
-    return true;
-}
+    bool disjoint(std::uint32_t a, std::uint32_t b) const {
+        const auto ia = several_.find(a);
+        const auto ib = several_.find(b);
+        if (ia == several_.end() && ib == several_.end()) {
+            return single_[a] != single_[b];
+        }
+        const std::span<const std::uint32_t> fa =
+            ia == several_.end() ? std::span(&single_[a], 1) : std::span(ia->second);
+        const std::span<const std::uint32_t> fb =
+            ib == several_.end() ? std::span(&single_[b], 1) : std::span(ib->second);
+        auto i = fa.begin();
+        auto j = fb.begin();
+        while (i != fa.end() && j != fb.end()) {
+            if (*i == *j) {
+                return false;
+            }
+            *i < *j ? ++i : ++j;
+        }
+        return true;
+    }
+    /// The files of `child` join those of `root`.
+    void join(std::uint32_t root, std::uint32_t child) {
+        const auto it = several_.find(child);
+        if (it == several_.end()) {
+            add(root, single_[child]);
+            return;
+        }
+        const std::vector<std::uint32_t> child_files = std::move(it->second);
+        several_.erase(it);
+        for (const std::uint32_t file : child_files) {
+            add(root, file);
+        }
+    }
+
+  private:
+    std::vector<std::uint32_t>& listOf(std::uint32_t object) {
+        const auto [it, inserted] = several_.try_emplace(object);
+        if (inserted) {
+            it->second.push_back(single_[object]);
+        }
+        return it->second;
+    }
+    std::vector<std::uint32_t> single_;                                     // the first file of each object
+    std::unordered_map<std::uint32_t, std::vector<std::uint32_t>> several_; // objects with more files
+};
 
 struct CandidatePair {
     double separation_rad;
@@ -164,16 +206,16 @@ pointing toPointing(const UnitVector& u) {
 
 /// Pairs of objects from disjoint files within the radius, nearest first; counts the pairs the parallax
 /// test refused.
-std::vector<CandidatePair> positionalPairs(const std::vector<MergedObject>& objects,
-                                           const std::vector<FileSet>& files,
-                                           const std::vector<UnitVector>& positions,
+std::vector<CandidatePair> positionalPairs(const std::vector<CatalogRow>& rows,
+                                           const std::vector<std::uint32_t>& object_rows,
+                                           const FileSets& files, const std::vector<UnitVector>& positions,
                                            const CatalogMergeSettings& settings, unsigned threads,
                                            std::int64_t& refused_by_parallax) {
     const double radius_rad = settings.match_radius_arcsec / kArcsecPerRadian;
     const auto grid = neighbourGrid(radius_rad);
     // Objects sorted by pixel: a disc query's pixel ranges become ranges of this list.
-    std::vector<std::pair<std::int64_t, std::uint32_t>> by_pixel(objects.size());
-    for (std::size_t i = 0; i < objects.size(); ++i) {
+    std::vector<std::pair<std::int64_t, std::uint32_t>> by_pixel(object_rows.size());
+    for (std::size_t i = 0; i < object_rows.size(); ++i) {
         by_pixel[i] = {grid.vec2pix(vec3(positions[i].x, positions[i].y, positions[i].z)),
                        static_cast<std::uint32_t>(i)};
     }
@@ -181,7 +223,9 @@ std::vector<CandidatePair> positionalPairs(const std::vector<MergedObject>& obje
     const unsigned workers = resolveThreadCount(threads);
     std::vector<std::vector<CandidatePair>> found(workers);
     std::vector<std::int64_t> refused(workers, 0);
-    forEachIndex(objects.size(), threads, [&](std::size_t i, unsigned worker) {
+    // Queries in pixel order: neighbouring queries read neighbouring parts of by_pixel.
+    forEachIndex(by_pixel.size(), threads, [&](std::size_t k, unsigned worker) {
+        const std::size_t i = by_pixel[k].second;
         rangeset<std::int64_t> pixels;
         grid.query_disc_inclusive(toPointing(positions[i]), radius_rad, pixels);
         for (std::size_t r = 0; r < pixels.nranges(); ++r) {
@@ -189,14 +233,14 @@ std::vector<CandidatePair> positionalPairs(const std::vector<MergedObject>& obje
                                        std::pair<std::int64_t, std::uint32_t>{pixels.ivbegin(r), 0});
             for (; it != by_pixel.end() && it->first < pixels.ivend(r); ++it) {
                 const std::uint32_t j = it->second;
-                if (j <= i || !disjoint(files[i], files[j])) {
+                if (j <= i || !files.disjoint(static_cast<std::uint32_t>(i), j)) {
                     continue; // each pair once; never two rows of one file
                 }
                 const double separation = separationRadians(positions[i], positions[j]);
                 if (separation > radius_rad) {
                     continue;
                 }
-                if (!parallaxesConsistent(objects[i].row, objects[j].row,
+                if (!parallaxesConsistent(rows[object_rows[i]], rows[object_rows[j]],
                                           settings.parallax_consistency_sigma)) {
                     ++refused[worker];
                     continue;
@@ -224,23 +268,19 @@ std::uint32_t findRoot(std::vector<std::uint32_t>& parent, std::uint32_t i) {
 
 /// Union of the pairs, nearest first, as long as a group's files stay disjoint: each group's root is its
 /// lowest (earliest) object.
-std::vector<std::uint32_t> groupByPosition(const std::vector<CandidatePair>& pairs,
-                                           std::vector<FileSet> files) {
-    std::vector<std::uint32_t> parent(files.size());
+std::vector<std::uint32_t> groupByPosition(const std::vector<CandidatePair>& pairs, std::size_t objects,
+                                           FileSets files) {
+    std::vector<std::uint32_t> parent(objects);
     std::iota(parent.begin(), parent.end(), 0u);
     for (const CandidatePair& pair : pairs) {
         const std::uint32_t a = findRoot(parent, pair.a);
         const std::uint32_t b = findRoot(parent, pair.b);
-        if (a == b || !disjoint(files[a], files[b])) {
+        if (a == b || !files.disjoint(a, b)) {
             continue;
         }
         const auto [root, child] = std::minmax(a, b);
         parent[child] = root;
-        FileSet joined;
-        std::set_union(files[root].begin(), files[root].end(), files[child].begin(), files[child].end(),
-                       std::back_inserter(joined));
-        files[root] = std::move(joined);
-        files[child].clear();
+        files.join(root, child);
     }
     for (std::uint32_t i = 0; i < parent.size(); ++i) {
         parent[i] = findRoot(parent, i);
@@ -297,13 +337,31 @@ MergedCatalog mergeCatalogRows(std::vector<CatalogRow> rows, const CatalogMergeS
     MergedCatalog result;
     MergeReport& report = result.report;
     report.rows_in = static_cast<std::int64_t>(rows.size());
-    // Argument order: "earlier" below means a lower (file_index, row_index).
-    std::sort(rows.begin(), rows.end(), [](const CatalogRow& a, const CatalogRow& b) {
+    // Argument order: "earlier" below means a lower (file_index, row_index). Objects are merged in place:
+    // each object's first row absorbs the others.
+    const auto in_argument_order = [](const CatalogRow& a, const CatalogRow& b) {
         return std::tie(a.file_index, a.row_index) < std::tie(b.file_index, b.row_index);
-    });
+    };
+    if (!std::is_sorted(rows.begin(), rows.end(), in_argument_order)) { // a scan's candidates already are
+        std::sort(rows.begin(), rows.end(), in_argument_order);
+    }
+    std::vector<double> epoch_yr(rows.size()); // of each row's position, then of its object's
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        epoch_yr[i] = fileEpoch(settings, rows[i].file_index);
+    }
+    std::vector<bool> absorbed(rows.size(), false);
     std::map<std::pair<std::uint32_t, std::uint32_t>, FilePairMerges> pair_counts;
+    const auto absorbInto = [&](std::uint32_t kept, std::uint32_t other, MergeKind kind,
+                                double separation_arcsec) {
+        absorb(rows[kept], epoch_yr[kept], rows[other], epoch_yr[other]);
+        absorbed[other] = true;
+        ++(kind == MergeKind::SourceId ? report.source_id_merges : report.positional_merges);
+        countMerge(pair_counts, rows[kept].file_index, rows[other].file_index, kind);
+        report.links.push_back({rows[kept].file_index, rows[kept].row_index, rows[other].file_index,
+                                rows[other].row_index, kind, separation_arcsec});
+    };
 
-    // 1. The same source_id: one object, folded in argument order.
+    // 1. The same source_id: one object, folded in argument order into its first row.
     std::vector<std::uint32_t> by_source_id;
     for (std::uint32_t i = 0; i < rows.size(); ++i) {
         if (rows[i].source_id != photometry::kMissingSourceId) {
@@ -312,6 +370,9 @@ MergedCatalog mergeCatalogRows(std::vector<CatalogRow> rows, const CatalogMergeS
     }
     std::stable_sort(by_source_id.begin(), by_source_id.end(),
                      [&](std::uint32_t a, std::uint32_t b) { return rows[a].source_id < rows[b].source_id; });
+    std::vector<std::uint32_t> object_of(rows.size()); // index into object_rows
+    std::vector<std::uint32_t> object_rows;            // each object's first row
+    FileSets files;
     std::vector<std::uint32_t> first_of(rows.size());
     std::iota(first_of.begin(), first_of.end(), 0u);
     for (std::size_t k = 1; k < by_source_id.size(); ++k) {
@@ -320,64 +381,47 @@ MergedCatalog mergeCatalogRows(std::vector<CatalogRow> rows, const CatalogMergeS
             first_of[by_source_id[k]] = first_of[previous];
         }
     }
-    std::vector<MergedObject> objects;
-    std::vector<FileSet> files;
-    std::vector<std::uint32_t> object_of(rows.size());
     for (std::uint32_t i = 0; i < rows.size(); ++i) {
-        const CatalogRow& row = rows[i];
+        const std::uint32_t file = rows[i].file_index;
         if (first_of[i] == i) {
-            object_of[i] = static_cast<std::uint32_t>(objects.size());
-            objects.push_back({row, fileEpoch(settings, row.file_index)});
-            files.push_back({row.file_index});
+            object_of[i] = static_cast<std::uint32_t>(object_rows.size());
+            object_rows.push_back(i);
+            files.addObject(file);
             continue;
         }
-        const std::uint32_t object = object_of[first_of[i]];
-        object_of[i] = object;
-        MergedObject& merged = objects[object];
-        absorb(merged, row, fileEpoch(settings, row.file_index));
-        FileSet& object_files = files[object];
-        if (std::find(object_files.begin(), object_files.end(), row.file_index) == object_files.end()) {
-            object_files.insert(std::upper_bound(object_files.begin(), object_files.end(), row.file_index),
-                                row.file_index);
-        }
-        ++report.source_id_merges;
-        countMerge(pair_counts, merged.row.file_index, row.file_index, MergeKind::SourceId);
-        report.links.push_back({merged.row.file_index, merged.row.row_index, row.file_index, row.row_index,
-                                MergeKind::SourceId, 0.0});
+        object_of[i] = object_of[first_of[i]];
+        files.add(object_of[i], file);
+        absorbInto(first_of[i], i, MergeKind::SourceId, 0.0);
     }
+    first_of = {};
+    object_of = {};
 
     // 2. Positional match across files at the common epoch.
-    std::vector<UnitVector> positions(objects.size());
-    for (std::size_t i = 0; i < objects.size(); ++i) {
-        positions[i] =
-            unitVector(positionAtEpoch(objects[i].row, objects[i].epoch_yr, settings.match_epoch_yr));
+    std::vector<UnitVector> positions(object_rows.size());
+    for (std::size_t i = 0; i < object_rows.size(); ++i) {
+        const std::uint32_t row = object_rows[i];
+        positions[i] = unitVector(positionAtEpoch(rows[row], epoch_yr[row], settings.match_epoch_yr));
     }
-    std::vector<std::uint32_t> root(objects.size());
-    std::iota(root.begin(), root.end(), 0u);
-    if (settings.match_radius_arcsec > 0.0 && objects.size() > 1) {
-        const auto pairs =
-            positionalPairs(objects, files, positions, settings, threads, report.pairs_refused_by_parallax);
-        root = groupByPosition(pairs, files);
-    }
-    // Objects are in argument order, so each group's root comes before its other objects.
-    for (std::uint32_t i = 0; i < objects.size(); ++i) {
-        if (root[i] == i) {
-            continue;
-        }
-        MergedObject& group = objects[root[i]];
-        const CatalogRow& absorbed = objects[i].row;
-        absorb(group, absorbed, objects[i].epoch_yr);
-        ++report.positional_merges;
-        countMerge(pair_counts, group.row.file_index, absorbed.file_index, MergeKind::Position);
-        report.links.push_back({group.row.file_index, group.row.row_index, absorbed.file_index,
-                                absorbed.row_index, MergeKind::Position,
-                                separationRadians(positions[root[i]], positions[i]) * kArcsecPerRadian});
-    }
-    for (std::uint32_t i = 0; i < objects.size(); ++i) {
-        if (root[i] == i) {
-            result.rows.push_back(std::move(objects[i].row));
+    if (settings.match_radius_arcsec > 0.0 && object_rows.size() > 1) {
+        const auto pairs = positionalPairs(rows, object_rows, files, positions, settings, threads,
+                                           report.pairs_refused_by_parallax);
+        const std::vector<std::uint32_t> root = groupByPosition(pairs, object_rows.size(), std::move(files));
+        // Objects are in argument order, so each group's root comes before its other objects.
+        for (std::uint32_t i = 0; i < object_rows.size(); ++i) {
+            if (root[i] != i) {
+                absorbInto(object_rows[root[i]], object_rows[i], MergeKind::Position,
+                           separationRadians(positions[root[i]], positions[i]) * kArcsecPerRadian);
+            }
         }
     }
+    std::size_t kept = 0;
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        if (!absorbed[i]) {
+            rows[kept++] = std::move(rows[i]);
+        }
+    }
+    rows.resize(kept);
+    result.rows = std::move(rows);
     report.rows_out = static_cast<std::int64_t>(result.rows.size());
     for (const auto& [key, counts] : pair_counts) {
         report.file_pairs.push_back(counts);
