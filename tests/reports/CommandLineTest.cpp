@@ -88,7 +88,7 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         const char* arguments;
         const char* expected; // part of the message
     };
-    const std::array<Case, 9> cases = {{
+    const std::array<Case, 12> cases = {{
         {"run a_directory --out out", "a_directory: is a directory"},
         {"run notes.fits --out a_file", "--out a_file: exists and is not a directory"},
         {"run missing.fits --out out", "missing.fits"},
@@ -98,6 +98,9 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         {"run notes.fits --checksum md5 --out out", "--checksum"},
         {"run notes.fits --no-such-option 1 --out out", "no-such-option"},
         {"inspect", "--input"},
+        {"run notes.fits --match-radius -1 --out out", "--match-radius: -1 is outside the allowed range"},
+        {"run notes.fits --file-epoch notes.fits --out out", "--file-epoch: 'notes.fits' is not FILE=YEAR"},
+        {"run notes.fits --file-epoch notes.fits=J2000 --out out", "--file-epoch: 'notes.fits=J2000' is not"},
     }};
     for (const auto& test : cases) {
         const Outcome outcome = runStarcensus(test.arguments, dir);

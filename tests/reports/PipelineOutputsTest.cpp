@@ -115,6 +115,15 @@ TEST_CASE(
               .substr(0, 32));
     CHECK(provenance["command_options"]["options"]["radius"] == "4,6");
     CHECK(provenance["timings_s"]["draws"].get<double>() > 0.0);
+    CHECK(provenance["settings"]["match_radius_arcsec"] == 2.0);
+    CHECK(provenance["settings"]["catalog_epoch_yr"] == 2016.0);
+    CHECK(provenance["merges"]["rows_in"] == result.scan_totals.candidates);
+    CHECK(provenance["merges"]["rows_out"] == result.scan_totals.candidates); // one file: nothing merged
+    CHECK(provenance["merges"]["file_pairs"].empty());
+    CHECK(reports::summarizeRun(result).find("  merged " + std::to_string(result.scan_totals.candidates) +
+                                             " candidate rows into " +
+                                             std::to_string(result.scan_totals.candidates) +
+                                             " objects: 0 by source_id, 0 by position") != std::string::npos);
     std::ifstream priors_file(settings.output_directory / "priors.json");
     CHECK(nlohmann::json::parse(priors_file)["schema"] == "starcensus.priors/1");
 }

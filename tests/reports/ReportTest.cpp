@@ -72,6 +72,11 @@ TEST_CASE("fractions.json records each quality cut and what it did") {
     }
     CHECK(provenance.at("candidates_after_cuts").get<std::int64_t>() <=
           provenance.at("candidates_before_cuts").get<std::int64_t>());
+    // One mock file: nothing to merge, and the cuts see every candidate.
+    const auto& merges = provenance.at("merges");
+    CHECK(merges.at("rows_in") == merges.at("rows_out"));
+    CHECK(merges.at("rows_out") == provenance.at("candidates_before_cuts"));
+    CHECK(merges.at("file_pairs").empty());
 }
 
 TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one self-contained HTML file") {
@@ -104,6 +109,11 @@ TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one s
     // Tables: fractions per radius, quality cuts with counts, provenance, sky uniformity.
     CHECK(html.find("<h3>Within 10 pc</h3>") != std::string::npos);
     CHECK(html.find("<h2>Quality cuts</h2>\n<p>") != std::string::npos);
+    CHECK(html.find("<h2>Inputs: merged rows</h2>\n<p>") != std::string::npos);
+    CHECK(
+        html.find(
+            " objects after merging: 0 rows repeated a source_id, 0 matched by position (within 2 arcsec at "
+            "J2016)") != std::string::npos);
     CHECK(html.find("Sky uniformity") != std::string::npos);
     CHECK(html.find("<code>seed</code>") != std::string::npos);
     // The mock is isotropic (census/mock/Neighbourhood.h: Poisson positions in a sphere).
