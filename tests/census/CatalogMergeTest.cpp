@@ -78,31 +78,43 @@ TEST_CASE("rows with the same source_id are one object, within a file and across
 }
 
 TEST_CASE("each quantity with an error comes, with its error, from the row that measured it better") {
-    CatalogRow first = star(0, 0, kMissingSourceId, 10.0, 20.0, 100.0, 0.5);
-    first.pmra_mas_per_yr = 10.0;
-    first.ruwe = 1.0;
-    first.g_mag = 12.0;
-    first.g_error_mag = 0.01;
-    first.bp_mag = 13.0; // without an error: loses to a value with one
-    first.rp_mag = 11.0;
-    first.rp_error_mag = 0.02; // a tie with the later row: the earlier stays
-    CatalogRow second = offset(first, 0.3, 0.0);
-    second.file_index = 1;
-    second.source_id = 42;
-    second.parallax_mas = 100.2;
-    second.parallax_error_mas = 0.1;
-    second.pmra_mas_per_yr = 11.0;
-    second.ruwe = 1.3;
-    second.g_mag = 12.1;
-    second.g_error_mag = 0.03;
-    second.bp_mag = 13.2;
-    second.bp_error_mag = 0.05;
-    second.rp_mag = 11.1;
-    second.j_mag = 9.0; // only here: taken
-    second.j_error_mag = 0.02;
-    second.literature_status = starcensus::photometry::LiteratureTypeStatus::Parsed;
-    second.literature_code = 68.0;
-    second.literature_class = starcensus::photometry::StellarClass::M;
+    using starcensus::photometry::LiteratureTypeStatus;
+    // Bands: G better in the first row; BP with an error only in the second; RP with an error only in
+    // the first; H a tie (the earlier stays); J only in the second.
+    const CatalogRow first{.ra_deg = 10.0,
+                           .dec_deg = 20.0,
+                           .parallax_mas = 100.0,
+                           .parallax_error_mas = 0.5,
+                           .pmra_mas_per_yr = 10.0,
+                           .g_mag = 12.0,
+                           .bp_mag = 13.0,
+                           .rp_mag = 11.0,
+                           .g_error_mag = 0.01,
+                           .rp_error_mag = 0.02,
+                           .h_mag = 8.5,
+                           .ruwe = 1.0,
+                           .h_error_mag = 0.03};
+    const CatalogRow nearby = offset(first, 0.3, 0.0);
+    const CatalogRow second{.source_id = 42,
+                            .ra_deg = nearby.ra_deg,
+                            .dec_deg = nearby.dec_deg,
+                            .parallax_mas = 100.2,
+                            .parallax_error_mas = 0.1,
+                            .pmra_mas_per_yr = 11.0,
+                            .g_mag = 12.1,
+                            .bp_mag = 13.2,
+                            .rp_mag = 11.1,
+                            .g_error_mag = 0.03,
+                            .bp_error_mag = 0.05,
+                            .j_mag = 9.0,
+                            .h_mag = 8.6,
+                            .ruwe = 1.3,
+                            .j_error_mag = 0.02,
+                            .h_error_mag = 0.03,
+                            .literature_code = 68.0,
+                            .literature_class = starcensus::photometry::StellarClass::M,
+                            .literature_status = LiteratureTypeStatus::Parsed,
+                            .file_index = 1};
     const MergedCatalog merged = mergeCatalogRows({second, first}, {});
     REQUIRE(merged.rows.size() == 1);
     const CatalogRow& row = merged.rows[0];
@@ -117,10 +129,11 @@ TEST_CASE("each quantity with an error comes, with its error, from the row that 
     CHECK(row.g_error_mag == 0.01);
     CHECK(row.bp_mag == 13.2);
     CHECK(row.bp_error_mag == 0.05);
-    CHECK(row.rp_mag == 11.0); // the later rp has no error: the earlier one with an error stays
+    CHECK(row.rp_mag == 11.0); // the later RP has no error: the earlier one with an error stays
+    CHECK(row.h_mag == 8.5);   // equal errors: the earlier row
     CHECK(row.j_mag == 9.0);
     CHECK(row.j_error_mag == 0.02);
-    CHECK(row.literature_status == starcensus::photometry::LiteratureTypeStatus::Parsed);
+    CHECK(row.literature_status == LiteratureTypeStatus::Parsed);
     CHECK(row.literature_code == 68.0);
     CHECK(merged.report.positional_merges == 1);
     REQUIRE(merged.report.links.size() == 1);
