@@ -213,11 +213,15 @@ std::vector<CandidatePair> positionalPairs(const std::vector<CatalogRow>& rows,
                                            std::int64_t& refused_by_parallax) {
     const double radius_rad = settings.match_radius_arcsec / kArcsecPerRadian;
     const auto grid = neighbourGrid(radius_rad);
-    // Objects sorted by pixel: a disc query's pixel ranges become ranges of this list.
-    std::vector<std::pair<std::int64_t, std::uint32_t>> by_pixel(object_rows.size());
+    // Objects sorted by pixel: a disc query's pixel ranges become ranges of this list. Objects without a
+    // position (NaN ra or dec) are left out: they match nothing.
+    std::vector<std::pair<std::int64_t, std::uint32_t>> by_pixel;
+    by_pixel.reserve(object_rows.size());
     for (std::size_t i = 0; i < object_rows.size(); ++i) {
-        by_pixel[i] = {grid.vec2pix(vec3(positions[i].x, positions[i].y, positions[i].z)),
-                       static_cast<std::uint32_t>(i)};
+        const UnitVector& u = positions[i];
+        if (std::isfinite(u.x) && std::isfinite(u.y) && std::isfinite(u.z)) {
+            by_pixel.emplace_back(grid.vec2pix(vec3(u.x, u.y, u.z)), static_cast<std::uint32_t>(i));
+        }
     }
     std::sort(by_pixel.begin(), by_pixel.end());
     const unsigned workers = resolveThreadCount(threads);

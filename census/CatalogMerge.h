@@ -70,8 +70,8 @@ struct MergedCatalog {
 /// - the same non-missing source_id: one object, within a file or across files;
 /// - positional: objects from different files within match_radius_arcsec at match_epoch_yr, with
 ///   consistent parallaxes (rows without a parallax or its error skip this test), joined nearest pair
-///   first; an object never takes two rows of one file, so the resolved components of a binary stay
-///   two objects;
+///   first (rows without ra or dec take no part); an object never takes two rows of one file, so the resolved
+///   components of a binary stay two objects;
 /// - each quantity with an error (parallax; each band) comes, with its error, from the row with the
 ///   smaller error (a value with an error beats one without; ties and values without errors: the earlier
 ///   row); ra, dec, pmra, pmdec and ruwe belong to one astrometric solution and travel with the

@@ -166,6 +166,17 @@ TEST_CASE("rows of one file are never merged by position, however close") {
     CHECK(merged.report.positional_merges == 0);
 }
 
+TEST_CASE("rows without a position merge by source_id only") {
+    const CatalogRow placed = star(0, 0, kMissingSourceId, 10.0, 20.0);
+    const CatalogRow lost = star(1, 0, kMissingSourceId, starcensus::photometry::kMissing, 20.0);
+    CHECK(mergeCatalogRows({placed, lost}, {}).rows.size() == 2);
+    const CatalogRow lost_with_id = star(1, 1, 5, starcensus::photometry::kMissing, 20.0);
+    const CatalogRow same_id = star(2, 0, 5, starcensus::photometry::kMissing, 20.0);
+    const MergedCatalog merged = mergeCatalogRows({placed, lost_with_id, same_id}, {});
+    CHECK(merged.rows.size() == 2);
+    CHECK(merged.report.source_id_merges == 1);
+}
+
 TEST_CASE("a positional match needs parallaxes consistent within k combined errors") {
     const CatalogRow near = star(0, 0, kMissingSourceId, 10.0, 20.0, 100.0, 0.5);
     // 50 mas against 100 mas: a background star 0.5 arcsec away, 70 sigma off.
