@@ -283,7 +283,7 @@ std::string mergeSection(const nlohmann::json& provenance) {
         << jsonCell(provenance.value("match_epoch_yr", nlohmann::json())) << "); "
         << count("pairs_refused_by_parallax")
         << " close pairs from different files kept apart by inconsistent parallaxes.</p>\n";
-    HtmlTable table({"file", "file", "merged by source_id", "merged by position"});
+    HtmlTable table({"file A", "file B", "rows merged by source_id", "objects merged by position"});
     for (const auto& pair : merges.value("file_pairs", nlohmann::json::array())) {
         table.row({"<code>" + escapeHtml(pair.value("file_a", "")) + "</code>",
                    "<code>" + escapeHtml(pair.value("file_b", "")) + "</code>",

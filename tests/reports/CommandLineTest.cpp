@@ -148,6 +148,89 @@ TEST_CASE("a mock run end to end: simulate, inspect and run exit 0 and write com
     CHECK(std::filesystem::is_regular_file(dir / "lean" / "report.html"));
 }
 
+TEST_CASE("overlapping inputs count each star once: the same file twice, and a mock split in two") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-merge");
+    const auto& dir = scratch.path();
+    starcensus::census::mock::MockSettings mock_settings;
+    mock_settings.radius_max_pc = 12.0;
+    const auto mock = starcensus::census::mock::simulateNeighbourhood(mock_settings, 3);
+    const std::span<const starcensus::photometry::CatalogRow> catalog(mock.catalog);
+    writeCsvCatalog(dir / "full.csv", catalog, true);
+    const std::string run_options =
+        " --radius 5,10 --draws 200 --no-report --no-hosts --lf-fit none --checksum none";
+    REQUIRE(runStarcensus("run full.csv" + run_options + " --out once", dir).exit_code == 0);
+    const std::string fractions_once = fileText(dir / "once" / "fractions.csv");
+    const auto provenance_once = jsonFile(dir / "once" / "provenance.json");
+    const auto candidates = provenance_once["merges"]["rows_out"].get<std::int64_t>();
+    CHECK(provenance_once["merges"]["rows_in"] == candidates); // nothing to merge in one mock
+    CHECK(provenance_once["merges"]["by_position"] == 0);
+
+    // The same file twice, once through a "./" detour: read once, one warning line.
+    const Outcome twice = runStarcensus("run full.csv ./full.csv" + run_options + " --out twice", dir);
+    REQUIRE(twice.exit_code == 0);
+    CHECK(twice.stderr_text ==
+          "starcensus: warning: ./full.csv: the same file as full.csv, given earlier; read once\n");
+    CHECK(fileText(dir / "twice" / "fractions.csv") == fractions_once);
+
+    // A copy under another name is another file: every row comes back by its source_id.
+    std::filesystem::copy_file(dir / "full.csv", dir / "copy.csv");
+    REQUIRE(runStarcensus("run full.csv copy.csv" + run_options + " --out copy", dir).exit_code == 0);
+    CHECK(fileText(dir / "copy" / "fractions.csv") == fractions_once);
+    const auto copy_merges = jsonFile(dir / "copy" / "provenance.json")["merges"];
+    CHECK(copy_merges["by_source_id"] == candidates);
+    CHECK(copy_merges["by_position"] == 0);
+    CHECK(copy_merges["rows_out"] == candidates);
+
+    // Split in two overlapping thirds: rows [0, 2n/3) as they are; rows [n/3, n) at J2000.0 (positions
+    // moved back with their proper motions), without source_id. Injection and recovery: the merged run
+    // gives the single-file fractions.
+    const std::size_t n = catalog.size();
+    writeCsvCatalog(dir / "near.csv", catalog.first(2 * n / 3), true);
+    std::vector<starcensus::photometry::CatalogRow> older(
+        catalog.begin() + static_cast<std::ptrdiff_t>(n / 3), catalog.end());
+    for (auto& row : older) {
+        const auto moved = starcensus::census::positionAtEpoch(row, 2016.0, 2000.0);
+        row.ra_deg = moved.ra_deg;
+        row.dec_deg = moved.dec_deg;
+    }
+    writeCsvCatalog(dir / "far_j2000.csv", older, false);
+    const Outcome split = runStarcensus(
+        "run near.csv far_j2000.csv --file-epoch far_j2000.csv=2000" + run_options + " --out split", dir);
+    REQUIRE(split.exit_code == 0);
+    CHECK(split.stderr_text.empty());
+    CHECK(fileText(dir / "split" / "fractions.csv") == fractions_once);
+    const auto split_merges = jsonFile(dir / "split" / "provenance.json")["merges"];
+    CHECK(split_merges["rows_out"] == candidates);
+    CHECK(split_merges["by_source_id"] == 0);
+    CHECK(split_merges["by_position"].get<std::int64_t>() > 0);
+    CHECK(split_merges["rows_in"].get<std::int64_t>() - split_merges["by_position"].get<std::int64_t>() ==
+          candidates);
+    REQUIRE(split_merges["file_pairs"].size() == 1);
+    CHECK(split_merges["file_pairs"][0]["by_position"] == split_merges["by_position"]);
+    MESSAGE("split mock: " << split_merges.dump());
+    // The same through the INI file (value "FILE=YEAR" after the first '=').
+    {
+        std::ofstream ini(dir / "merge.ini");
+        ini << "file-epoch = far_j2000.csv=2000\nmatch-radius = 2\n";
+    }
+    REQUIRE(
+        runStarcensus("run near.csv far_j2000.csv --config merge.ini" + run_options + " --out split_ini", dir)
+            .exit_code == 0);
+    CHECK(fileText(dir / "split_ini" / "fractions.csv") == fractions_once);
+    // Without the epoch the fast movers are missed and counted twice.
+    REQUIRE(runStarcensus("run near.csv far_j2000.csv" + run_options + " --out no_epoch", dir).exit_code ==
+            0);
+    const auto no_epoch_merges = jsonFile(dir / "no_epoch" / "provenance.json")["merges"];
+    MESSAGE("split mock without --file-epoch: " << no_epoch_merges.dump());
+    CHECK(no_epoch_merges["rows_out"].get<std::int64_t>() > candidates);
+    // A --file-epoch naming no input is a user error.
+    const Outcome unknown =
+        runStarcensus("run near.csv --file-epoch other.csv=2000" + run_options + " --out bad", dir);
+    CHECK(unknown.exit_code == 2);
+    CHECK(unknown.stderr_text == "starcensus: error: --file-epoch other.csv: not one of the input files\n");
+    CHECK_FALSE(directoryHasFiles(dir / "bad"));
+}
+
 TEST_CASE("published spectral types: compared with the photometric classes, and used for the class") {
     // CARMENES input catalogue IX (Cifuentes et al., arXiv:2412.12264; tests/reference/): 2634 M dwarfs
     // and their companions, each with a literature spectral type (column SpT, found by name), Gaia DR3
@@ -211,79 +294,4 @@ TEST_CASE("published spectral types: compared with the photometric classes, and 
     CHECK(
         runStarcensus("run '" + table + "'" + lean + " --spectral-types maybe --out bad", dir).stderr_text ==
         "starcensus: error: --spectral-types: 'maybe' is not one of use, check, ignore\n");
-
-    TEST_CASE("overlapping inputs count each star once: the same file twice, and a mock split in two") {
-        const starcensus::testing::ScratchDirectory scratch("starcensus-cli-merge");
-        const auto& dir = scratch.path();
-        starcensus::census::mock::MockSettings mock_settings;
-        mock_settings.radius_max_pc = 12.0;
-        const auto mock = starcensus::census::mock::simulateNeighbourhood(mock_settings, 3);
-        const std::span<const starcensus::photometry::CatalogRow> catalog(mock.catalog);
-        writeCsvCatalog(dir / "full.csv", catalog, true);
-        const std::string run_options =
-            " --radius 5,10 --draws 200 --no-report --no-hosts --lf-fit none --checksum none";
-        REQUIRE(runStarcensus("run full.csv" + run_options + " --out once", dir).exit_code == 0);
-        const std::string fractions_once = fileText(dir / "once" / "fractions.csv");
-        const auto provenance_once = jsonFile(dir / "once" / "provenance.json");
-        const auto candidates = provenance_once["merges"]["rows_out"].get<std::int64_t>();
-        CHECK(provenance_once["merges"]["rows_in"] == candidates); // nothing to merge in one mock
-        CHECK(provenance_once["merges"]["by_position"] == 0);
-
-        // The same file twice, once through a "./" detour: read once, one warning line.
-        const Outcome twice = runStarcensus("run full.csv ./full.csv" + run_options + " --out twice", dir);
-        REQUIRE(twice.exit_code == 0);
-        CHECK(twice.stderr_text ==
-              "starcensus: warning: ./full.csv: the same file as full.csv, given earlier; read once\n");
-        CHECK(fileText(dir / "twice" / "fractions.csv") == fractions_once);
-
-        // A copy under another name is another file: every row comes back by its source_id.
-        std::filesystem::copy_file(dir / "full.csv", dir / "copy.csv");
-        REQUIRE(runStarcensus("run full.csv copy.csv" + run_options + " --out copy", dir).exit_code == 0);
-        CHECK(fileText(dir / "copy" / "fractions.csv") == fractions_once);
-        const auto copy_merges = jsonFile(dir / "copy" / "provenance.json")["merges"];
-        CHECK(copy_merges["by_source_id"] == candidates);
-        CHECK(copy_merges["by_position"] == 0);
-        CHECK(copy_merges["rows_out"] == candidates);
-
-        // Split in two overlapping thirds: rows [0, 2n/3) as they are; rows [n/3, n) at J2000.0 (positions
-        // moved back with their proper motions), without source_id. Injection and recovery: the merged run
-        // gives the single-file fractions.
-        const std::size_t n = catalog.size();
-        writeCsvCatalog(dir / "near.csv", catalog.first(2 * n / 3), true);
-        std::vector<starcensus::photometry::CatalogRow> older(
-            catalog.begin() + static_cast<std::ptrdiff_t>(n / 3), catalog.end());
-        for (auto& row : older) {
-            const auto moved = starcensus::census::positionAtEpoch(row, 2016.0, 2000.0);
-            row.ra_deg = moved.ra_deg;
-            row.dec_deg = moved.dec_deg;
-        }
-        writeCsvCatalog(dir / "far_j2000.csv", older, false);
-        const Outcome split = runStarcensus(
-            "run near.csv far_j2000.csv --file-epoch far_j2000.csv=2000" + run_options + " --out split", dir);
-        REQUIRE(split.exit_code == 0);
-        CHECK(split.stderr_text.empty());
-        CHECK(fileText(dir / "split" / "fractions.csv") == fractions_once);
-        const auto split_merges = jsonFile(dir / "split" / "provenance.json")["merges"];
-        CHECK(split_merges["rows_out"] == candidates);
-        CHECK(split_merges["by_source_id"] == 0);
-        CHECK(split_merges["by_position"].get<std::int64_t>() > 0);
-        CHECK(split_merges["rows_in"].get<std::int64_t>() - split_merges["by_position"].get<std::int64_t>() ==
-              candidates);
-        REQUIRE(split_merges["file_pairs"].size() == 1);
-        CHECK(split_merges["file_pairs"][0]["by_position"] == split_merges["by_position"]);
-        MESSAGE("split mock: " << split_merges.dump());
-        // Without the epoch the fast movers are missed and counted twice.
-        REQUIRE(
-            runStarcensus("run near.csv far_j2000.csv" + run_options + " --out no_epoch", dir).exit_code ==
-            0);
-        const auto no_epoch_merges = jsonFile(dir / "no_epoch" / "provenance.json")["merges"];
-        MESSAGE("split mock without --file-epoch: " << no_epoch_merges.dump());
-        CHECK(no_epoch_merges["rows_out"].get<std::int64_t>() > candidates);
-        // A --file-epoch naming no input is a user error.
-        const Outcome unknown =
-            runStarcensus("run near.csv --file-epoch other.csv=2000" + run_options + " --out bad", dir);
-        CHECK(unknown.exit_code == 2);
-        CHECK(unknown.stderr_text ==
-              "starcensus: error: --file-epoch other.csv: not one of the input files\n");
-        CHECK_FALSE(directoryHasFiles(dir / "bad"));
-    }
+}
