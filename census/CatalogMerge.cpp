@@ -191,7 +191,7 @@ struct CandidatePair {
 };
 
 /// HEALPix RING order whose pixels are about the match radius across, so a disc query returns a few
-/// pixels (Gorski et al. 2005, ApJ 622, 759: pixel size ~ 58.6 deg / nside).
+/// pixels (Gorski et al. 2005, ApJ 622, 759: pixel size ~ 58.6 deg / nside; from memory).
 T_Healpix_Base<std::int64_t> neighbourGrid(double radius_rad) {
     int order = T_Healpix_Base<std::int64_t>::order_max;
     while (order > 0 && T_Healpix_Base<std::int64_t>(order, RING).max_pixrad() < radius_rad) {
@@ -317,7 +317,8 @@ SkyPosition positionAtEpoch(const CatalogRow& row, double from_epoch_yr, double 
     }
     // Straight-line space motion with zero radial velocity: the direction u + t (pmra p + pmdec q),
     // normalised, with p and q the unit vectors towards east and north (ESA 1997, The Hipparcos and
-    // Tycho Catalogues, vol. 1, sec. 1.5.5, without the radial term). Distance cancels.
+    // Tycho Catalogues, vol. 1, sec. 1.5.5, without the radial term; from memory). Distance cancels.
+    // Checked against astropy's apply_space_motion in tests/census/CatalogMergeTest.cpp.
     const double ra = row.ra_deg * kRadiansPerDegree;
     const double dec = row.dec_deg * kRadiansPerDegree;
     const UnitVector u = unitVector(position);

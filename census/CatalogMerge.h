@@ -12,7 +12,7 @@
 namespace starcensus::census {
 
 /// Gaia DR3's reference epoch (Julian year): positions of a Gaia DR3 query are at J2016.0 (Lindegren
-/// et al. 2021, A&A 649, A2, sec. 1).
+/// et al. 2021, A&A 649, A2; from memory).
 inline constexpr double kGaiaDr3EpochYr = 2016.0;
 
 struct CatalogMergeSettings {
