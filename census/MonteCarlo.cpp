@@ -37,11 +37,30 @@ float finiteOrZero(double value) {
     return std::isfinite(value) ? static_cast<float>(value) : 0.0f;
 }
 
+/// True when the (BP-RP, M_G) grid would give a star with colours another class than sample.fits: its exact
+/// class uses (or nearly uses) the near infrared, which the grid does not see, or differs from its cell's.
+bool misnamedByGrid(const photometry::CatalogRow& row, const photometry::Classifier& classifier,
+                    const photometry::ClassGrid* grid, const RowClassRules& rules) {
+    if (grid == nullptr) {
+        return false;
+    }
+    const photometry::Classification exact = classifyRowPhotometry(row, classifier, rules);
+    constexpr double kInfraredReachMag = 1.0; // M_G margin below the late-type threshold
+    const bool has_infrared = !std::isnan(row.j_mag - row.ks_mag) || !std::isnan(row.w1_mag - row.w2_mag);
+    const bool infrared =
+        hasFlag(exact.flags, photometry::ClassificationFlag::NearInfrared) ||
+        (has_infrared && exact.abs_g_mag > classifier.settings().late_type_abs_g_mag - kInfraredReachMag);
+    const photometry::Category cell =
+        grid->lookup(static_cast<float>(exact.bp_rp_mag), static_cast<float>(exact.abs_g_mag));
+    return infrared || photometry::classOfCategory(cell) != exact.stellar_class;
+}
+
 } // namespace
 
 PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
                                const MembershipSettings& membership, const RowClassRules& rules,
-                               unsigned threads, const photometry::Classifier* classifier)
+                               unsigned threads, const photometry::Classifier* classifier,
+                               const photometry::ClassGrid* grid)
     : radii_pc_(std::move(radii_pc)) {
     const std::size_t n = rows.size();
     g_mag_.resize(n);
@@ -52,7 +71,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     modulus_quantiles_.resize(n * kQuantiles);
     fixed_categories_.assign(n, kDrawnCategory);
     if (classifier != nullptr) {
-        colourless_categories_.resize(n * kQuantiles);
+        quantile_categories_.resize(n * kQuantiles);
         quantile_classified_.resize(n);
     }
     forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
@@ -83,14 +102,14 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
                       posterior.distanceModulusQuantiles().end(),
                       modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
             if (classifier != nullptr && fixed_categories_[s] == kDrawnCategory &&
-                std::isnan(colour_mag_[s])) {
+                (std::isnan(colour_mag_[s]) || misnamedByGrid(row, *classifier, grid, rules))) {
                 quantile_classified_[s] = 1;
                 for (std::size_t k = 0; k < kQuantiles; ++k) {
                     // The row's bands as sample.fits uses them (photometricInput), at this distance.
                     photometry::PhotometricInput input = photometry::photometricInput(row);
                     input.distance_modulus_mag = posterior.distanceModulusQuantiles()[k];
                     const auto result = classifier->classify(input);
-                    colourless_categories_[s * kQuantiles + k] = photometry::censusCategory(result);
+                    quantile_categories_[s * kQuantiles + k] = photometry::censusCategory(result);
                 }
             }
         }
@@ -180,14 +199,14 @@ class SampleDrawer {
             const float colour_error = sample_.colour_error_mag_[s];
             const bool has_colour = std::isfinite(colour);
             const bool has_magnitude = std::isfinite(g);
-            const photometry::Category* colourless =
+            const photometry::Category* tabulated =
                 sample_.quantile_classified_.empty() || sample_.quantile_classified_[s] == 0
                     ? nullptr
-                    : &sample_.colourless_categories_[s * PreparedSample::kQuantiles];
+                    : &sample_.quantile_categories_[s * PreparedSample::kQuantiles];
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
             const auto draws = static_cast<std::size_t>(settings_.draws);
             const photometry::Category fixed = sample_.fixed_categories_[s];
-            if (const auto category = certainCategory(s, quantiles, within, colourless, fixed)) {
+            if (const auto category = certainCategory(s, quantiles, within, tabulated, fixed)) {
                 // Every draw gives this category, and each radius counts the star in every draw or in
                 // none: the tallies follow without drawing (the same numbers the loop below would give).
                 for (std::size_t r = 0; r < radii; ++r) {
@@ -214,12 +233,12 @@ class SampleDrawer {
                 photometry::Category assigned = kUnclassified;
                 if (fixed != PreparedSample::kDrawnCategory) {
                     assigned = fixed;
+                } else if (tabulated != nullptr) {
+                    assigned = tabulated[static_cast<int>(position + 0.5f)];
                 } else if (has_colour && has_magnitude) {
                     const float drawn_colour =
                         colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
                     assigned = classes_.lookup(drawn_colour, abs_g);
-                } else if (colourless != nullptr) {
-                    assigned = colourless[static_cast<int>(position + 0.5f)];
                 } else if (has_magnitude) {
                     assigned = classes_.lookupMagnitudeOnly(abs_g);
                 }
@@ -239,7 +258,7 @@ class SampleDrawer {
     /// distance quantiles, normal deviates up to FastNormal's largest) inside cells of one category.
     std::optional<photometry::Category> certainCategory(std::size_t s, const float* quantiles,
                                                         const float* within,
-                                                        const photometry::Category* colourless,
+                                                        const photometry::Category* tabulated,
                                                         photometry::Category fixed) const {
         for (std::size_t r = 0; r < sample_.radii_pc_.size(); ++r) {
             if (within[r] > 0.0f && within[r] < 1.0f) {
@@ -249,10 +268,10 @@ class SampleDrawer {
         if (fixed != PreparedSample::kDrawnCategory) {
             return fixed;
         }
-        if (colourless != nullptr) {
-            const bool same = std::all_of(colourless, colourless + PreparedSample::kQuantiles,
-                                          [&](photometry::Category c) { return c == colourless[0]; });
-            return same ? std::optional(colourless[0]) : std::nullopt;
+        if (tabulated != nullptr) {
+            const bool same = std::all_of(tabulated, tabulated + PreparedSample::kQuantiles,
+                                          [&](photometry::Category c) { return c == tabulated[0]; });
+            return same ? std::optional(tabulated[0]) : std::nullopt;
         }
         const float g = sample_.g_mag_[s];
         if (!std::isfinite(g)) {

@@ -42,13 +42,17 @@ class PreparedSample {
     /// low-S/N unclassified category), rows with no band the classifier can place (no photometry,
     /// photometry::hasClassifiableBands), and, with a classifier,
     /// rows whose class comes from their literature spectral type (RowClassification.h).
-    /// Stars without BP-RP are classified from M_G, G-RP and the near infrared, which the (BP-RP, M_G)
-    /// grid cannot see: with a classifier, their category is tabulated once at every distance quantile
-    /// (exact classifier; their small G noise is neglected beside the distance spread). Without one, the
-    /// grid's M_G-only table is used.
+    /// Stars without BP-RP are classified from M_G, G-RP, V-Ks and the near infrared, which the
+    /// (BP-RP, M_G) grid cannot see: with a classifier, their category is tabulated once at every distance
+    /// quantile (exact classifier; their photometric noise is neglected beside the distance spread).
+    /// Without one, the grid's M_G-only table is used. With the grid as well, so are stars with BP-RP that
+    /// the grid would misname: those whose exact class at the catalogue parallax uses the near infrared
+    /// (or is within 1 mag of the M_G where it starts to), or differs from the class of their grid cell
+    /// (stars on a class boundary, where the cell's centre can lie on the other side).
     PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
                    const MembershipSettings& membership, const RowClassRules& rules, unsigned threads,
-                   const photometry::Classifier* classifier = nullptr);
+                   const photometry::Classifier* classifier = nullptr,
+                   const photometry::ClassGrid* grid = nullptr);
 
     std::size_t size() const { return g_mag_.size(); }
     const std::vector<double>& radii() const { return radii_pc_; }
@@ -68,10 +72,10 @@ class PreparedSample {
     std::vector<float> colour_error_mag_;
     std::vector<float> probability_within_; // [star][radius]
     std::vector<float> modulus_quantiles_;  // [star][kQuantiles], distance modulus (mag)
-    // [star][kQuantiles]: category at each quantile for stars without BP-RP; empty without a classifier
-    std::vector<photometry::Category> colourless_categories_;
-    // 1 where colourless_categories_ holds the star's classes: classifiable (parallax S/N), no BP-RP, with
-    // or without G (a brown dwarf seen only in the near infrared is classified as sample.fits has it)
+    // [star][kQuantiles]: the exact classifier's category at each distance quantile, for the stars the
+    // (BP-RP, M_G) grid cannot stand for; empty without a classifier
+    std::vector<photometry::Category> quantile_categories_;
+    // 1 where quantile_categories_ holds the star's classes (see the constructor)
     std::vector<std::uint8_t> quantile_classified_;
     // [star]: the category of every draw, or kDrawnCategory where the draws decide it
     std::vector<photometry::Category> fixed_categories_;

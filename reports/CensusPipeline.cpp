@@ -193,14 +193,14 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     start = Clock::now();
     progress.begin("posteriors");
     const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     const census::RowClassRules class_rules = census::rowClassRules(census);
     const census::PreparedSample sample(rows, census.radii_pc, census.membership, class_rules,
-                                        census.draws.threads, &classifier);
+                                        census.draws.threads, &classifier, &grid);
     result.timings.posteriors_s = secondsSince(start);
 
     start = Clock::now();
     progress.begin("draws");
-    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     ProgressCounters draw_progress;
     census::DrawSettings draw_settings = census.draws;
     draw_settings.progress = &draw_progress;
