@@ -6,6 +6,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <numbers>
 
 namespace starcensus::reports {
@@ -79,6 +80,40 @@ ProjectedPoint hammerAitoff(double l_deg, double b_deg) {
     const double x = 2.0 * std::numbers::sqrt2 * std::cos(phi) * std::sin(lambda / 2.0) / z;
     const double y = std::numbers::sqrt2 * std::sin(phi) / z;
     return {-x, y};
+}
+
+std::optional<GalacticPosition> inverseHammerAitoff(ProjectedPoint point) {
+    const double x = -point.x; // the projection's own orientation (l increasing to the right)
+    const double y = point.y;
+    const double ellipse = x * x / 8.0 + y * y / 2.0;
+    if (ellipse > 1.0) {
+        return std::nullopt;
+    }
+    const double z = std::sqrt(1.0 - ellipse / 2.0); // sqrt(1 - (x/4)^2 - (y/2)^2), at least sqrt(1/2)
+    const double lambda = 2.0 * std::atan2(z * x, 2.0 * (2.0 * z * z - 1.0));
+    return GalacticPosition{lambda / kDegree, std::asin(std::clamp(z * y, -1.0, 1.0)) / kDegree};
+}
+
+std::vector<double> projectedPixelCounts(const census::PixelCounts& counts, const GridAxes& axes) {
+    const Healpix_Base base = ringBase(counts.nside);
+    std::vector<double> image(static_cast<std::size_t>(axes.nx) * static_cast<std::size_t>(axes.ny),
+                              std::numeric_limits<double>::quiet_NaN());
+    const double cell_x = (axes.x_max - axes.x_min) / axes.nx;
+    const double cell_y = (axes.y_max - axes.y_min) / axes.ny;
+    for (int ix = 0; ix < axes.nx; ++ix) {
+        for (int iy = 0; iy < axes.ny; ++iy) {
+            const auto position =
+                inverseHammerAitoff({axes.x_min + (ix + 0.5) * cell_x, axes.y_min + (iy + 0.5) * cell_y});
+            if (position) {
+                const pointing direction((90.0 - position->b_deg) * kDegree,
+                                         wrapDegrees360(position->l_deg) * kDegree);
+                image[static_cast<std::size_t>(ix) * static_cast<std::size_t>(axes.ny) +
+                      static_cast<std::size_t>(iy)] =
+                    static_cast<double>(counts.counts[static_cast<std::size_t>(base.ang2pix(direction))]);
+            }
+        }
+    }
+    return image;
 }
 
 std::vector<std::vector<ProjectedPoint>> projectedPixelOutline(int nside, int pixel, int points_per_edge) {
