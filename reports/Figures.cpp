@@ -14,6 +14,7 @@
 #include <functional>
 #include <limits>
 #include <map>
+#include <optional>
 #include <ostream>
 #include <sstream>
 
@@ -266,31 +267,99 @@ double logOrNaN(double value) {
 
 // ---- the figures ----------------------------------------------------------------------------------
 
+// Viridis anchors (van der Walt & Smith 2015, matplotlib's "viridis"; values from memory).
+void setSequentialColourMap() {
+    const std::array<PLFLT, 5> position = {0.0, 0.25, 0.5, 0.75, 1.0};
+    const std::array<PLFLT, 5> red = {0x44 / 255.0, 0x3b / 255.0, 0x21 / 255.0, 0x5e / 255.0, 0xfd / 255.0};
+    const std::array<PLFLT, 5> green = {0x01 / 255.0, 0x52 / 255.0, 0x91 / 255.0, 0xc9 / 255.0, 0xe7 / 255.0};
+    const std::array<PLFLT, 5> blue = {0x54 / 255.0, 0x8b / 255.0, 0x8c / 255.0, 0x62 / 255.0, 0x25 / 255.0};
+    plscmap1l(1, 5, position.data(), red.data(), green.data(), blue.data(), nullptr);
+}
+
+/// The range of the values a count image shows (log10 of the counts on a log scale).
+struct CountRange {
+    double low = 0.0;
+    double high = 1.0;
+};
+
+/// Counts per cell (x-major, as DensityGrid) as one image on the viridis scale, of log10(count) when
+/// `log_scale`; cells with at most `blank_at_most` stars (or NaN) are left blank (-1: none). PLplot's Cairo
+/// devices embed an image as one raster (a PNG inside the SVG and PDF), so the files do not grow with the
+/// number of stars or cells.
+CountRange drawCountImage(const std::vector<double>& counts, const GridAxes& axes, double blank_at_most,
+                          bool log_scale) {
+    const auto scaled = [&](double count) { return log_scale ? std::log10(count) : count; };
+    CountRange range{scaled(blank_at_most + 1.0), scaled(blank_at_most + 1.0)};
+    std::vector<PLFLT> values(counts.size(), kNaN);
+    for (std::size_t i = 0; i < counts.size(); ++i) {
+        if (counts[i] > blank_at_most) {
+            values[i] = scaled(counts[i]);
+            range.high = std::max(range.high, values[i]);
+        }
+    }
+    // A visible scale even when every cell is alike.
+    range.high = std::max(range.high, range.low + (log_scale ? 0.5 : 1.0));
+    std::vector<const PLFLT*> columns;
+    for (int ix = 0; ix < axes.nx; ++ix) {
+        columns.push_back(values.data() + static_cast<std::size_t>(ix) * static_cast<std::size_t>(axes.ny));
+    }
+    setSequentialColourMap();
+    plimage(columns.data(), axes.nx, axes.ny, axes.x_min, axes.x_max, axes.y_min, axes.y_max, range.low,
+            range.high, axes.x_min, axes.x_max, axes.y_min, axes.y_max);
+    return range;
+}
+
+/// A horizontal colour bar for counts from `low` to `high` (log10 of them when `log_scale`, labelled as
+/// counts), below the viewport or inside its top-right corner.
+void drawCountBar(const CountRange& range, const char* label, bool log_scale, bool inside_top_right) {
+    const std::string axis = std::string("bcnst") + (log_scale ? "l" : "");
+    const char* axis_options[] = {axis.c_str()};
+    const char* labels[] = {label};
+    PLINT label_options[] = {PL_COLORBAR_LABEL_BOTTOM};
+    PLFLT ticks[] = {0.0};
+    PLINT sub_ticks[] = {0};
+    PLINT value_counts[] = {2};
+    const PLFLT values_range[] = {range.low, range.high};
+    const PLFLT* values[] = {values_range};
+    PLFLT width = 0.0;
+    PLFLT height = 0.0;
+    plschr(0.0, 0.7);
+    const PLINT position =
+        inside_top_right ? PL_POSITION_RIGHT | PL_POSITION_TOP | PL_POSITION_INSIDE | PL_POSITION_VIEWPORT
+                         : PL_POSITION_BOTTOM | PL_POSITION_OUTSIDE | PL_POSITION_VIEWPORT;
+    plcolorbar(&width, &height,
+               PL_COLORBAR_GRADIENT | PL_COLORBAR_BOUNDING_BOX | PL_COLORBAR_BACKGROUND |
+                   PL_COLORBAR_ORIENT_RIGHT,
+               position, inside_top_right ? 0.04 : 0.0, 0.04, inside_top_right ? 0.3 : 0.5, 0.025, kWhite,
+               kBlack, 1, 0.0, 0.0, kBlack, 1.0, 1, label_options, labels, 1, axis_options, ticks, sub_ticks,
+               value_counts, values);
+    plschr(0.0, 0.95);
+}
+
 FigureOutput colourMagnitudeFigure(const ReportInputs& inputs, const ReportAnalysis& analysis,
                                    const std::filesystem::path& directory) {
     const SampleColumns& sample = inputs.sample;
+    const auto& grid = analysis.cmd_grid;
+    const auto& axes = grid.axes;
+    const bool density = analysis.cmd_density_form;
+    const auto outliers_at_most = analysis.density.max_outliers_per_cell;
+    // Markers per class: every star, or in the density form the stars of sparse cells only.
     std::map<std::string, std::pair<std::vector<PLFLT>, std::vector<PLFLT>>> by_class;
-    double x_min = -0.5;
-    double x_max = 4.0;
-    double y_min = 0.0;
-    double y_max = analysis.faint_limit_abs_g + 1.0;
-    std::size_t without_colour = 0;
-    for (const auto row : analysis.members) {
+    std::size_t markers = 0;
+    for (const auto row : analysis.cmd_rows) {
         const double colour = sample.bp_rp_mag[row];
         const double magnitude = sample.abs_g_mag[row];
-        if (!std::isfinite(colour) || !std::isfinite(magnitude)) {
-            ++without_colour;
-            continue;
+        if (density) {
+            const auto cell = grid.cellOf(colour, magnitude);
+            if (cell && grid.counts[*cell] > outliers_at_most) {
+                continue;
+            }
         }
         auto& points = by_class[sample.class_name[row]];
         points.first.push_back(colour);
         points.second.push_back(magnitude);
-        x_min = std::min(x_min, colour - 0.2);
-        x_max = std::max(x_max, colour + 0.2);
-        y_min = std::min(y_min, magnitude - 0.5);
-        y_max = std::max(y_max, magnitude + 0.5);
+        ++markers;
     }
-    x_max = std::min(x_max, 6.0);
     std::vector<PLFLT> locus_x;
     std::vector<PLFLT> locus_y;
     for (const auto& point : photometry::DwarfLocus::shipped().points()) {
@@ -312,9 +381,19 @@ FigureOutput colourMagnitudeFigure(const ReportInputs& inputs, const ReportAnaly
     const std::string limit_label = "G = " + formatNumber(analysis.faint_limit_g) + " at " +
                                     formatNumber(analysis.largest_radius_pc) + " pc";
     std::ostringstream caption;
+    caption << analysis.members.size() << " stars with membership probability ≥ "
+            << analysis.member_probability << " at " << analysis.largest_radius_pc << " pc";
+    if (density) {
+        caption << ": too many for one marker each, so the shading is the number of stars per cell of "
+                << formatNumber((axes.x_max - axes.x_min) / axes.nx, 2) << " mag in BP−RP by "
+                << formatNumber((axes.y_max - axes.y_min) / axes.ny, 2) << " mag in M_G (log scale), and the "
+                << markers << " stars of cells with at most " << outliers_at_most
+                << " stars are drawn as markers by class (exact classifier)";
+    } else {
+        caption << ", by class (exact classifier)";
+    }
     caption
-        << analysis.members.size() << " stars with membership probability ≥ " << analysis.member_probability
-        << " at " << analysis.largest_radius_pc << " pc, by class (exact classifier); " << without_colour
+        << "; " << analysis.cmd_without_colour
         << " of them have no BP−RP or M_G (e.g. brown dwarfs seen in the near infrared only) and are not "
         << "shown. Solid line: the "
         << "mean dwarf locus (Pecaut & Mamajek 2013); dashed: the DA white-dwarf cooling sequence at log g "
@@ -322,8 +401,17 @@ FigureOutput colourMagnitudeFigure(const ReportInputs& inputs, const ReportAnaly
         << " (M_G = " << formatNumber(analysis.faint_limit_abs_g)
         << "; source: " << analysis.faint_limit_source << ").";
     return renderFigure(directory, "cmd", "Colour–absolute-magnitude diagram", caption.str(), {}, [&] {
-        frame(x_min, x_max, y_max, y_min, "bcnst", "bcnstv", "G#dBP#u − G#dRP#u (mag)", "M#dG#u (mag)",
-              "Colour–absolute-magnitude diagram");
+        frame(axes.x_min, axes.x_max, axes.y_max, axes.y_min, "bcnst", "bcnstv", "G#dBP#u − G#dRP#u (mag)",
+              "M#dG#u (mag)", "Colour–absolute-magnitude diagram");
+        std::optional<CountRange> shaded;
+        if (density) {
+            // The window's y axis runs downwards (bright at the top); the image is placed in world
+            // coordinates, so it follows.
+            shaded = drawCountImage(std::vector<double>(grid.counts.begin(), grid.counts.end()), axes,
+                                    static_cast<double>(outliers_at_most), true);
+            plcol0(kBlack);
+            plbox("bcst", 0.0, 0, "bcst", 0.0, 0); // the ticks again, over the image
+        }
         std::vector<LegendEntry> legend;
         // The most numerous classes first, so rare ones stay visible on top.
         std::vector<std::pair<std::size_t, std::string>> order;
@@ -338,11 +426,15 @@ FigureOutput colourMagnitudeFigure(const ReportInputs& inputs, const ReportAnaly
         }
         drawLine(locus_x, locus_y, kBlack, 1);
         drawLine(white_dwarf_x, white_dwarf_y, kBlack, 2);
-        drawLine({x_min, x_max}, {analysis.faint_limit_abs_g, analysis.faint_limit_abs_g}, kVermillion, 3);
+        drawLine({axes.x_min, axes.x_max}, {analysis.faint_limit_abs_g, analysis.faint_limit_abs_g},
+                 kVermillion, 3);
         legend.push_back({"dwarf locus", {kBlack, ""}, false, 1});
         legend.push_back({"DA log g 8.0", {kBlack, ""}, false, 2});
         legend.push_back({limit_label, {kVermillion, ""}, false, 3});
         drawLegend(legend);
+        if (shaded) {
+            drawCountBar(*shaded, "stars per cell", true, true);
+        }
     });
 }
 
@@ -672,15 +764,6 @@ FigureOutput fractionsVersusRadiusFigure(const ReportInputs& inputs, const std::
     });
 }
 
-// Viridis anchors (van der Walt & Smith 2015, matplotlib's "viridis"; values from memory).
-void setSequentialColourMap() {
-    const std::array<PLFLT, 5> position = {0.0, 0.25, 0.5, 0.75, 1.0};
-    const std::array<PLFLT, 5> red = {0x44 / 255.0, 0x3b / 255.0, 0x21 / 255.0, 0x5e / 255.0, 0xfd / 255.0};
-    const std::array<PLFLT, 5> green = {0x01 / 255.0, 0x52 / 255.0, 0x91 / 255.0, 0xc9 / 255.0, 0xe7 / 255.0};
-    const std::array<PLFLT, 5> blue = {0x54 / 255.0, 0x8b / 255.0, 0x8c / 255.0, 0x62 / 255.0, 0x25 / 255.0};
-    plscmap1l(1, 5, position.data(), red.data(), green.data(), blue.data(), nullptr);
-}
-
 void drawGraticule() {
     for (int l = -180; l <= 180; l += 60) {
         std::vector<PLFLT> x, y;
@@ -716,30 +799,69 @@ void drawGraticule() {
 }
 
 void skyPanel(PLFLT y_low, PLFLT y_high, const std::string& title) {
-    const double half_width = 2.0 * std::numbers::sqrt2 + 0.1;
-    const double half_height = std::numbers::sqrt2 + 0.1;
+    const auto half = skyWindowHalfSize();
     plvpor(0.06, 0.94, y_low, y_high);
-    plwind(-half_width, half_width, -half_height, half_height);
-    plvpas(0.06, 0.94, y_low, y_high, half_height / half_width);
-    plwind(-half_width, half_width, -half_height, half_height);
+    plwind(-half.x, half.x, -half.y, half.y);
+    plvpas(0.06, 0.94, y_low, y_high, half.y / half.x);
+    plwind(-half.x, half.x, -half.y, half.y);
     plcol0(kBlack);
     plmtex("t", 1.0, 0.5, 0.5, title.c_str());
+}
+
+/// The members one marker each, by class.
+void drawMemberMarkers(const ReportInputs& inputs, const ReportAnalysis& analysis) {
+    std::map<std::string, std::pair<std::vector<PLFLT>, std::vector<PLFLT>>> by_class;
+    for (std::size_t i = 0; i < analysis.members.size(); ++i) {
+        const auto point = hammerAitoff(analysis.member_positions[i].l_deg > 180.0
+                                            ? analysis.member_positions[i].l_deg - 360.0
+                                            : analysis.member_positions[i].l_deg,
+                                        analysis.member_positions[i].b_deg);
+        auto& points = by_class[inputs.sample.class_name[analysis.members[i]]];
+        points.first.push_back(point.x);
+        points.second.push_back(point.y);
+    }
+    for (const auto& [name, points] : by_class) {
+        drawGlyphs(points.first, points.second, classStyle(name), 0.35);
+    }
+}
+
+/// Counts per HEALPix pixel as one image of the map, sampled at about one cell per point of the page
+/// (finer than the pixels: ~2 pt across at nside 64), with its colour bar below the panel. On the log scale
+/// empty pixels are blank; on the linear scale they take the bottom colour.
+void drawPixelCounts(const census::PixelCounts& counts, bool log_scale) {
+    const auto half = skyWindowHalfSize();
+    constexpr int kCellsX = 800;
+    constexpr int kCellsY = 400;
+    const GridAxes axes{-half.x, half.x, kCellsX, -half.y, half.y, kCellsY};
+    const auto range =
+        drawCountImage(projectedPixelCounts(counts, axes), axes, log_scale ? 0.0 : -1.0, log_scale);
+    drawCountBar(range, "stars per pixel", log_scale, false);
 }
 
 FigureOutput skyMapFigure(const ReportInputs& inputs, const ReportAnalysis& analysis,
                           const std::filesystem::path& directory) {
     const auto& counts = analysis.sky_counts.counts;
     const int nside = analysis.sky_counts.nside;
-    const double max_count =
-        std::max<double>(1.0, static_cast<double>(*std::max_element(counts.begin(), counts.end())));
+    const int map_nside = analysis.sky_map_counts.nside;
+    const bool density = analysis.sky_density_form;
     const auto& test = analysis.uniformity;
+    const auto pixel_area = [](std::size_t pixels) {
+        return formatNumber(41252.96 / static_cast<double>(pixels), 4) + " deg²";
+    };
     std::ostringstream caption;
     caption << "Top: the " << analysis.members.size() << " stars with membership probability ≥ "
             << analysis.member_probability << " at " << analysis.largest_radius_pc
             << " pc in Galactic coordinates (Hammer–Aitoff equal-area projection, l = 0 at the centre, l "
-            << "increasing to the left), by class. Bottom: counts per HEALPix pixel (nside " << nside << ", "
-            << test.pixels << " pixels of " << formatNumber(41252.96 / static_cast<double>(test.pixels), 4)
-            << " deg² each); empty pixels outlined in vermillion. Uniformity: χ² = "
+            << "increasing to the left), ";
+    if (density) {
+        caption << "too many for one marker each: stars per HEALPix pixel (nside " << map_nside << ", "
+                << pixel_area(analysis.sky_map_counts.counts.size()) << " each) on a log scale, empty "
+                << "pixels blank. ";
+    } else {
+        caption << "by class. ";
+    }
+    caption << "Bottom: counts per HEALPix pixel (nside " << nside << ", " << test.pixels << " pixels of "
+            << pixel_area(counts.size()) << " each); empty pixels outlined in vermillion. Uniformity: χ² = "
             << formatNumber(test.chi_square, 4) << " for " << test.degrees_of_freedom
             << " degrees of freedom, p = " << formatNumber(test.chi_square_p_value) << "; deepest hole "
             << test.min_count << " stars against a mean of " << formatNumber(test.mean_per_pixel)
@@ -747,57 +869,30 @@ FigureOutput skyMapFigure(const ReportInputs& inputs, const ReportAnalysis& anal
             << " pixels).";
     const int points_per_edge = std::max(2, 32 / nside);
     return renderFigure(directory, "sky_map", "All-sky map (Galactic)", caption.str(), {900, 1000}, [&] {
-        skyPanel(0.55, 0.95, "Members in Galactic coordinates");
+        if (density) {
+            skyPanel(0.62, 0.96, "Members per HEALPix pixel (nside " + std::to_string(map_nside) + ")");
+            drawPixelCounts(analysis.sky_map_counts, true);
+        } else {
+            skyPanel(0.56, 0.96, "Members in Galactic coordinates");
+            drawMemberMarkers(inputs, analysis);
+        }
         drawGraticule();
-        std::map<std::string, std::pair<std::vector<PLFLT>, std::vector<PLFLT>>> by_class;
-        for (std::size_t i = 0; i < analysis.members.size(); ++i) {
-            const auto point = hammerAitoff(analysis.member_positions[i].l_deg > 180.0
-                                                ? analysis.member_positions[i].l_deg - 360.0
-                                                : analysis.member_positions[i].l_deg,
-                                            analysis.member_positions[i].b_deg);
-            auto& points = by_class[inputs.sample.class_name[analysis.members[i]]];
-            points.first.push_back(point.x);
-            points.second.push_back(point.y);
-        }
-        for (const auto& [name, points] : by_class) {
-            drawGlyphs(points.first, points.second, classStyle(name), 0.35);
-        }
 
-        skyPanel(0.16, 0.52, "Stars per HEALPix pixel (nside " + std::to_string(nside) + ")");
-        setSequentialColourMap();
-        for (int pixel = 0; pixel < static_cast<int>(counts.size()); ++pixel) {
-            const auto count = counts[static_cast<std::size_t>(pixel)];
+        skyPanel(0.14, 0.47, "Stars per HEALPix pixel (nside " + std::to_string(nside) + ")");
+        drawPixelCounts(analysis.sky_counts, false);
+        for (const int pixel : test.empty_pixels) {
             for (const auto& piece : projectedPixelOutline(nside, pixel, points_per_edge)) {
                 std::vector<PLFLT> x, y;
                 for (const auto& point : piece) {
                     x.push_back(point.x);
                     y.push_back(point.y);
                 }
-                if (count > 0) {
-                    plcol1(static_cast<double>(count) / max_count);
-                    plfill(static_cast<PLINT>(x.size()), x.data(), y.data());
-                }
                 x.push_back(x.front());
                 y.push_back(y.front());
-                drawLine(x, y, count > 0 ? kWhite : kVermillion, 1, count > 0 ? 0.3 : 2.5);
+                drawLine(x, y, kVermillion, 1, 2.5);
             }
         }
         drawGraticule();
-        const char* axis_options[] = {"bcnt"};
-        const char* labels[] = {"stars per pixel"};
-        PLINT label_options[] = {PL_COLORBAR_LABEL_BOTTOM};
-        PLFLT ticks[] = {0.0};
-        PLINT sub_ticks[] = {0};
-        PLINT value_counts[] = {2};
-        const PLFLT range[] = {0.0, max_count};
-        const PLFLT* values[] = {range};
-        PLFLT width = 0.0;
-        PLFLT height = 0.0;
-        plschr(0.0, 0.7);
-        plcolorbar(&width, &height, PL_COLORBAR_GRADIENT | PL_COLORBAR_BOUNDING_BOX,
-                   PL_POSITION_BOTTOM | PL_POSITION_OUTSIDE | PL_POSITION_VIEWPORT, 0.0, 0.04, 0.5, 0.025,
-                   kWhite, kBlack, 1, 0.0, 0.0, kBlack, 1.0, 1, label_options, labels, 1, axis_options, ticks,
-                   sub_ticks, value_counts, values);
     });
 }
 

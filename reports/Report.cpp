@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <filesystem>
 #include <fstream>
 #include <iomanip>
 #include <ostream>
@@ -19,6 +20,17 @@ std::string readBinaryFile(const std::filesystem::path& path) {
     std::ostringstream bytes;
     bytes << file.rdbuf();
     return bytes.str();
+}
+
+/// The figure as a data URI: its SVG, or its PNG where the SVG is large (many vector elements: a browser
+/// opens a few-MB SVG slowly, and the HTML grows by 4/3 of it through base64), so report.html stays small
+/// whatever the figure holds.
+std::string figureDataUri(const FigureOutput& figure) {
+    constexpr std::uintmax_t kMaxInlineSvgBytes = 1 << 20;
+    if (std::filesystem::file_size(figure.svg) <= kMaxInlineSvgBytes) {
+        return "data:image/svg+xml;base64," + base64Encode(readBinaryFile(figure.svg));
+    }
+    return "data:image/png;base64," + base64Encode(readBinaryFile(figure.png));
 }
 
 std::string number(double value, int significant = 3) {
@@ -408,10 +420,10 @@ std::string reportHtml(const ReportInputs& inputs, const ReportAnalysis& analysi
     for (std::size_t i = 0; i < figures.size(); ++i) {
         const auto& figure = figures[i];
         html << "<figure id=\"fig-" << figure.id << "\" class=\"report-figure\">\n<img alt=\""
-             << escapeHtml(figure.title) << "\" src=\"data:image/svg+xml;base64,"
-             << base64Encode(readBinaryFile(figure.svg)) << "\">\n<figcaption><b>Figure " << i + 1 << ". "
-             << escapeHtml(figure.title) << ".</b> " << escapeHtml(figure.caption) << " Files: <code>figures/"
-             << figure.id << ".svg</code>, <code>.pdf</code>, <code>.png</code>.</figcaption>\n</figure>\n";
+             << escapeHtml(figure.title) << "\" src=\"" << figureDataUri(figure)
+             << "\">\n<figcaption><b>Figure " << i + 1 << ". " << escapeHtml(figure.title) << ".</b> "
+             << escapeHtml(figure.caption) << " Files: <code>figures/" << figure.id
+             << ".svg</code>, <code>.pdf</code>, <code>.png</code>.</figcaption>\n</figure>\n";
     }
     html << "<h2>Sky uniformity</h2>\n" << uniformitySection(analysis);
     html

@@ -5,7 +5,10 @@
 #include <doctest/doctest.h>
 #include <nlohmann/json.hpp>
 
+#include <cmath>
 #include <fstream>
+#include <numbers>
+#include <random>
 #include <sstream>
 
 using namespace starcensus;
@@ -56,6 +59,29 @@ void writeOptionalInputs(const std::filesystem::path& directory) {
     writeFile(directory / "provenance.json",
               R"({"version": "0.1.0", "seed": 3, "inputs": [{"path": "mock.fits",
         "sha256": "0123abcd"}]})");
+}
+
+/// `stars` invented members (demo data, for the figures' size only): 97% along a main-sequence-like band,
+/// 3% along a white-dwarf-like one, uniform on the sky and in the volume of the demo run's radii.
+SampleColumns syntheticSample(const std::vector<double>& radii_pc, std::size_t stars) {
+    std::mt19937_64 generator(7);
+    std::uniform_real_distribution<double> unit(0.0, 1.0);
+    std::normal_distribution<double> scatter(0.0, 0.3);
+    SampleColumns sample;
+    sample.radii_pc = radii_pc;
+    for (std::size_t i = 0; i < stars; ++i) {
+        const bool white_dwarf = unit(generator) < 0.03;
+        const double colour = white_dwarf ? -0.3 + 1.5 * unit(generator) : 0.5 + 4.0 * unit(generator);
+        sample.bp_rp_mag.push_back(colour);
+        sample.abs_g_mag.push_back((white_dwarf ? 11.0 + 3.0 * colour : 2.0 + 2.5 * colour) +
+                                   scatter(generator));
+        sample.class_name.emplace_back(white_dwarf ? "WD" : "M");
+        sample.ra_deg.push_back(360.0 * unit(generator));
+        sample.dec_deg.push_back(std::asin(2.0 * unit(generator) - 1.0) * 180.0 / std::numbers::pi);
+        sample.parallax_mas.push_back(1000.0 / (radii_pc.back() * std::cbrt(unit(generator))));
+    }
+    sample.p_within.assign(radii_pc.size(), std::vector<double>(stars, 1.0));
+    return sample;
 }
 
 } // namespace
@@ -116,6 +142,12 @@ TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one s
             "J2016)") != std::string::npos);
     CHECK(html.find("Sky uniformity") != std::string::npos);
     CHECK(html.find("<code>seed</code>") != std::string::npos);
+    // A few thousand stars keep one marker each: no density form, no image in the diagram's SVG.
+    const auto analysis = analyseReport(readReportInputs(directory), {});
+    CHECK_FALSE(analysis.cmd_density_form);
+    CHECK_FALSE(analysis.sky_density_form);
+    CHECK(readFile(directory / "figures" / "cmd.svg").find("<image") == std::string::npos);
+    CHECK(html.find("too many for one marker each") == std::string::npos);
     // The mock is isotropic (census/mock/Neighbourhood.h: Poisson positions in a sphere).
     CHECK_FALSE(report.uniformity.uniformity_rejected);
     CHECK(report.uniformity.objects > 100);
@@ -185,4 +217,41 @@ TEST_CASE("base64 and HTML escaping") {
     CHECK(base64Encode("foo") == "Zm9v");
     CHECK(base64Encode("foobar") == "Zm9vYmFy");
     CHECK(escapeHtml("a<b & \"c\">") == "a&lt;b &amp; &quot;c&quot;&gt;");
+}
+
+TEST_CASE("10^5 stars: the colour-magnitude diagram and the sky take their density forms, files stay small") {
+    const testing::ScratchDirectory scratch("starcensus-report-dense");
+    auto inputs = readReportInputs(testing::demoRunDirectory());
+    constexpr std::size_t kStars = 100000;
+    inputs.sample = syntheticSample(inputs.sample.radii_pc, kStars);
+    const auto analysis = analyseReport(inputs, {});
+    REQUIRE(analysis.members.size() == kStars);
+    CHECK(analysis.cmd_density_form);
+    CHECK(analysis.sky_density_form);
+    // Every star with both values is in one cell of the diagram's histogram (the axes take them all in).
+    CHECK(analysis.cmd_rows.size() == kStars);
+    CHECK(analysis.cmd_grid.total() == static_cast<std::int64_t>(kStars));
+    std::int64_t mapped = 0;
+    for (const auto count : analysis.sky_map_counts.counts) {
+        mapped += count;
+    }
+    CHECK(mapped == static_cast<std::int64_t>(kStars));
+    // The sky map's nside: the finest up to 64 with a mean of at least 10 per pixel, 10^5 / (12 * 32^2) =
+    // 8.1 at 32, so 16.
+    CHECK(analysis.sky_map_counts.nside == 16);
+
+    const auto figures = drawReportFigures(inputs, analysis, scratch.path() / "figures", nullptr);
+    for (const auto& figure : figures) {
+        CAPTURE(figure.id);
+        // Before the density forms the diagram's SVG held one element per star: 32 MB for 268,009
+        // candidates. Now every SVG holds the shaded cells as one image: bounded whatever the count.
+        CHECK(std::filesystem::file_size(figure.svg) < 1000000);
+        CHECK(std::filesystem::file_size(figure.pdf) < 1000000);
+        if (figure.id == "cmd" || figure.id == "sky_map") {
+            CHECK(readFile(figure.svg).find("<image") != std::string::npos);
+        }
+    }
+    const std::string html = reportHtml(inputs, analysis, figures);
+    CHECK(html.size() < 10000000); // the issue's bound on report.html
+    CHECK(html.find("too many for one marker each") != std::string::npos);
 }
