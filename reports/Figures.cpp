@@ -11,6 +11,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstdio>
 #include <functional>
 #include <limits>
 #include <map>
@@ -288,14 +289,19 @@ struct CountRange {
 /// number of stars or cells.
 CountRange drawCountImage(const std::vector<double>& counts, const GridAxes& axes, double blank_at_most,
                           bool log_scale) {
-    const auto scaled = [&](double count) { return log_scale ? std::log10(count) : count; };
-    CountRange range{scaled(blank_at_most + 1.0), scaled(blank_at_most + 1.0)};
+    // The scale runs from the smallest count drawn to the largest, so a map of similar counts (a
+    // well-filled sky) still uses the whole colour range.
+    CountRange range{std::numeric_limits<double>::infinity(), -std::numeric_limits<double>::infinity()};
     std::vector<PLFLT> values(counts.size(), kNaN);
     for (std::size_t i = 0; i < counts.size(); ++i) {
         if (counts[i] > blank_at_most) {
-            values[i] = scaled(counts[i]);
+            values[i] = log_scale ? std::log10(counts[i]) : counts[i];
+            range.low = std::min(range.low, values[i]);
             range.high = std::max(range.high, values[i]);
         }
+    }
+    if (!std::isfinite(range.low)) {
+        range = {0.0, 0.0};
     }
     // A visible scale even when every cell is alike.
     range.high = std::max(range.high, range.low + (log_scale ? 0.5 : 1.0));
@@ -311,8 +317,22 @@ CountRange drawCountImage(const std::vector<double>& counts, const GridAxes& axe
 
 /// A horizontal colour bar for counts from `low` to `high` (log10 of them when `log_scale`, labelled as
 /// counts), below the viewport or inside its top-right corner.
+/// PLplot label function for an axis in log10(count): the count itself ("6.3", "10", "250"), so that a
+/// scale of less than a decade is labelled at every major tick, not only at powers of ten.
+void countFromLogLabel(PLINT /*axis*/, PLFLT value, char* label, PLINT length, PLPointer /*data*/) {
+    const double count = std::pow(10.0, value);
+    if (count < 10.0) {
+        std::snprintf(label, static_cast<std::size_t>(length), "%.2g", count);
+        return;
+    }
+    const double step = std::pow(10.0, std::floor(value) - 1.0); // two significant digits, no exponent
+    std::snprintf(label, static_cast<std::size_t>(length), "%.0f", std::round(count / step) * step);
+}
+
 void drawCountBar(const CountRange& range, const char* label, bool log_scale, bool inside_top_right) {
-    const std::string axis = std::string("bcnst") + (log_scale ? "l" : "");
+    // Log scale: ticks in log10(count), labelled with the counts (countFromLogLabel).
+    const std::string axis = std::string("bcnst") + (log_scale ? "o" : "");
+    plslabelfunc(log_scale ? countFromLogLabel : nullptr, nullptr);
     const char* axis_options[] = {axis.c_str()};
     const char* labels[] = {label};
     PLINT label_options[] = {PL_COLORBAR_LABEL_BOTTOM};
@@ -333,6 +353,7 @@ void drawCountBar(const CountRange& range, const char* label, bool log_scale, bo
                position, inside_top_right ? 0.04 : 0.0, 0.04, inside_top_right ? 0.3 : 0.5, 0.025, kWhite,
                kBlack, 1, 0.0, 0.0, kBlack, 1.0, 1, label_options, labels, 1, axis_options, ticks, sub_ticks,
                value_counts, values);
+    plslabelfunc(nullptr, nullptr);
     plschr(0.0, 0.95);
 }
 
