@@ -126,7 +126,9 @@ nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vecto
               {"merge", timings.merge_s},
               {"posteriors", timings.posteriors_s},
               {"draws", timings.draws_s},
-              {"outputs", timings.outputs_s}}},
+              {"outputs", timings.outputs_s},
+              {"hosts", timings.hosts_s},
+              {"luminosity", timings.luminosity_s}}},
             {"outputs", outputs}};
 }
 
@@ -221,8 +223,12 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     // mass-function fits and corrected fractions. Each is deterministic for the seed, so the order they
     // finish in is irrelevant.
     std::future<census::HostMeasurements> host_measurements = std::async(std::launch::async, [&] {
-        return hosts.enabled ? census::measureHosts(rows, sample, classifier, census.membership, hosts)
-                             : census::HostMeasurements{};
+        const auto hosts_start = Clock::now();
+        auto measured = hosts.enabled
+                            ? census::measureHosts(rows, sample, classifier, census.membership, hosts)
+                            : census::HostMeasurements{};
+        result.timings.hosts_s = secondsSince(hosts_start);
+        return measured;
     });
     // The population deviates, drawn once and summarised two ways.
     std::shared_future<std::vector<census::PopulationDeviates>> population =
@@ -245,8 +251,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
         writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
         writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     });
+    const auto luminosity_start = Clock::now();
     const census::LuminosityAnalysis luminosity =
         census::analyseLuminosity(rows, sample, tallies, classifier, census, settings.luminosity);
+    result.timings.luminosity_s = secondsSince(luminosity_start);
     for (const auto& fit : luminosity.fits) {
         if (!fit.converged) {
             log << "starcensus: warning: " << census::fitModelName(fit.family) << " fit: " << fit.message
