@@ -65,16 +65,25 @@ TEST_CASE("histogram2d: the counts of NumPy's histogram2d, cell for cell, edges 
     CHECK_FALSE(grid.cellOf(std::nan(""), 1.0).has_value());
 }
 
+namespace {
+
+/// `count` points, one at the centre of each unit cell, row by row `columns` wide.
+std::pair<std::vector<double>, std::vector<double>> onePerCell(int count, int columns) {
+    std::pair<std::vector<double>, std::vector<double>> points;
+    for (int i = 0; i < count; ++i) {
+        points.first.push_back(i % columns + 0.5);
+        points.second.push_back(i / columns + 0.5);
+    }
+    return points;
+}
+
+} // namespace
+
 TEST_CASE("markers pile up: the switch to the density form") {
     const DensitySettings settings; // more than 8 stars in a cell for more than half of the stars
     const GridAxes axes{0.0, 20.0, 20, 0.0, 20.0, 20};
-    std::vector<double> x;
-    std::vector<double> y;
     // One star in each of 100 cells: nothing overlaps.
-    for (int i = 0; i < 100; ++i) {
-        x.push_back(i % 10 + 0.5);
-        y.push_back(i / 10 + 0.5);
-    }
+    auto [x, y] = onePerCell(100, 10);
     CHECK_FALSE(markersPileUp(histogram2d(x, y, axes), settings));
     // 90 more in one cell: 91 of 190 stars (48%) are piled up, still under half.
     x.insert(x.end(), 90, 3.5);
@@ -88,12 +97,7 @@ TEST_CASE("markers pile up: the switch to the density form") {
     CHECK(markersPileUp(histogram2d(x, y, axes), settings));
 
     // One star in every cell covers the plot; one more than cells, nothing piled up, is the density form.
-    std::vector<double> spread_x;
-    std::vector<double> spread_y;
-    for (int i = 0; i < 400; ++i) {
-        spread_x.push_back(i % 20 + 0.5);
-        spread_y.push_back(i / 20 + 0.5);
-    }
+    auto [spread_x, spread_y] = onePerCell(400, 20);
     CHECK_FALSE(markersPileUp(histogram2d(spread_x, spread_y, axes), settings));
     spread_x.push_back(0.5);
     spread_y.push_back(0.5);

@@ -124,6 +124,9 @@ TEST_CASE(
                                              " candidate rows into " +
                                              std::to_string(result.scan_totals.candidates) +
                                              " objects: 0 by source_id, 0 by position") != std::string::npos);
+    // hosts and luminosity run inside the outputs stage, side by side.
+    CHECK(provenance["timings_s"]["luminosity"].get<double>() > 0.0);
+    CHECK(provenance["timings_s"]["hosts"].get<double>() <= provenance["timings_s"]["outputs"].get<double>());
     std::ifstream priors_file(settings.output_directory / "priors.json");
     CHECK(nlohmann::json::parse(priors_file)["schema"] == "starcensus.priors/1");
 }
