@@ -846,14 +846,15 @@ void drawMemberMarkers(const ReportInputs& inputs, const ReportAnalysis& analysi
     }
 }
 
-/// Counts per HEALPix pixel as one image of the map, sampled at about one cell per point of the page
-/// (finer than the pixels: ~2 pt across at nside 64), with its colour bar below the panel. On the log scale
-/// empty pixels are blank; on the linear scale they take the bottom colour.
+/// Counts per HEALPix pixel as one image of the map, with its colour bar below the panel. On the log scale
+/// empty pixels are blank; on the linear scale they take the bottom colour. The image has ~5 cells across
+/// a pixel (a pixel spans ~58.6 deg / nside, the map 360 deg in 32 nside cells), at most one per point of
+/// the page (800 across), since PLplot's image costs time per cell on each device, and at least 256
+/// across (~3 pt), so that the map's rim is not a staircase.
 void drawPixelCounts(const census::PixelCounts& counts, bool log_scale) {
     const auto half = skyWindowHalfSize();
-    constexpr int kCellsX = 800;
-    constexpr int kCellsY = 400;
-    const GridAxes axes{-half.x, half.x, kCellsX, -half.y, half.y, kCellsY};
+    const int cells_x = std::clamp(32 * counts.nside, 256, 800);
+    const GridAxes axes{-half.x, half.x, cells_x, -half.y, half.y, cells_x / 2};
     const auto range =
         drawCountImage(projectedPixelCounts(counts, axes), axes, log_scale ? 0.0 : -1.0, log_scale);
     drawCountBar(range, "stars per pixel", log_scale, false);
