@@ -254,4 +254,17 @@ TEST_CASE("10^5 stars: the colour-magnitude diagram and the sky take their densi
     const std::string html = reportHtml(inputs, analysis, figures);
     CHECK(html.size() < 10000000); // the issue's bound on report.html
     CHECK(html.find("too many for one marker each") != std::string::npos);
+    CHECK(html.find("src=\"data:image/svg+xml;base64,") != std::string::npos);
+    CHECK(html.find("src=\"data:image/png;base64,") == std::string::npos);
+
+    // A figure whose SVG is over 1 MiB (here a stand-in of 2 MB) is inlined as its PNG instead.
+    auto large = figures;
+    large.back().svg = scratch.path() / "large.svg";
+    writeFile(large.back().svg, "<svg>" + std::string(2000000, ' ') + "</svg>");
+    const std::string with_png = reportHtml(inputs, analysis, large);
+    const auto sky = with_png.find("<figure id=\"fig-sky_map\"");
+    REQUIRE(sky != std::string::npos);
+    CHECK(with_png.find("src=\"data:image/png;base64," + base64Encode(readFile(large.back().png)) + "\"",
+                        sky) != std::string::npos);
+    CHECK(with_png.size() < 10000000);
 }
