@@ -5,7 +5,6 @@
 #include <algorithm>
 #include <cctype>
 #include <numbers>
-#include <span>
 
 namespace starcensus::photometry {
 
@@ -163,26 +162,6 @@ bool keepsMetaMain(CatalogField field) {
     return field == CatalogField::SourceId || field == CatalogField::Ra || field == CatalogField::Dec;
 }
 
-std::string normalisedUcd(std::string_view ucd, CatalogField field) {
-    std::string result;
-    std::string_view rest = ucd;
-    while (!rest.empty()) {
-        const auto semicolon = rest.find(';');
-        const std::string word = lowercase(trimmed(rest.substr(0, semicolon)));
-        rest = semicolon == std::string_view::npos ? std::string_view{} : rest.substr(semicolon + 1);
-        if (word.empty() || (word == "meta.main" && !keepsMetaMain(field))) {
-            continue;
-        }
-        result += result.empty() ? word : ";" + word;
-    }
-    return result;
-}
-
-bool isRequired(CatalogField field) {
-    return field == CatalogField::Parallax || field == CatalogField::ParallaxError ||
-           field == CatalogField::G;
-}
-
 bool isPhotometricError(CatalogField field) {
     return field == CatalogField::GError || field == CatalogField::BpError || field == CatalogField::RpError;
 }
@@ -325,6 +304,34 @@ void resolveUnit(ResolvedColumn& resolved, const ColumnDescription& column,
 
 } // namespace
 
+std::string normalisedUcd(std::string_view ucd, CatalogField field) {
+    std::string result;
+    std::string_view rest = ucd;
+    while (!rest.empty()) {
+        const auto semicolon = rest.find(';');
+        const std::string word = lowercase(trimmed(rest.substr(0, semicolon)));
+        rest = semicolon == std::string_view::npos ? std::string_view{} : rest.substr(semicolon + 1);
+        if (word.empty() || (word == "meta.main" && !keepsMetaMain(field))) {
+            continue;
+        }
+        result += result.empty() ? word : ";" + word;
+    }
+    return result;
+}
+
+bool isRequiredField(CatalogField field) {
+    return field == CatalogField::Parallax || field == CatalogField::ParallaxError ||
+           field == CatalogField::G;
+}
+
+std::span<const std::string_view> knownUcds(CatalogField field) {
+    return fieldRule(field).ucds;
+}
+
+std::span<const std::string_view> knownNames(CatalogField field) {
+    return fieldRule(field).names;
+}
+
 std::optional<CatalogField> fieldFromName(std::string_view name) {
     const std::string wanted = lowercase(trimmed(name));
     for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
@@ -393,8 +400,8 @@ std::string_view routeName(MappingRoute route) {
     }
 }
 
-ColumnMapping resolveColumns(const std::vector<ColumnDescription>& columns, const MappingRequest& request,
-                             const std::string& where) {
+MappingAttempt attemptColumns(const std::vector<ColumnDescription>& columns, const MappingRequest& request,
+                              const std::string& where) {
     std::map<CatalogField, std::string> user_columns;
     for (const auto& [name, column] : request.user_columns) {
         user_columns[fieldOrThrow(name, "--column")] = column;
@@ -403,28 +410,42 @@ ColumnMapping resolveColumns(const std::vector<ColumnDescription>& columns, cons
     for (const auto& [name, unit] : request.user_units) {
         user_units[fieldOrThrow(name, "--unit")] = unit;
     }
-    ColumnMapping mapping;
+    MappingAttempt attempt;
     for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
         const auto field = static_cast<CatalogField>(i);
-        auto resolved = chooseColumn(columns, field, user_columns, where);
-        if (!resolved) {
-            if (isRequired(field)) {
-                const FieldRule& rule = fieldRule(field);
-                std::string names;
-                for (const auto name : rule.names) {
-                    names.append(names.empty() ? "" : " ").append(name);
+        try {
+            auto resolved = chooseColumn(columns, field, user_columns, where);
+            if (!resolved) {
+                if (isRequiredField(field)) {
+                    std::string names;
+                    for (const auto name : fieldRule(field).names) {
+                        names.append(names.empty() ? "" : " ").append(name);
+                    }
+                    throw InputError(where + ": no column for " + std::string(fieldName(field)) +
+                                     " (no UCD match, no column named " + names +
+                                     "); name it with --column " + std::string(fieldName(field)) + "=COLUMN");
                 }
-                throw InputError(where + ": no column for " + std::string(fieldName(field)) +
-                                 " (no UCD match, no column named " + names + "); name it with --column " +
-                                 std::string(fieldName(field)) + "=COLUMN");
+                continue;
             }
-            continue;
+            resolveUnit(*resolved, columns[resolved->column_index], user_units, request.gaia_names_imply_mas,
+                        where);
+            attempt.mapping.fields[i] = std::move(resolved);
+        } catch (const InputError& error) {
+            attempt.problems[i] = error.what();
         }
-        resolveUnit(*resolved, columns[resolved->column_index], user_units, request.gaia_names_imply_mas,
-                    where);
-        mapping.fields[i] = std::move(resolved);
     }
-    return mapping;
+    return attempt;
+}
+
+ColumnMapping resolveColumns(const std::vector<ColumnDescription>& columns, const MappingRequest& request,
+                             const std::string& where) {
+    MappingAttempt attempt = attemptColumns(columns, request, where);
+    for (const auto& problem : attempt.problems) {
+        if (!problem.empty()) {
+            throw InputError(problem);
+        }
+    }
+    return std::move(attempt.mapping);
 }
 
 } // namespace starcensus::photometry

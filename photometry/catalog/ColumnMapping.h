@@ -14,6 +14,7 @@
 #include <limits>
 #include <map>
 #include <optional>
+#include <span>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -158,6 +159,27 @@ struct MappingRequest {
 /// g), a unit the field does not accept, or a parallax column without a unit.
 ColumnMapping resolveColumns(const std::vector<ColumnDescription>& columns, const MappingRequest& request,
                              const std::string& where);
+
+/// resolveColumns without stopping at the first field that fails (for inspect): each field's problem is
+/// the one-line message resolveColumns would throw for it ("" if none), and that field stays unmapped.
+/// resolveColumns throws the first problem in CatalogField order. Unknown field names in the request
+/// still throw (they are option errors, not properties of the file).
+struct MappingAttempt {
+    ColumnMapping mapping;
+    std::array<std::string, kCatalogFieldCount> problems;
+};
+MappingAttempt attemptColumns(const std::vector<ColumnDescription>& columns, const MappingRequest& request,
+                              const std::string& where);
+
+/// The fields a run cannot do without: parallax, parallax_error and g.
+bool isRequiredField(CatalogField field);
+/// What the mapping recognises a field by: UCDs (lower case, without meta.main unless it is part of the
+/// field's UCD) and column names (lower case).
+std::span<const std::string_view> knownUcds(CatalogField field);
+std::span<const std::string_view> knownNames(CatalogField field);
+/// A UCD as the mapping compares it for `field`: lower case, blanks and empty words dropped, meta.main
+/// dropped except for source_id, ra and dec.
+std::string normalisedUcd(std::string_view ucd, CatalogField field);
 
 /// sigma_mag = 2.5 / ln(10) / (F / sigma_F): first-order error propagation of m = -2.5 log10(F)
 /// (common practice, no source).
