@@ -7,6 +7,7 @@
 #include <charconv>
 #include <cmath>
 #include <fstream>
+#include <optional>
 
 namespace starcensus::photometry {
 
@@ -54,6 +55,76 @@ struct CsvField {
     const ResolvedColumn* column;
 };
 
+// The lines of a CSV file that hold data (the header first), without comments, blank lines and '\r'.
+class CsvLines {
+  public:
+    explicit CsvLines(const std::string& path) : path_(path), stream_(path, std::ios::binary) {
+        if (!stream_) {
+            throw InputError(path + ": no such file or not readable");
+        }
+    }
+    /// The next line that is not a comment or blank; false at the end of the file.
+    bool next() {
+        while (std::getline(stream_, line_)) {
+            ++line_number_;
+            if (!line_.empty() && line_.back() == '\r') {
+                line_.pop_back();
+            }
+            if (!isCommentOrBlank(line_)) {
+                return true;
+            }
+        }
+        if (stream_.bad()) {
+            throw InputError(path_ + ": read error after line " + std::to_string(line_number_));
+        }
+        return false;
+    }
+    const std::string& line() const { return line_; }
+    std::int64_t lineNumber() const { return line_number_; }
+
+    /// The header row as column descriptions (no TFORM, UCD or unit: CSV states none).
+    std::vector<ColumnDescription> header(std::vector<std::string_view>& fields) {
+        if (!next()) {
+            throw InputError(path_ + ": no header row (empty CSV file)");
+        }
+        splitFields(line_, fields);
+        std::vector<ColumnDescription> columns;
+        for (std::size_t i = 0; i < fields.size(); ++i) {
+            columns.push_back({static_cast<int>(i + 1), std::string(fields[i]), "", "", ""});
+        }
+        return columns;
+    }
+    /// Splits the current line; throws InputError if it has not `expected` fields.
+    void split(std::vector<std::string_view>& fields, std::size_t expected) const {
+        splitFields(line_, fields);
+        if (fields.size() != expected) {
+            throw InputError(path_ + " line " + std::to_string(line_number_) + ": " +
+                             std::to_string(fields.size()) + " fields, the header has " +
+                             std::to_string(expected));
+        }
+    }
+
+  private:
+    std::string path_;
+    std::ifstream stream_;
+    std::string line_;
+    std::int64_t line_number_ = 0;
+};
+
+// A number as the reader accepts it (an explicit leading '+' allowed); nullopt otherwise.
+std::optional<double> parsedNumber(std::string_view text) {
+    if (!text.empty() && text.front() == '+') { // from_chars does not take an explicit plus sign
+        text.remove_prefix(1);
+    }
+    double value = 0.0;
+    const char* end = text.data() + text.size();
+    const auto [at, error] = std::from_chars(text.data(), end, value);
+    if (text.empty() || error != std::errc{} || at != end) {
+        return std::nullopt;
+    }
+    return value;
+}
+
 } // namespace
 
 bool isCsvPath(const std::string& path) {
@@ -66,41 +137,14 @@ bool isCsvPath(const std::string& path) {
 namespace detail {
 
 FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings) {
-    std::ifstream stream(path, std::ios::binary);
-    if (!stream) {
-        throw InputError(path + ": no such file or not readable");
-    }
+    CsvLines lines(path);
     FileScanResult result;
     FileScanReport& report = result.report;
     report.path = path;
     report.hdu_name = "CSV";
 
-    std::string line;
-    std::int64_t line_number = 0;
-    auto nextDataLine = [&]() {
-        while (std::getline(stream, line)) {
-            ++line_number;
-            if (!line.empty() && line.back() == '\r') {
-                line.pop_back();
-            }
-            if (!isCommentOrBlank(line)) {
-                return true;
-            }
-        }
-        if (stream.bad()) {
-            throw InputError(path + ": read error after line " + std::to_string(line_number));
-        }
-        return false;
-    };
-    if (!nextDataLine()) {
-        throw InputError(path + ": no header row (empty CSV file)");
-    }
     std::vector<std::string_view> fields;
-    splitFields(line, fields);
-    std::vector<ColumnDescription> columns;
-    for (std::size_t i = 0; i < fields.size(); ++i) {
-        columns.push_back({static_cast<int>(i + 1), std::string(fields[i]), "", "", ""});
-    }
+    const std::vector<ColumnDescription> columns = lines.header(fields);
     report.mapping =
         resolveColumns(columns, MappingRequest{settings.user_columns, settings.user_units, true}, path);
 
@@ -112,17 +156,12 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
     }
     ScanAccumulator accumulator(result, settings);
     auto fail = [&](const CsvField& field, std::string_view text) {
-        throw InputError(path + " line " + std::to_string(line_number) + ": column " +
+        throw InputError(path + " line " + std::to_string(lines.lineNumber()) + ": column " +
                          field.column->column_name + " (" + std::string(fieldName(field.column->field)) +
                          "): '" + std::string(text) + "' is not a number");
     };
-    while (nextDataLine()) {
-        splitFields(line, fields);
-        if (fields.size() != columns.size()) {
-            throw InputError(path + " line " + std::to_string(line_number) + ": " +
-                             std::to_string(fields.size()) + " fields, the header has " +
-                             std::to_string(columns.size()));
-        }
+    while (lines.next()) {
+        lines.split(fields, columns.size());
         CatalogRow row;
         row.file_index = file_index;
         row.row_index = report.rows++;
@@ -135,27 +174,22 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
                 setLiteratureType(row, text); // text, not a number; a refused string is data, not an error
                 continue;
             }
-            if (text.front() == '+') { // from_chars does not take an explicit plus sign
-                text.remove_prefix(1);
-            }
-            if (text.empty()) {
-                fail(field, "+");
-                continue;
-            }
-            const char* end = text.data() + text.size();
             if (field.column->field == CatalogField::SourceId) {
+                if (text.front() == '+') { // from_chars does not take an explicit plus sign
+                    text.remove_prefix(1);
+                }
+                const char* end = text.data() + text.size();
                 const auto [at, error] = std::from_chars(text.data(), end, row.source_id);
-                if (error != std::errc{} || at != end) {
-                    fail(field, text);
+                if (text.empty() || error != std::errc{} || at != end) {
+                    fail(field, text.empty() ? "+" : text);
                 }
                 continue;
             }
-            double value = 0.0;
-            const auto [at, error] = std::from_chars(text.data(), end, value);
-            if (error != std::errc{} || at != end) {
+            const auto value = parsedNumber(text);
+            if (!value) {
                 fail(field, text);
             }
-            row.*rowMember(field.column->field) = canonicalValue(*field.column, value);
+            row.*rowMember(field.column->field) = canonicalValue(*field.column, *value);
         }
         accumulator.add(row);
         if (settings.progress != nullptr && report.rows % 65536 == 0) {
@@ -167,6 +201,37 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
     }
     accumulator.finish(path);
     return result;
+}
+
+TableProfile profileCsvTable(const std::string& path) {
+    CsvLines lines(path);
+    TableProfile profile;
+    profile.where = path;
+    profile.hdu_name = "CSV";
+    std::vector<std::string_view> fields;
+    for (auto& description : lines.header(fields)) {
+        ColumnProfile column;
+        column.description = std::move(description);
+        profile.columns.push_back(std::move(column));
+    }
+    while (lines.next()) {
+        lines.split(fields, profile.columns.size());
+        ++profile.rows;
+        for (std::size_t i = 0; i < fields.size(); ++i) {
+            ColumnProfile& column = profile.columns[i];
+            if (isMissing(fields[i])) {
+                column.countNull();
+            } else if (const auto value = parsedNumber(fields[i])) {
+                column.countNumber(*value);
+            } else {
+                column.countText(fields[i]);
+            }
+        }
+    }
+    for (auto& column : profile.columns) {
+        column.settleKindFromCells();
+    }
+    return profile;
 }
 
 } // namespace detail

@@ -21,6 +21,7 @@
 #include <cstring>
 #include <filesystem>
 #include <functional>
+#include <limits>
 #include <optional>
 #include <string_view>
 #include <variant>
@@ -955,6 +956,57 @@ class PlainDataFile {
     int descriptor_;
 };
 
+// Reads one scalar numeric or character column over rows [first, first + count) into its profile;
+// cfitsio applies TSCALn/TZEROn and turns TNULLn into the NaN given as the null value.
+void profileColumnRows(const FitsFile& file, const TableColumn& column, LONGLONG first, LONGLONG count,
+                       ColumnProfile& profile) {
+    int status = 0;
+    int any_null = 0;
+    if (profile.kind == ColumnKind::Number) {
+        std::vector<double> values(static_cast<std::size_t>(count));
+        double null_value = std::numeric_limits<double>::quiet_NaN();
+        fits_read_col(file.get(), TDOUBLE, column.description.number, first, 1, count, &null_value,
+                      values.data(), &any_null, &status);
+        file.check(status, "cannot read column " + column.description.name);
+        for (const double value : values) {
+            if (std::isnan(value)) {
+                profile.countNull();
+            } else {
+                profile.countNumber(value);
+            }
+        }
+        return;
+    }
+    const auto width = static_cast<std::size_t>(column.repeat) + 1;
+    std::vector<char> buffer(width * static_cast<std::size_t>(count), '\0');
+    std::vector<char*> cells(static_cast<std::size_t>(count));
+    for (std::size_t i = 0; i < cells.size(); ++i) {
+        cells[i] = buffer.data() + i * width;
+    }
+    char empty[] = "";
+    fits_read_col(file.get(), TSTRING, column.description.number, first, 1, count, empty, cells.data(),
+                  &any_null, &status);
+    file.check(status, "cannot read column " + column.description.name);
+    for (const char* cell : cells) {
+        std::string_view text(cell);
+        const auto begin = text.find_first_not_of(' ');
+        if (begin == std::string_view::npos) {
+            profile.countNull();
+        } else {
+            profile.countText(text.substr(begin, text.find_last_not_of(' ') - begin + 1));
+        }
+    }
+}
+
+ColumnKind kindOf(const TableColumn& column) {
+    if (column.type == 'A') {
+        return ColumnKind::Text;
+    }
+    const bool numeric = column.type == 'B' || column.type == 'I' || column.type == 'J' ||
+                         column.type == 'K' || column.type == 'E' || column.type == 'D';
+    return numeric && column.repeat == 1 ? ColumnKind::Number : ColumnKind::Other;
+}
+
 } // namespace
 
 std::vector<HduSummary> listHdus(const std::string& path) {
@@ -981,6 +1033,41 @@ std::vector<HduSummary> listHdus(const std::string& path) {
 }
 
 namespace detail {
+
+TableProfile profileFitsTable(const std::string& path, const std::string& hdu) {
+    FitsFile file(path);
+    TableProfile profile;
+    profile.hdu_index = selectTable(file, hdu);
+    profile.hdu_name = file.optionalText("EXTNAME").value_or("");
+    file.setWhere(hduLabel(path, profile.hdu_index, profile.hdu_name));
+    profile.where = file.where();
+    const std::vector<TableColumn> columns = readColumns(file);
+    int status = 0;
+    LONGLONG rows = 0;
+    fits_get_num_rowsll(file.get(), &rows, &status);
+    file.check(status, "cannot read the number of rows");
+    profile.rows = rows;
+    for (const auto& column : columns) {
+        ColumnProfile profiled;
+        profiled.description = column.description;
+        profiled.kind = kindOf(column);
+        profile.columns.push_back(std::move(profiled));
+    }
+    // Rows in the chunks cfitsio's buffers hold at once (fits_get_rowsize), every column per chunk.
+    long chunk_rows = 0;
+    fits_get_rowsize(file.get(), &chunk_rows, &status);
+    file.check(status, "cannot size the row buffer");
+    const LONGLONG chunk = std::max<LONGLONG>(chunk_rows, 1);
+    for (LONGLONG first = 1; first <= rows; first += chunk) {
+        const LONGLONG count = std::min(chunk, rows - first + 1);
+        for (std::size_t i = 0; i < columns.size(); ++i) {
+            if (profile.columns[i].kind != ColumnKind::Other) {
+                profileColumnRows(file, columns[i], first, count, profile.columns[i]);
+            }
+        }
+    }
+    return profile;
+}
 
 FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
                             unsigned threads) {

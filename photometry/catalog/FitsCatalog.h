@@ -7,6 +7,7 @@
 // headers up to the table have been parsed from the stream; other compressed forms (compress, pkzip)
 // are left to cfitsio, which inflates them into memory.
 #include "photometry/catalog/CatalogScanDetail.h"
+#include "photometry/catalog/ColumnProfile.h"
 
 #include <cstdint>
 #include <string>
@@ -31,6 +32,9 @@ struct HduSummary {
 std::vector<HduSummary> listHdus(const std::string& path);
 
 namespace detail {
+/// Profiles every column of the table `hdu` selects (see ColumnProfile.h and ScanSettings::hdu), read
+/// through cfitsio (gzip files are inflated into memory by cfitsio: inspect only).
+TableProfile profileFitsTable(const std::string& path, const std::string& hdu);
 /// Scans one FITS file (see CatalogScan.h) with up to `threads` threads; rows get `file_index`.
 FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
                             unsigned threads);
