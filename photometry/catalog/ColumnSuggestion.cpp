@@ -22,6 +22,7 @@ constexpr int kOwnSurvey = 10;
 constexpr int kOtherSurvey = -10;
 constexpr int kOtherBand = -25;
 constexpr int kCellsNotNumbers = -10;
+constexpr int kEveryCellNull = -30;
 
 using Words = std::vector<std::string_view>;
 
@@ -347,6 +348,9 @@ std::optional<ColumnCandidate> scoreColumn(CatalogField field, const ColumnProfi
         } else {
             scored.add(kUnitRefused, "name says " + name.unit + ", not " + std::string(canonicalUnit(field)));
         }
+    }
+    if (column.numbers == 0 && column.texts == 0) {
+        scored.add(kEveryCellNull, "every cell null");
     }
     if (!text_field && column.texts > 0) {
         scored.add(kCellsNotNumbers,

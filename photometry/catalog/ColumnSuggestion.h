@@ -14,7 +14,8 @@
 //         +10  a release token of the field's survey (gaia, dr2, dr3, edr3; 2mass; wise, allwise,
 //              catwise); -10 for another survey's (P1, PS1, SDSS, MKO, UKIDSS, UKIRT, VHS, VISTA);
 //         -25  a stem of another band in the same name ("G_BP_DR2" for g);
-//   cells -10  CSV cells that are not numbers ("-", "null"), which a run refuses.
+//   cells -10  CSV cells that are not numbers ("-", "null"), which a run refuses; -30 when every cell
+//              is null.
 // A column is no candidate when its kind does not fit (text for a numeric field, numbers for
 // spectral_type, vectors), when an error field's name has no error marker or a value field's name has
 // one, when a token marks a reference, flag, count, distance or absolute magnitude ("ref_J_2MASS",

@@ -13,25 +13,58 @@
 #include <filesystem>
 #include <fstream>
 #include <span>
+#include <sstream>
 #include <string>
 #include <sys/wait.h>
+#include <vector>
 
 namespace {
 
 struct Outcome {
     int exit_code;
     std::string stderr_text;
+    std::string stdout_text;
 };
+
+std::string takeFile(const std::filesystem::path& path) {
+    std::ifstream stream(path);
+    std::string text((std::istreambuf_iterator<char>(stream)), std::istreambuf_iterator<char>());
+    std::filesystem::remove(path);
+    return text;
+}
 
 Outcome runStarcensus(const std::string& arguments, const std::filesystem::path& directory) {
     const std::filesystem::path stderr_path = directory / "stderr.txt";
+    const std::filesystem::path stdout_path = directory / "stdout.txt";
     const std::string command = "cd '" + directory.string() + "' && '" + STARCENSUS_EXECUTABLE + "' " +
-                                arguments + " > /dev/null 2> '" + stderr_path.string() + "'";
+                                arguments + " > '" + stdout_path.string() + "' 2> '" + stderr_path.string() +
+                                "'";
     const int status = std::system(command.c_str());
-    std::ifstream stream(stderr_path);
-    std::string text((std::istreambuf_iterator<char>(stream)), std::istreambuf_iterator<char>());
-    std::filesystem::remove(stderr_path);
-    return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, text};
+    const std::string stderr_text = takeFile(stderr_path);
+    return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, stderr_text, takeFile(stdout_path)};
+}
+
+/// The lines after the line `heading` that are indented by four blanks, without the indent.
+std::vector<std::string> blockAfter(const std::string& text, const std::string& heading) {
+    std::istringstream stream(text);
+    std::vector<std::string> lines;
+    std::string line;
+    bool inside = false;
+    while (std::getline(stream, line)) {
+        if (inside && line.rfind("    ", 0) == 0) {
+            lines.push_back(line.substr(4));
+        } else if (inside) {
+            break;
+        } else {
+            inside = line == heading;
+        }
+    }
+    return lines;
+}
+
+std::string readFile(const std::filesystem::path& path) {
+    std::ifstream stream(path, std::ios::binary);
+    return {(std::istreambuf_iterator<char>(stream)), std::istreambuf_iterator<char>()};
 }
 
 std::size_t lineCount(const std::string& text) {
@@ -294,4 +327,63 @@ TEST_CASE("published spectral types: compared with the photometric classes, and 
     CHECK(
         runStarcensus("run '" + table + "'" + lean + " --spectral-types maybe --out bad", dir).stderr_text ==
         "starcensus: error: --spectral-types: 'maybe' is not one of use, check, ignore\n");
+}
+
+TEST_CASE("inspect's printed mapping, fed back as --config, gives the same run as the explicit options") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-inspect");
+    const auto& dir = scratch.path();
+    // Best et al. 2021 (AJ 161, 42) ultracool dwarfs, columns as published: plx_formula, G_DR2, ...
+    std::filesystem::copy_file(STARCENSUS_SOURCE_DIR "/tests/reference/ultracool_best2021_inspect.csv",
+                               dir / "ultracool.csv");
+    const std::string explicit_mapping =
+        "--column parallax=plx_formula --column parallax_error=plxerr_formula "
+        "--column g=G_DR2 --unit parallax=mas --unit parallax_error=mas";
+
+    // Without a mapping the required fields are missing: inspect still reads the file (exit 0) and
+    // names candidates; a run stops with exit 2 and the one line inspect quotes.
+    const Outcome bare = runStarcensus("inspect ultracool.csv", dir);
+    CHECK(bare.exit_code == 0);
+    CHECK(bare.stdout_text.find("  required fields still missing: parallax parallax_error g\n") !=
+          std::string::npos);
+    const Outcome stopped = runStarcensus("run ultracool.csv --out stopped", dir);
+    CHECK(stopped.exit_code == 2);
+    CHECK(bare.stdout_text.find("  a run stops with: " + stopped.stderr_text.substr(19)) !=
+          std::string::npos);
+    CHECK(runStarcensus("inspect missing.csv", dir).exit_code == 2);
+
+    const Outcome inspected = runStarcensus("inspect ultracool.csv " + explicit_mapping, dir);
+    REQUIRE(inspected.exit_code == 0);
+    const std::vector<std::string> ini =
+        blockAfter(inspected.stdout_text, "  mapping as INI lines (--config FILE):");
+    const std::vector<std::string> expected_ini = {"column = parallax=plx_formula",
+                                                   "column = parallax_error=plxerr_formula",
+                                                   "column = g=G_DR2",
+                                                   "column = w1=W1",
+                                                   "column = w2=W2",
+                                                   "column = w1_error=W1err",
+                                                   "column = w2_error=W2err",
+                                                   "unit = parallax=mas",
+                                                   "unit = parallax_error=mas"};
+    CHECK(ini == expected_ini);
+    {
+        std::ofstream config(dir / "mapping.ini");
+        for (const auto& line : ini) {
+            config << line << "\n";
+        }
+    }
+    const std::string common = " --radius 20 --draws 200 --seed 3 --no-report --no-hosts --lf-fit none "
+                               "--checksum none --out ";
+    REQUIRE(runStarcensus("run ultracool.csv --config mapping.ini" + common + "from_ini", dir).exit_code ==
+            0);
+    REQUIRE(runStarcensus("run ultracool.csv " + explicit_mapping + common + "explicit", dir).exit_code == 0);
+    const std::vector<std::string> printed = blockAfter(inspected.stdout_text, "  mapping as options:");
+    REQUIRE(printed.size() == 1);
+    REQUIRE(runStarcensus("run ultracool.csv " + printed[0] + common + "printed", dir).exit_code == 0);
+    for (const char* name : {"fractions.json", "sample.fits", "draws.fits", "lumfunc.csv"}) {
+        CAPTURE(name);
+        const std::string reference = readFile(dir / "explicit" / name);
+        CHECK_FALSE(reference.empty());
+        CHECK(readFile(dir / "from_ini" / name) == reference);
+        CHECK(readFile(dir / "printed" / name) == reference);
+    }
 }

@@ -257,3 +257,28 @@ TEST_CASE("spectral_type maps by UCD src.spType or a generic name; SpT_opt besid
     CHECK(mappingError(with({{0, "spt", "8A", "", "mag"}})) ==
           "cat.fits [HDU 1]: column spt (spectral_type) has unit 'mag'; accepted: none");
 }
+
+TEST_CASE("attemptColumns keeps every field's problem and maps the rest; resolveColumns throws the first") {
+    // An ambiguous parallax, no G, a BP in a unit bands refuse, and a J the names map.
+    const auto columns = describe({{"parallax", "mas", ""},
+                                   {"plx", "mas", ""},
+                                   {"parallax_error", "mas", ""},
+                                   {"bp_mag", "deg", ""},
+                                   {"j_m", "mag", ""}});
+    const MappingAttempt attempt = attemptColumns(columns, {}, "cat.fits [HDU 1]");
+    const auto problem = [&](CatalogField field) {
+        return attempt.problems[static_cast<std::size_t>(field)];
+    };
+    CHECK(problem(CatalogField::Parallax).starts_with("cat.fits [HDU 1]: field parallax is ambiguous"));
+    CHECK(problem(CatalogField::G).starts_with("cat.fits [HDU 1]: no column for g ("));
+    CHECK(problem(CatalogField::Bp) ==
+          "cat.fits [HDU 1]: column bp_mag (bp) has unit 'deg'; accepted: none, mag");
+    CHECK(problem(CatalogField::ParallaxError).empty());
+    CHECK(attempt.mapping[CatalogField::ParallaxError]->column_name == "parallax_error");
+    CHECK(attempt.mapping[CatalogField::J]->column_name == "j_m");
+    CHECK_FALSE(attempt.mapping[CatalogField::Parallax]);
+    CHECK_FALSE(attempt.mapping[CatalogField::Bp]);
+    CHECK(mappingError(columns) == problem(CatalogField::Parallax)); // first in field order
+    CHECK(isRequiredField(CatalogField::G));
+    CHECK_FALSE(isRequiredField(CatalogField::Bp));
+}

@@ -498,14 +498,17 @@ TEST_CASE("inspect reports HDUs, mapping routes, units, null counts and the para
     CHECK(inspections[1].error == missing + ": no such file");
     const std::string text = formatInspection(inspections);
     CHECK(text.find("    1  binary table  GAIA  4 rows, 12 columns") != std::string::npos);
-    CHECK(text.find("    4   parallax                     number  1E     mas     -    1      -0.5 to 100.5\n") !=
+    CHECK(text.find(
+              "    4   parallax                     number  1E     mas     -    1      -0.5 to 100.5\n") !=
           std::string::npos);
-    CHECK(text.find("    parallax        parallax                     name   mas (TUNIT4)             1      name "
-                    "parallax\n") != std::string::npos);
+    CHECK(text.find(
+              "    parallax        parallax                     name   mas (TUNIT4)             1      name "
+              "parallax\n") != std::string::npos);
     CHECK(text.find("    g_error         phot_g_mean_flux_over_error  name   flux/error -> mag error  1") !=
           std::string::npos);
-    CHECK(text.find("    bp_error        none                         -      -                        -      no "
-                    "candidate\n") != std::string::npos);
+    CHECK(text.find(
+              "    bp_error        none                         -      -                        -      no "
+              "candidate\n") != std::string::npos);
     CHECK(text.find("  parallax range: -0.5 to 100.5 mas") != std::string::npos);
     CHECK(text.find("  error: " + missing + ": no such file") != std::string::npos);
 }
