@@ -10,40 +10,54 @@
 
 namespace starcensus::photometry {
 
-std::vector<CatalogInspection> inspectCatalogs(const std::vector<std::string>& paths,
-                                               const ScanSettings& settings) {
+namespace {
+
+// Profiles and maps one file, and scans it when every field resolves; throws InputError when the file
+// cannot be read.
+void inspectFile(CatalogInspection& inspection, const ScanSettings& settings) {
+    const std::string& path = inspection.path;
+    const bool csv = isCsvPath(path);
+    if (!csv) {
+        inspection.hdus = listHdus(path);
+    }
+    inspection.table = profileTable(path, settings.hdu);
+    if (!csv) {
+        inspection.hdu_option = std::to_string(inspection.table.hdu_index);
+    }
+    inspection.mapping = attemptColumns(descriptionsOf(inspection.table),
+                                        MappingRequest{settings.user_columns, settings.user_units, csv},
+                                        inspection.table.where);
+    for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
+        if (!inspection.mapping.mapping.fields[i]) {
+            inspection.candidates[i] = rankCandidates(static_cast<CatalogField>(i), inspection.table.columns);
+        }
+    }
+    const auto& problems = inspection.mapping.problems;
+    if (!std::all_of(problems.begin(), problems.end(), [](const std::string& p) { return p.empty(); })) {
+        return;
+    }
     ScanSettings counting = settings;
     counting.keep_candidates = false;
     counting.null_counts_over_all_rows = true;
+    try {
+        inspection.scan = std::move(scanCatalogs({path}, counting).files.front());
+        inspection.scanned = true;
+    } catch (const InputError& refused) {
+        inspection.scan_error = refused.what(); // the table was read; a run would stop here
+    }
+}
+
+} // namespace
+
+std::vector<CatalogInspection> inspectCatalogs(const std::vector<std::string>& paths,
+                                               const ScanSettings& settings) {
     std::vector<CatalogInspection> inspections;
     for (const auto& path : paths) {
         CatalogInspection inspection;
         inspection.path = path;
         inspection.user_units = settings.user_units;
         try {
-            const bool csv = isCsvPath(path);
-            if (!csv) {
-                inspection.hdus = listHdus(path);
-            }
-            inspection.table = profileTable(path, settings.hdu);
-            if (!csv) {
-                inspection.hdu_option = std::to_string(inspection.table.hdu_index);
-            }
-            inspection.mapping = attemptColumns(
-                descriptionsOf(inspection.table),
-                MappingRequest{settings.user_columns, settings.user_units, csv}, inspection.table.where);
-            for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
-                if (!inspection.mapping.mapping.fields[i]) {
-                    inspection.candidates[i] =
-                        rankCandidates(static_cast<CatalogField>(i), inspection.table.columns);
-                }
-            }
-            const auto& problems = inspection.mapping.problems;
-            if (std::all_of(problems.begin(), problems.end(),
-                            [](const std::string& p) { return p.empty(); })) {
-                inspection.scan = std::move(scanCatalogs({path}, counting).files.front());
-                inspection.scanned = true;
-            }
+            inspectFile(inspection, settings);
         } catch (const InputError& error) {
             inspection.error = error.what();
         }
@@ -161,10 +175,15 @@ void formatFields(std::ostringstream& out, const CatalogInspection& inspection) 
         const std::string field(kCatalogFieldNames[i]);
         const auto& resolved = inspection.mapping.mapping.fields[i];
         if (resolved) {
-            const auto nulls = inspection.scanned ? inspection.scan.null_counts[i]
-                                                  : inspection.table.columns[resolved->column_index].nulls;
+            const ColumnProfile& column = inspection.table.columns[resolved->column_index];
+            const auto nulls = inspection.scanned ? inspection.scan.null_counts[i] : column.nulls;
+            std::string why = resolved->matched_by;
+            if (!isTextField(resolved->field) && column.texts > 0) {
+                why += "; " + std::to_string(column.texts) + " cells not numbers ('" +
+                       column.samples.front() + "'): a run refuses them";
+            }
             text.add({field, resolved->column_name, std::string(routeName(resolved->route)),
-                      unitText(*resolved), std::to_string(nulls), resolved->matched_by});
+                      unitText(*resolved), std::to_string(nulls), why});
             continue;
         }
         const std::string& problem = inspection.mapping.problems[i];
@@ -342,20 +361,23 @@ void formatCapabilities(std::ostringstream& out, const CatalogInspection& inspec
                                   : std::string(capability.without) + " (missing " + missing + ")"});
     }
     text.write(out, "    ");
-    const auto& problems = inspection.mapping.problems;
-    const auto first =
-        std::find_if(problems.begin(), problems.end(), [](const std::string& p) { return !p.empty(); });
-    if (first == problems.end()) {
-        return;
-    }
     std::string required;
     for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
         if (isRequiredField(static_cast<CatalogField>(i)) && !mapping.fields[i]) {
             required.append(required.empty() ? "" : " ").append(kCatalogFieldNames[i]);
         }
     }
-    out << "  required fields still missing: " << (required.empty() ? "none" : required) << "\n";
-    out << "  a run stops with: " << *first << "\n";
+    if (!required.empty()) {
+        out << "  required fields still missing: " << required << "\n";
+    }
+    const auto& problems = inspection.mapping.problems;
+    const auto first =
+        std::find_if(problems.begin(), problems.end(), [](const std::string& p) { return !p.empty(); });
+    if (first != problems.end()) {
+        out << "  a run stops with: " << *first << "\n";
+    } else if (!inspection.scan_error.empty()) {
+        out << "  a run stops with: " << inspection.scan_error << "\n";
+    }
 }
 
 void formatScan(std::ostringstream& out, const FileScanReport& scan) {

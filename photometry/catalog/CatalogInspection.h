@@ -26,9 +26,10 @@ struct CatalogInspection {
     std::array<std::vector<ColumnCandidate>, kCatalogFieldCount> candidates; // for unmapped fields
     std::string hdu_option;                        // the --hdu the mapping text names ("" for CSV)
     std::map<std::string, std::string> user_units; // --unit as given
-    bool scanned = false; // every field resolved, so the rows were scanned and counted
-    FileScanReport scan;  // valid when scanned
-    std::string error;    // the InputError message, "" if the file was read
+    bool scanned = false;   // every field resolved and the rows were scanned and counted
+    FileScanReport scan;    // valid when scanned
+    std::string scan_error; // every field resolved but the scan refused a cell ("'-' is not a number")
+    std::string error;      // the InputError message, "" if the file was read
 };
 
 /// Inspects every file (rows are counted, none kept). settings.min_parallax_mas sets the candidate count.

@@ -355,4 +355,20 @@ TEST_CASE("published tables as they name their columns: candidates for the field
     CHECK(
         text.find("    no   near infrared:   L/T/Y dwarfs from Gaia bands only (T dwarfs by G-RP) (missing j "
                   "ks)\n") != std::string::npos);
+    // Mapped as a user would from those candidates, the table still cannot be run: the name rule maps
+    // the text column "source" to source_id, and J_MKO has "-" cells. inspect reads the file, flags both
+    // columns and quotes the scan's error instead of stopping.
+    ScanSettings settings;
+    settings.user_columns = {
+        {"parallax", "plx_mas"}, {"parallax_error", "plx_err"}, {"g", "W2_mag"}, {"j", "J_MKO"}};
+    settings.user_units = {{"parallax", "mas"}, {"parallax_error", "mas"}};
+    const CatalogInspection mapped =
+        inspectOne(reference + "y_dwarfs_kirkpatrick2019_photometry.csv", settings);
+    CHECK_FALSE(mapped.scanned);
+    CHECK(mapped.scan_error == reference + "y_dwarfs_kirkpatrick2019_photometry.csv line 2: column source "
+                                           "(source_id): 'WISEA J030237.52-581740.3' is not a number");
+    const std::string mapped_text = formatInspection({mapped});
+    CHECK(mapped_text.find("--column j=J_MKO; 3 cells not numbers ('-'): a run refuses them\n") !=
+          std::string::npos);
+    CHECK(mapped_text.find("  a run stops with: " + mapped.scan_error + "\n") != std::string::npos);
 }
