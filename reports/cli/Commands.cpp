@@ -358,6 +358,8 @@ int inspectCommand(const std::vector<std::string>& arguments) {
     }
     const auto inspections = photometry::inspectCatalogs(paths, settings);
     std::cout << photometry::formatInspection(inspections);
+    // 0 when every file could be read, also when required fields are missing: showing what is missing is
+    // inspect's job (README, Inspecting an unknown table); 2 for a file that cannot be read.
     const bool all_read =
         std::all_of(inspections.begin(), inspections.end(),
                     [](const photometry::CatalogInspection& inspection) { return inspection.error.empty(); });

@@ -173,7 +173,8 @@ void checkProfileAgainstReference(const TableProfile& profile, const nlohmann::j
 
 } // namespace
 
-TEST_CASE("a table with only non-standard names: ranked candidates, nothing applied, on FITS, gzip and CSV") {
+TEST_CASE("a table with only non-standard names: ranked candidates, nothing applied, on FITS, gzip, bzip2 "
+          "and CSV") {
     const ScratchDirectory directory("starcensus-suggest");
     const std::string path = directory.file("odd.fits");
     const FixtureTable table = nonStandardTable();
@@ -225,14 +226,18 @@ TEST_CASE("a table with only non-standard names: ranked candidates, nothing appl
     CHECK(text.find("    # column = parallax=PX\n") != std::string::npos);
     CHECK(text.find("--unit parallax") == std::string::npos);
 
-    // Every input format: the gzip copy says the same; the CSV copy loses the units (so the parallax
-    // candidates score 30, not 50) but ranks the same columns first.
+    // Every input format: the gzip and bzip2 copies say the same; the CSV copy loses the units (so the
+    // parallax candidates score 30, not 50) but ranks the same columns first.
     const CatalogInspection gz = inspectOne(gz_path);
+    const std::string bz2_path = directory.file("odd.fits.bz2");
+    starcensus::testing::runReferencePython("bzip2_file.py", "'" + path + "' '" + bz2_path + "'");
+    const CatalogInspection bz2 = inspectOne(bz2_path);
     const CatalogInspection csv = inspectOne(csv_path);
     for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
         const auto field = static_cast<CatalogField>(i);
         CAPTURE(fieldName(field));
         CHECK(candidateNames(gz, field) == candidateNames(fits, field));
+        CHECK(candidateNames(bz2, field) == candidateNames(fits, field));
         CHECK(fits.table.columns.size() == gz.table.columns.size());
         if (!candidateNames(fits, field).empty()) {
             CHECK(candidateNames(csv, field).front() == candidateNames(fits, field).front());
