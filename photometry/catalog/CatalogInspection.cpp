@@ -205,12 +205,20 @@ void formatFields(std::ostringstream& out, const CatalogInspection& inspection) 
     text.write(out, "    ");
 }
 
-// A column name as one shell word: quoted when it holds anything but letters, digits and _ . + -.
+// A column name or path as one shell word: quoted when it holds anything but letters, digits and
+// _ . + - = /.
 std::string shellWord(const std::string& text) {
     const bool plain = std::all_of(text.begin(), text.end(), [](unsigned char c) {
-        return std::isalnum(c) || c == '_' || c == '.' || c == '+' || c == '-' || c == '=';
+        return std::isalnum(c) || c == '_' || c == '.' || c == '+' || c == '-' || c == '=' || c == '/';
     });
-    return plain ? text : "'" + text + "'";
+    if (plain) {
+        return text;
+    }
+    std::string quoted = "'";
+    for (const char c : text) {
+        quoted += c == '\'' ? std::string("'\\''") : std::string(1, c); // ' ends, escapes and reopens
+    }
+    return quoted + "'";
 }
 
 using OptionList = std::vector<std::pair<std::string, std::string>>; // option name, value
@@ -273,7 +281,8 @@ std::string asIni(const OptionList& options, const std::string& prefix) {
 
 void formatMappingText(std::ostringstream& out, const CatalogInspection& inspection) {
     const OptionList settled = settledOptions(inspection);
-    out << "  mapping as options:\n    " << asCommandLine(settled) << "\n";
+    out << "  mapping as a command line:\n    starcensus run " << shellWord(inspection.path) << " "
+        << asCommandLine(settled) << "\n";
     out << "  mapping as INI lines (--config FILE):\n" << asIni(settled, "    ");
     const OptionList suggested = suggestedOptions(inspection);
     if (!suggested.empty()) {

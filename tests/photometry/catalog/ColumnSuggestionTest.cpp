@@ -377,3 +377,21 @@ TEST_CASE("published tables as they name their columns: candidates for the field
           std::string::npos);
     CHECK(mapped_text.find("  a run stops with: " + mapped.scan_error + "\n") != std::string::npos);
 }
+
+TEST_CASE("the mapping text quotes names a shell would split and reads back as the same options") {
+    const ScratchDirectory directory("starcensus-suggest");
+    const std::string path = directory.file("it's here.csv");
+    starcensus::testing::writeText(path, "parallax,parallax_error,G mag\n10.5,0.5,12.25\n");
+    ScanSettings settings;
+    settings.user_columns = {{"g", "G mag"}};
+    const CatalogInspection inspection = inspectOne(path, settings);
+    CHECK(inspection.scanned);
+    CHECK(mappingAsOptions(inspection) ==
+          "--column parallax=parallax --column parallax_error=parallax_error --column 'g=G mag'");
+    CHECK(mappingAsIni(inspection) ==
+          "column = parallax=parallax\ncolumn = parallax_error=parallax_error\ncolumn = g=G mag\n");
+    std::string quoted_path = "'"; // POSIX sh quoting: ' ends the word, \' is a quote, ' reopens
+    quoted_path.append(directory.file("it'\\''s here.csv")).append("'");
+    CHECK(formatInspection({inspection}).find("    starcensus run " + quoted_path + " --column parallax=") !=
+          std::string::npos);
+}
