@@ -365,7 +365,7 @@ void formatCapabilities(std::ostringstream& out, const CatalogInspection& inspec
                 missing.append(missing.empty() ? "" : " ").append(fieldName(field));
             }
         }
-        text.add({missing.empty() ? "yes" : "no", std::string(capability.name) + ":",
+        text.add({missing.empty() ? "[x]" : "[ ]", std::string(capability.name) + ":",
                   missing.empty() ? std::string(capability.with)
                                   : std::string(capability.without) + " (missing " + missing + ")"});
     }
@@ -377,7 +377,7 @@ void formatCapabilities(std::ostringstream& out, const CatalogInspection& inspec
         }
     }
     if (!required.empty()) {
-        out << "  required fields still missing: " << required << "\n";
+        out << "  required fields not mapped yet: " << required << "\n";
     }
     const auto& problems = inspection.mapping.problems;
     const auto first =

@@ -218,7 +218,7 @@ TEST_CASE("a table with only non-standard names: ranked candidates, nothing appl
     const std::string px_row = lineStartingWith(text, "    4   PX  ");
     CHECK(px_row.starts_with("    4   PX      number  1E     arcsec  -   "));
     CHECK(px_row.ends_with("  1      -0.0005 to 0.1005")); // float32 values at 6 significant digits
-    CHECK(text.find("  required fields still missing: parallax parallax_error g\n") != std::string::npos);
+    CHECK(text.find("  required fields not mapped yet: parallax parallax_error g\n") != std::string::npos);
     CHECK(text.find("  a run stops with: " + path + " [HDU 1 ODD]: no column for parallax (") !=
           std::string::npos);
     CHECK(text.find("    --column source_id=ID --column ra=ALPHA --column dec=DELTA --column parallax=PX "
@@ -353,12 +353,12 @@ TEST_CASE("published tables as they name their columns: candidates for the field
     CHECK(candidateNames(y_dwarfs, CatalogField::G).empty());
     const std::string text = formatInspection({y_dwarfs});
     CHECK(text.find("--unit parallax=mas --unit parallax_error=UNIT") != std::string::npos);
-    CHECK(text.find("    no   census:          none: a run stops (missing parallax parallax_error g)\n") !=
+    CHECK(text.find("    [ ]  census:          none: a run stops (missing parallax parallax_error g)\n") !=
           std::string::npos);
-    CHECK(text.find("    yes  mid infrared:    W1-W2 classes for objects without J-Ks\n") !=
+    CHECK(text.find("    [x]  mid infrared:    W1-W2 classes for objects without J-Ks\n") !=
           std::string::npos);
     CHECK(
-        text.find("    no   near infrared:   L/T/Y dwarfs from Gaia bands only (T dwarfs by G-RP) (missing j "
+        text.find("    [ ]  near infrared:   L/T/Y dwarfs from Gaia bands only (T dwarfs by G-RP) (missing j "
                   "ks)\n") != std::string::npos);
     // Mapped as a user would from those candidates, the table still cannot be run: the name rule maps
     // the text column "source" to source_id, and J_MKO has "-" cells. inspect reads the file, flags both
