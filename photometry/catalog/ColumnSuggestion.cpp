@@ -3,14 +3,16 @@
 #include <algorithm>
 #include <array>
 #include <cctype>
+#include <optional>
 #include <set>
+#include <sstream>
 #include <string_view>
 
 namespace starcensus::photometry {
 
 namespace {
 
-// Score parts, documented in ColumnSuggestion.h and README.md (Methods, Reading).
+// Score parts, documented in ColumnSuggestion.h and README.md (Inspecting an unknown table).
 constexpr int kUcdMatch = 50;
 constexpr int kUcdClose = 25;
 constexpr int kUnitStated = 20;
@@ -217,14 +219,10 @@ NameReading readName(std::string_view name) {
 
 std::set<std::string> ucdWords(const std::string& normalised) {
     std::set<std::string> words;
-    std::size_t start = 0;
-    while (start <= normalised.size() && !normalised.empty()) {
-        const auto end = normalised.find(';', start);
-        words.insert(normalised.substr(start, end == std::string::npos ? std::string::npos : end - start));
-        if (end == std::string::npos) {
-            break;
-        }
-        start = end + 1;
+    std::istringstream stream(normalised);
+    std::string word;
+    while (std::getline(stream, word, ';')) {
+        words.insert(word);
     }
     return words;
 }
@@ -237,7 +235,7 @@ bool isGenericWord(const std::string& word) {
     return isErrorWord(word) || word == "phot.mag" || word == "phot.flux" || word == "meta.main";
 }
 
-// UCD evidence: the score and its reason, 0 and "" if none.
+// UCD evidence: the points and their reason; 0 points if the UCD says nothing about the field.
 std::pair<int, std::string> ucdEvidence(CatalogField field, const ColumnDescription& column) {
     const std::string ucd = normalisedUcd(column.ucd, field);
     if (ucd.empty()) {
@@ -245,7 +243,7 @@ std::pair<int, std::string> ucdEvidence(CatalogField field, const ColumnDescript
     }
     const auto known = knownUcds(field);
     if (std::find(known.begin(), known.end(), ucd) != known.end()) {
-        return {kUcdMatch, "UCD " + column.ucd + " +" + std::to_string(kUcdMatch)};
+        return {kUcdMatch, "UCD " + column.ucd};
     }
     const auto words = ucdWords(ucd);
     const bool column_is_error = std::any_of(words.begin(), words.end(), isErrorWord);
@@ -253,8 +251,7 @@ std::pair<int, std::string> ucdEvidence(CatalogField field, const ColumnDescript
         for (const auto& word : ucdWords(std::string(known_ucd))) {
             if (!isGenericWord(word) && words.count(word) != 0 &&
                 column_is_error == valueFieldOf(field).has_value()) {
-                return {kUcdClose, "UCD " + column.ucd + " close to " + std::string(known_ucd) + " +" +
-                                       std::to_string(kUcdClose)};
+                return {kUcdClose, "UCD " + column.ucd + " close to " + std::string(known_ucd)};
             }
         }
     }
@@ -274,6 +271,82 @@ struct Scored {
     }
 };
 
+// Name evidence: a known name, else a stem token; false if the name says nothing about the field.
+bool addNameEvidence(Scored& scored, CatalogField field, const std::string& column_name,
+                     const NameReading& name) {
+    std::string lower = column_name;
+    std::transform(lower.begin(), lower.end(), lower.begin(),
+                   [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+    const auto known = knownNames(field);
+    if (std::find(known.begin(), known.end(), lower) != known.end()) {
+        scored.add(kKnownName, "known name " + column_name);
+        return true;
+    }
+    const Words& own_stems = stems(valueFieldOf(field).value_or(field));
+    const auto stem = std::find_if(name.tokens.begin(), name.tokens.end(),
+                                   [&](const std::string& token) { return contains(own_stems, token); });
+    if (stem == name.tokens.end()) {
+        return false;
+    }
+    scored.add(kStemToken, "name token " + *stem);
+    return true;
+}
+
+// Release tokens, and the stems of other bands in a band's name.
+void addQualifierEvidence(Scored& scored, CatalogField field, const NameReading& name) {
+    const SurveyWords& surveys = surveyWords(field);
+    for (const auto& token : name.raw) {
+        if (contains(surveys.own, token)) {
+            scored.add(kOwnSurvey, "release " + token);
+        } else if (contains(surveys.other, token)) {
+            scored.add(kOtherSurvey, "other survey " + token);
+        }
+    }
+    if (!isBand(field)) {
+        return;
+    }
+    const CatalogField own_band = valueFieldOf(field).value_or(field);
+    for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
+        const auto other = static_cast<CatalogField>(i);
+        if (!isBand(other) || valueFieldOf(other) || other == own_band) {
+            continue;
+        }
+        const auto& other_stems = stems(other);
+        if (std::any_of(name.tokens.begin(), name.tokens.end(),
+                        [&](const std::string& token) { return contains(other_stems, token); })) {
+            scored.add(kOtherBand, "also names " + std::string(fieldName(other)));
+        }
+    }
+}
+
+// The stated unit, else the one the name implies.
+void addUnitEvidence(Scored& scored, CatalogField field, const std::string& stated_unit,
+                     const NameReading& name) {
+    if (!stated_unit.empty()) {
+        if (unitScale(field, stated_unit)) {
+            scored.add(kUnitStated, "unit " + stated_unit);
+        } else {
+            scored.add(kUnitRefused, "unit " + stated_unit + " is not " + std::string(canonicalUnit(field)));
+        }
+    } else if (!name.unit.empty() && !isTextField(field)) {
+        if (unitScale(field, name.unit)) {
+            scored.add(kUnitInName, "unit " + name.unit + " in the name");
+        } else {
+            scored.add(kUnitRefused, "name says " + name.unit + ", not " + std::string(canonicalUnit(field)));
+        }
+    }
+}
+
+void addCellEvidence(Scored& scored, CatalogField field, const ColumnProfile& column) {
+    if (column.numbers == 0 && column.texts == 0) {
+        scored.add(kEveryCellNull, "every cell null");
+    }
+    if (!isTextField(field) && column.texts > 0) {
+        scored.add(kCellsNotNumbers,
+                   std::to_string(column.texts) + " cells not numbers ('" + column.samples.front() + "')");
+    }
+}
+
 std::optional<ColumnCandidate> scoreColumn(CatalogField field, const ColumnProfile& column,
                                            std::size_t index) {
     const bool text_field = isTextField(field);
@@ -283,84 +356,26 @@ std::optional<ColumnCandidate> scoreColumn(CatalogField field, const ColumnProfi
         return std::nullopt;
     }
     const NameReading name = readName(column.description.name);
-    const bool error_field = valueFieldOf(field).has_value();
-    if (!name.excluded_by.empty() || name.error_marker != error_field) {
+    if (!name.excluded_by.empty() || name.error_marker != valueFieldOf(field).has_value()) {
         return std::nullopt;
     }
     Scored scored;
     const auto [ucd_points, ucd_reason] = ucdEvidence(field, column.description);
     if (ucd_points != 0) {
-        scored.score += ucd_points;
-        scored.reasons = ucd_reason;
+        scored.add(ucd_points, ucd_reason);
     }
-    std::string lower = column.description.name;
-    std::transform(lower.begin(), lower.end(), lower.begin(),
-                   [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-    const auto known = knownNames(field);
-    const Words& own_stems = stems(valueFieldOf(field).value_or(field));
-    bool named = false;
-    if (std::find(known.begin(), known.end(), lower) != known.end()) {
-        scored.add(kKnownName, "known name " + column.description.name);
-        named = true;
-    } else {
-        const auto stem = std::find_if(name.tokens.begin(), name.tokens.end(),
-                                       [&](const std::string& token) { return contains(own_stems, token); });
-        if (stem != name.tokens.end()) {
-            scored.add(kStemToken, "name token " + *stem);
-            named = true;
-        }
-    }
+    const bool named = addNameEvidence(scored, field, column.description.name, name);
     if (!named && ucd_points == 0) {
         return std::nullopt; // a unit alone says nothing about which quantity a column holds
     }
-    const SurveyWords& surveys = surveyWords(field);
-    for (const auto& token : name.raw) {
-        if (contains(surveys.own, token)) {
-            scored.add(kOwnSurvey, "release " + token);
-        } else if (contains(surveys.other, token)) {
-            scored.add(kOtherSurvey, "other survey " + token);
-        }
-    }
-    if (isBand(field)) {
-        for (std::size_t i = 0; i < kCatalogFieldCount; ++i) {
-            const auto other = static_cast<CatalogField>(i);
-            if (isBand(other) && !valueFieldOf(other) && other != valueFieldOf(field).value_or(field)) {
-                const auto& other_stems = stems(other);
-                const auto hit =
-                    std::find_if(name.tokens.begin(), name.tokens.end(),
-                                 [&](const std::string& token) { return contains(other_stems, token); });
-                if (hit != name.tokens.end()) {
-                    scored.add(kOtherBand, "also names " + std::string(fieldName(other)));
-                }
-            }
-        }
-    }
-    const std::string stated_unit = column.description.unit;
-    if (!stated_unit.empty()) {
-        if (unitScale(field, stated_unit)) {
-            scored.add(kUnitStated, "unit " + stated_unit);
-        } else {
-            scored.add(kUnitRefused, "unit " + stated_unit + " is not " + std::string(canonicalUnit(field)));
-        }
-    } else if (!name.unit.empty() && !text_field) {
-        if (unitScale(field, name.unit)) {
-            scored.add(kUnitInName, "unit " + name.unit + " in the name");
-        } else {
-            scored.add(kUnitRefused, "name says " + name.unit + ", not " + std::string(canonicalUnit(field)));
-        }
-    }
-    if (column.numbers == 0 && column.texts == 0) {
-        scored.add(kEveryCellNull, "every cell null");
-    }
-    if (!text_field && column.texts > 0) {
-        scored.add(kCellsNotNumbers,
-                   std::to_string(column.texts) + " cells not numbers ('" + column.samples.front() + "')");
-    }
+    addQualifierEvidence(scored, field, name);
+    addUnitEvidence(scored, field, column.description.unit, name);
+    addCellEvidence(scored, field, column);
     if (scored.score <= 0) {
         return std::nullopt;
     }
-    return ColumnCandidate{index, scored.score, scored.reasons,
-                           stated_unit.empty() && !text_field ? name.unit : std::string()};
+    const bool unit_from_name = column.description.unit.empty() && !text_field;
+    return ColumnCandidate{index, scored.score, scored.reasons, unit_from_name ? name.unit : std::string()};
 }
 
 } // namespace
