@@ -192,8 +192,10 @@ void formatFields(std::ostringstream& out, const CatalogInspection& inspection) 
         if (isRequiredField(static_cast<CatalogField>(i))) {
             why = "required; " + why;
         }
+        const std::string where = inspection.table.where + ": ";
         if (!problem.empty() && problem.find(": no column for ") == std::string::npos) {
-            why = problem.substr(problem.find(": ") + 2); // ambiguous, or a unit the field refuses
+            // Ambiguous, a --column naming no column, or a unit the field refuses; the file is named above.
+            why = problem.starts_with(where) ? problem.substr(where.size()) : problem;
         }
         text.add({field, "none", "-", "-", "-", why});
         for (std::size_t c = 0; c < candidates.size(); ++c) {
