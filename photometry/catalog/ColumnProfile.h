@@ -1,7 +1,8 @@
 #pragma once
 // What every column of a table holds, for `inspect`: the column's own description (name, TFORM, unit,
 // UCD), the kind of its values, its null count, and the range of its numbers or a few of its texts.
-// Unlike the scan, which decodes only mapped fields, a profile reads every cell of every column.
+// Unlike the scan, which decodes only mapped fields, a profile reads every cell of every column (with the
+// scan's decoders, so both agree on values and nulls).
 #include "photometry/catalog/ColumnMapping.h"
 
 #include <cstdint>
@@ -49,8 +50,8 @@ struct TableProfile {
 };
 
 /// Profiles the table a scan with these `hdu` settings would read (see ScanSettings::hdu); CSV for paths
-/// ending in ".csv", FITS otherwise (also gzip, which cfitsio inflates into memory). Throws InputError
-/// naming the file (and HDU) for unreadable input.
+/// ending in ".csv", FITS otherwise (a gzip file read as a stream; other compressed forms through
+/// cfitsio). Throws InputError naming the file (and HDU) for unreadable input.
 TableProfile profileTable(const std::string& path, const std::string& hdu);
 
 /// The columns as the mapping sees them.

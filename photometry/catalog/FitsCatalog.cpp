@@ -956,44 +956,63 @@ class PlainDataFile {
     int descriptor_;
 };
 
-// Reads one scalar numeric or character column over rows [first, first + count) into its profile;
-// cfitsio applies TSCALn/TZEROn and turns TNULLn into the NaN given as the null value.
-void profileColumnRows(const FitsFile& file, const TableColumn& column, LONGLONG first, LONGLONG count,
-                       ColumnProfile& profile) {
-    int status = 0;
-    int any_null = 0;
-    if (profile.kind == ColumnKind::Number) {
-        std::vector<double> values(static_cast<std::size_t>(count));
-        double null_value = std::numeric_limits<double>::quiet_NaN();
-        fits_read_col(file.get(), TDOUBLE, column.description.number, first, 1, count, &null_value,
-                      values.data(), &any_null, &status);
-        file.check(status, "cannot read column " + column.description.name);
-        for (const double value : values) {
-            if (std::isnan(value)) {
-                profile.countNull();
+// A FITS file opened for reading one table: a gzip file is read as a stream, its headers up to the table
+// inflated into `header_image` for cfitsio (the data follow in `gzip`); anything else is opened by
+// cfitsio. Not movable: cfitsio keeps pointers into header_image.
+struct OpenedFits {
+    OpenedFits(const std::string& path, const std::string& hdu) : storage(storageOf(path)) {
+        requireRegularFile(path);
+        if (storage == Storage::Gzip) {
+            gzip.emplace(path);
+            if (auto image = readHeadersUpToTable(*gzip, hdu, path)) {
+                header_image = std::move(*image);
+                file.emplace(path, header_image);
             } else {
-                profile.countNumber(value);
+                gzip.reset(); // no such table or not FITS: cfitsio opens the whole file and explains
             }
         }
-        return;
+        if (!file) {
+            file.emplace(path);
+        }
     }
-    const auto width = static_cast<std::size_t>(column.repeat) + 1;
-    std::vector<char> buffer(width * static_cast<std::size_t>(count), '\0');
-    std::vector<char*> cells(static_cast<std::size_t>(count));
-    for (std::size_t i = 0; i < cells.size(); ++i) {
-        cells[i] = buffer.data() + i * width;
-    }
-    char empty[] = "";
-    fits_read_col(file.get(), TSTRING, column.description.number, first, 1, count, empty, cells.data(),
-                  &any_null, &status);
-    file.check(status, "cannot read column " + column.description.name);
-    for (const char* cell : cells) {
-        std::string_view text(cell);
-        const auto begin = text.find_first_not_of(' ');
-        if (begin == std::string_view::npos) {
-            profile.countNull();
-        } else {
-            profile.countText(text.substr(begin, text.find_last_not_of(' ') - begin + 1));
+    OpenedFits(const OpenedFits&) = delete;
+    OpenedFits& operator=(const OpenedFits&) = delete;
+
+    Storage storage;
+    std::optional<GzipFile> gzip;
+    std::vector<unsigned char> header_image;
+    std::optional<FitsFile> file;
+};
+
+// Adds `count` raw rows to the profiles of the scalar numeric and character columns, decoded as the scan
+// decodes them (FieldDecoder: TSCALn/TZEROn, integer TNULLn and NaN are null; TextDecoder: blank is null).
+void profileRows(const std::vector<TableColumn>& columns, const unsigned char* rows, LONGLONG count,
+                 std::size_t row_bytes, std::vector<ColumnProfile>& profiles) {
+    for (std::size_t c = 0; c < columns.size(); ++c) {
+        ColumnProfile& profile = profiles[c];
+        if (profile.kind == ColumnKind::Number) {
+            // A Number column is scalar B, I, J, K, E or D, which numericDecoderFor never refuses: the field
+            // and place it would name in an error do not matter.
+            const FieldDecoder decoder = numericDecoderFor(columns[c], CatalogField::SourceId, "");
+            for (LONGLONG r = 0; r < count; ++r) {
+                const double value = decoder.physical(rows + static_cast<std::size_t>(r) * row_bytes);
+                if (std::isnan(value)) {
+                    profile.countNull();
+                } else {
+                    profile.countNumber(value);
+                }
+            }
+        } else if (profile.kind == ColumnKind::Text) {
+            const TextDecoder decoder{columns[c].offset, columns[c].bytes};
+            for (LONGLONG r = 0; r < count; ++r) {
+                const std::string_view text = decoder.text(rows + static_cast<std::size_t>(r) * row_bytes);
+                const auto begin = text.find_first_not_of(' ');
+                if (begin == std::string_view::npos) {
+                    profile.countNull();
+                } else {
+                    profile.countText(text.substr(begin, text.find_last_not_of(' ') - begin + 1));
+                }
+            }
         }
     }
 }
@@ -1035,7 +1054,8 @@ std::vector<HduSummary> listHdus(const std::string& path) {
 namespace detail {
 
 TableProfile profileFitsTable(const std::string& path, const std::string& hdu) {
-    FitsFile file(path);
+    OpenedFits opened(path, hdu);
+    FitsFile& file = *opened.file;
     TableProfile profile;
     profile.hdu_index = selectTable(file, hdu);
     profile.hdu_name = file.optionalText("EXTNAME").value_or("");
@@ -1046,6 +1066,11 @@ TableProfile profileFitsTable(const std::string& path, const std::string& hdu) {
     LONGLONG rows = 0;
     fits_get_num_rowsll(file.get(), &rows, &status);
     file.check(status, "cannot read the number of rows");
+    LONGLONG header_start = 0;
+    LONGLONG data_start = 0;
+    LONGLONG data_end = 0;
+    fits_get_hduaddrll(file.get(), &header_start, &data_start, &data_end, &status);
+    file.check(status, "cannot locate the table data");
     profile.rows = rows;
     for (const auto& column : columns) {
         ColumnProfile profiled;
@@ -1053,42 +1078,42 @@ TableProfile profileFitsTable(const std::string& path, const std::string& hdu) {
         profiled.kind = kindOf(column);
         profile.columns.push_back(std::move(profiled));
     }
-    // Rows in the chunks cfitsio's buffers hold at once (fits_get_rowsize), every column per chunk.
-    long chunk_rows = 0;
-    fits_get_rowsize(file.get(), &chunk_rows, &status);
-    file.check(status, "cannot size the row buffer");
-    const LONGLONG chunk = std::max<LONGLONG>(chunk_rows, 1);
-    for (LONGLONG first = 1; first <= rows; first += chunk) {
-        const LONGLONG count = std::min(chunk, rows - first + 1);
-        for (std::size_t i = 0; i < columns.size(); ++i) {
-            if (profile.columns[i].kind != ColumnKind::Other) {
-                profileColumnRows(file, columns[i], first, count, profile.columns[i]);
+    const std::size_t row_bytes = columns.empty() ? 0 : columns.back().offset + columns.back().bytes;
+    if (rows == 0 || row_bytes == 0) {
+        return profile;
+    }
+    if (opened.gzip && static_cast<std::size_t>(data_start) != opened.header_image.size()) {
+        throw InputError(file.where() + ": cannot locate the table data in the gzip stream");
+    }
+    // Blocks of about 8 MiB, read in row order: from the gzip stream as it is inflated, or through
+    // cfitsio's buffers.
+    const auto rows_per_block =
+        static_cast<LONGLONG>(std::max<std::size_t>(1, (std::size_t{8} << 20) / row_bytes));
+    std::vector<unsigned char> block;
+    for (LONGLONG first = 0; first < rows; first += rows_per_block) {
+        const LONGLONG count = std::min(rows_per_block, rows - first);
+        const auto bytes = static_cast<std::size_t>(count) * row_bytes;
+        block.resize(bytes);
+        if (opened.gzip) {
+            if (opened.gzip->read(block.data(), bytes, file.where()) != bytes) {
+                throwTruncated(file.where(), first, count, "the gzip stream ends early");
             }
+        } else {
+            fits_read_tblbytes(file.get(), first + 1, 1, static_cast<LONGLONG>(bytes), block.data(), &status);
+            file.check(status, rowsLabel(first, count) + " (truncated file?)");
         }
+        profileRows(columns, block.data(), count, row_bytes, profile.columns);
     }
     return profile;
 }
 
 FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
                             unsigned threads) {
-    requireRegularFile(path);
-    const Storage storage = storageOf(path);
-    std::optional<GzipFile> gzip;
-    std::vector<unsigned char> header_image;
-    std::optional<FitsFile> opened;
-    if (storage == Storage::Gzip) {
-        gzip.emplace(path);
-        if (auto image = readHeadersUpToTable(*gzip, settings.hdu, path)) {
-            header_image = std::move(*image);
-            opened.emplace(path, header_image);
-        } else {
-            gzip.reset(); // no such table or not FITS: cfitsio opens the whole file and explains
-        }
-    }
-    if (!opened) {
-        opened.emplace(path);
-    }
-    FitsFile& file = *opened;
+    OpenedFits opened(path, settings.hdu);
+    const Storage storage = opened.storage;
+    std::optional<GzipFile>& gzip = opened.gzip;
+    const std::vector<unsigned char>& header_image = opened.header_image;
+    FitsFile& file = *opened.file;
 
     FileScanResult result;
     FileScanReport& report = result.report;

@@ -32,8 +32,8 @@ struct HduSummary {
 std::vector<HduSummary> listHdus(const std::string& path);
 
 namespace detail {
-/// Profiles every column of the table `hdu` selects (see ColumnProfile.h and ScanSettings::hdu), read
-/// through cfitsio (gzip files are inflated into memory by cfitsio: inspect only).
+/// Profiles every column of the table `hdu` selects (see ColumnProfile.h and ScanSettings::hdu), rows read
+/// in order in blocks (gzip files as a stream) and decoded as the scan decodes them.
 TableProfile profileFitsTable(const std::string& path, const std::string& hdu);
 /// Scans one FITS file (see CatalogScan.h) with up to `threads` threads; rows get `file_index`.
 FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
