@@ -9,6 +9,7 @@
 #include <nlohmann/json.hpp>
 
 #include <cmath>
+#include <filesystem>
 #include <limits>
 #include <sstream>
 
@@ -394,4 +395,29 @@ TEST_CASE("the mapping text quotes names a shell would split and reads back as t
     quoted_path.append(directory.file("it'\\''s here.csv")).append("'");
     CHECK(formatInspection({inspection}).find("    starcensus run " + quoted_path + " --column parallax=") !=
           std::string::npos);
+}
+
+TEST_CASE("inspect reports an unreadable table as that file's one-line error and goes on with the others") {
+    const ScratchDirectory directory("starcensus-suggest");
+    const std::string ragged = directory.file("ragged.csv");
+    starcensus::testing::writeText(ragged, "parallax,parallax_error,G\n10,0.5,12\n11,0.5\n");
+    const std::string truncated = directory.file("truncated.fits");
+    starcensus::testing::writeFitsTable(truncated, starcensus::testing::mixedTypeTable(2000, 3));
+    std::filesystem::resize_file(truncated, std::filesystem::file_size(truncated) - 3 * 2880);
+    const std::string truncated_gz = directory.file("truncated.fits.gz");
+    starcensus::testing::gzipFile(truncated, truncated_gz);
+    const std::string good = directory.file("good.fits");
+    starcensus::testing::writeFitsTable(good, nonStandardTable());
+
+    const auto inspections = inspectCatalogs({ragged, truncated, truncated_gz, good}, {});
+    REQUIRE(inspections.size() == 4);
+    CHECK(inspections[0].error == ragged + " line 3: 2 fields, the header has 3");
+    CHECK(inspections[1].error.starts_with(truncated + " [HDU 1 MIXED]: cannot read rows "));
+    CHECK(inspections[2].error.starts_with(truncated_gz + " [HDU 1 MIXED]: cannot read rows "));
+    CHECK(inspections[2].error.ends_with(" (truncated file?): the gzip stream ends early"));
+    CHECK(inspections[3].error.empty());
+    CHECK(inspections[3].table.columns.size() == 22);
+    const std::string text = formatInspection(inspections);
+    CHECK(text.find("  error: " + inspections[0].error + "\n") != std::string::npos);
+    CHECK(text.find("  table: HDU 1 ODD, 4 rows, 22 columns\n") != std::string::npos);
 }
