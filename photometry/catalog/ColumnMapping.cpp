@@ -293,9 +293,12 @@ void resolveUnit(ResolvedColumn& resolved, const ColumnDescription& column,
     const auto scale = unitScale(field, resolved.unit);
     if (!scale) {
         if (resolved.unit.empty()) {
-            throw InputError(described + " has no unit; state it with TUNIT" + std::to_string(column.number) +
-                             " or --unit " + std::string(fieldName(field)) +
-                             "=UNIT (accepted: " + acceptedUnits(field) + ")");
+            // CSV columns have no TFORM, and no keyword could state their unit.
+            const std::string keyword =
+                column.tform.empty() ? "" : "TUNIT" + std::to_string(column.number) + " or ";
+            throw InputError(described + " has no unit; state it with " + keyword + "--unit " +
+                             std::string(fieldName(field)) + "=UNIT (accepted: " + acceptedUnits(field) +
+                             ")");
         }
         throw InputError(described + " has unit '" + resolved.unit + "'; accepted: " + acceptedUnits(field));
     }

@@ -62,7 +62,7 @@ TEST_CASE("CSV parallaxes under other names need --unit, which converts") {
     writeText(path, "plx,e_plx,gmag\n0.1,0.001,10\n");
     ScanSettings settings;
     CHECK(scanError(path, settings) ==
-          path + ": column plx (parallax) has no unit; state it with TUNIT1 or --unit "
+          path + ": column plx (parallax) has no unit; state it with --unit "
                  "parallax=UNIT (accepted: mas, milliarcsec, marcsec, arcsec, arcsecond, "
                  "uas, \xC2\xB5"
                  "as, microarcsec, \xCE\xBC"
