@@ -388,4 +388,28 @@ TEST_CASE("inspect's printed mapping, fed back as --config, gives the same run a
         CHECK(readFile(dir / "from_ini" / name) == reference);
         CHECK(readFile(dir / "printed" / name) == reference);
     }
+
+    // A FITS table the rules map by UCD (the simulator's Gaia layout): the printed INI, with its hdu line
+    // and every field as --column, gives the run the rules give.
+    REQUIRE(runStarcensus("simulate --out mock.fits --truth truth.json --radius-max 12 --seed 5", dir)
+                .exit_code == 0);
+    const Outcome mock = runStarcensus("inspect mock.fits", dir);
+    REQUIRE(mock.exit_code == 0);
+    const std::vector<std::string> mock_ini =
+        blockAfter(mock.stdout_text, "  mapping as INI lines (--config FILE):");
+    REQUIRE(mock_ini.size() > 10);
+    CHECK(mock_ini.front() == "hdu = 1");
+    CHECK(std::find(mock_ini.begin(), mock_ini.end(), "column = parallax=parallax") != mock_ini.end());
+    {
+        std::ofstream config(dir / "mock.ini");
+        for (const auto& line : mock_ini) {
+            config << line << "\n";
+        }
+    }
+    REQUIRE(runStarcensus("run mock.fits --config mock.ini" + common + "mock_ini", dir).exit_code == 0);
+    REQUIRE(runStarcensus("run mock.fits" + common + "mock_rules", dir).exit_code == 0);
+    for (const char* name : {"fractions.json", "sample.fits", "draws.fits"}) {
+        CAPTURE(name);
+        CHECK(readFile(dir / "mock_ini" / name) == readFile(dir / "mock_rules" / name));
+    }
 }
