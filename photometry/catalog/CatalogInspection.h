@@ -13,6 +13,7 @@
 #include "photometry/catalog/FitsCatalog.h"
 
 #include <array>
+#include <map>
 #include <string>
 #include <vector>
 
