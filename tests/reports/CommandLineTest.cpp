@@ -71,11 +71,6 @@ std::size_t lineCount(const std::string& text) {
     return static_cast<std::size_t>(std::count(text.begin(), text.end(), '\n'));
 }
 
-std::string fileText(const std::filesystem::path& path) {
-    std::ifstream stream(path);
-    return {(std::istreambuf_iterator<char>(stream)), std::istreambuf_iterator<char>()};
-}
-
 nlohmann::json jsonFile(const std::filesystem::path& path) {
     std::ifstream stream(path);
     return nlohmann::json::parse(stream);
@@ -192,7 +187,7 @@ TEST_CASE("overlapping inputs count each star once: the same file twice, and a m
     const std::string run_options =
         " --radius 5,10 --draws 200 --no-report --no-hosts --lf-fit none --checksum none";
     REQUIRE(runStarcensus("run full.csv" + run_options + " --out once", dir).exit_code == 0);
-    const std::string fractions_once = fileText(dir / "once" / "fractions.csv");
+    const std::string fractions_once = readFile(dir / "once" / "fractions.csv");
     const auto provenance_once = jsonFile(dir / "once" / "provenance.json");
     const auto candidates = provenance_once["merges"]["rows_out"].get<std::int64_t>();
     CHECK(provenance_once["merges"]["rows_in"] == candidates); // nothing to merge in one mock
@@ -203,12 +198,12 @@ TEST_CASE("overlapping inputs count each star once: the same file twice, and a m
     REQUIRE(twice.exit_code == 0);
     CHECK(twice.stderr_text ==
           "starcensus: warning: ./full.csv: the same file as full.csv, given earlier; read once\n");
-    CHECK(fileText(dir / "twice" / "fractions.csv") == fractions_once);
+    CHECK(readFile(dir / "twice" / "fractions.csv") == fractions_once);
 
     // A copy under another name is another file: every row comes back by its source_id.
     std::filesystem::copy_file(dir / "full.csv", dir / "copy.csv");
     REQUIRE(runStarcensus("run full.csv copy.csv" + run_options + " --out copy", dir).exit_code == 0);
-    CHECK(fileText(dir / "copy" / "fractions.csv") == fractions_once);
+    CHECK(readFile(dir / "copy" / "fractions.csv") == fractions_once);
     const auto copy_merges = jsonFile(dir / "copy" / "provenance.json")["merges"];
     CHECK(copy_merges["by_source_id"] == candidates);
     CHECK(copy_merges["by_position"] == 0);
@@ -231,7 +226,7 @@ TEST_CASE("overlapping inputs count each star once: the same file twice, and a m
         "run near.csv far_j2000.csv --file-epoch far_j2000.csv=2000" + run_options + " --out split", dir);
     REQUIRE(split.exit_code == 0);
     CHECK(split.stderr_text.empty());
-    CHECK(fileText(dir / "split" / "fractions.csv") == fractions_once);
+    CHECK(readFile(dir / "split" / "fractions.csv") == fractions_once);
     const auto split_merges = jsonFile(dir / "split" / "provenance.json")["merges"];
     CHECK(split_merges["rows_out"] == candidates);
     CHECK(split_merges["by_source_id"] == 0);
@@ -249,7 +244,7 @@ TEST_CASE("overlapping inputs count each star once: the same file twice, and a m
     REQUIRE(
         runStarcensus("run near.csv far_j2000.csv --config merge.ini" + run_options + " --out split_ini", dir)
             .exit_code == 0);
-    CHECK(fileText(dir / "split_ini" / "fractions.csv") == fractions_once);
+    CHECK(readFile(dir / "split_ini" / "fractions.csv") == fractions_once);
     // Without the epoch the fast movers are missed and counted twice.
     REQUIRE(runStarcensus("run near.csv far_j2000.csv" + run_options + " --out no_epoch", dir).exit_code ==
             0);
@@ -281,8 +276,7 @@ TEST_CASE("published spectral types: compared with the photometric classes, and 
                     .exit_code == 0);
     }
     const auto fractions = [&](const char* run) {
-        std::ifstream stream(dir / run / "fractions.json");
-        return nlohmann::json::parse(stream).at("radii").at(1); // 20 pc
+        return jsonFile(dir / run / "fractions.json").at("radii").at(1); // 20 pc
     };
     const nlohmann::json checked = fractions("check");
     const nlohmann::json& agreement = checked.at("spectral_type_check");
@@ -319,9 +313,7 @@ TEST_CASE("published spectral types: compared with the photometric classes, and 
     // The report shows the agreement; the table has no RA/Dec, which the sky section says (it used to
     // abort in the HEALPix library).
     REQUIRE(runStarcensus("report check", dir).exit_code == 0);
-    std::ifstream report_stream(dir / "check" / "report.html");
-    const std::string report((std::istreambuf_iterator<char>(report_stream)),
-                             std::istreambuf_iterator<char>());
+    const std::string report = readFile(dir / "check" / "report.html");
     CHECK(report.find("Photometric classes and literature spectral types") != std::string::npos);
     CHECK(report.find("No member has a position (RA/Dec)") != std::string::npos);
     CHECK(
