@@ -9,6 +9,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <optional>
 #include <string>
 
 namespace starcensus::census {
@@ -31,6 +32,60 @@ double perturbed(double value, double error, float normal_deviate) {
     return std::isfinite(error) ? value + error * normal_deviate : value;
 }
 
+/// The first-order errors described in HostMeasurements.h, or nothing where they are not exact enough.
+std::optional<HostUncertainty> propagatedUncertainty(const photometry::CatalogRow& row,
+                                                     const photometry::Classifier& classifier,
+                                                     const DistancePosterior& posterior) {
+    using photometry::ClassificationFlag;
+    const double colour = row.bp_mag - row.rp_mag;
+    const double colour_error = std::hypot(row.bp_error_mag, row.rp_error_mag);
+    if (!std::isfinite(colour) || !std::isfinite(colour_error) || !std::isfinite(row.g_mag)) {
+        return std::nullopt;
+    }
+    const double abs_g = row.g_mag - posterior.distanceModulusAt(0.5);
+    const photometry::Classification centre = classifier.classifyAbsolute(abs_g, colour);
+    constexpr std::uint16_t kOtherPaths = photometry::flagBit(ClassificationFlag::NoColour) |
+                                          photometry::flagBit(ClassificationFlag::OutsideLocus) |
+                                          photometry::flagBit(ClassificationFlag::NearInfrared) |
+                                          photometry::flagBit(ClassificationFlag::JohnsonColour);
+    const photometry::ClassifierSettings& settings = classifier.settings();
+    constexpr double kBoxSigma = 2.0;
+    const bool reaches_infrared =
+        std::isfinite(row.j_mag) &&
+        row.g_mag - posterior.distanceModulusAt(0.0228) > settings.late_type_abs_g_mag;
+    if (centre.stellar_class >= photometry::StellarClass::L || (centre.flags & kOtherPaths) != 0 ||
+        !std::isfinite(centre.teff_k) || reaches_infrared ||
+        colour + kBoxSigma * colour_error > settings.saturated_bp_rp_mag) {
+        return std::nullopt;
+    }
+    // The class must hold over the box's corners: magnitudes at the posterior's 2-sigma quantiles, with the
+    // G error (small beside them) left out.
+    for (const double u : {0.0228, 0.9772}) {
+        const double corner_g = row.g_mag - posterior.distanceModulusAt(u);
+        for (const double sign : {-1.0, 1.0}) {
+            const auto corner =
+                classifier.classifyAbsolute(corner_g, colour + sign * kBoxSigma * colour_error);
+            if (corner.stellar_class != centre.stellar_class || (corner.flags & kOtherPaths) != 0) {
+                return std::nullopt;
+            }
+        }
+    }
+    const auto bluer = classifier.classifyAbsolute(abs_g, colour - colour_error);
+    const auto redder = classifier.classifyAbsolute(abs_g, colour + colour_error);
+    const auto nearlyLinear = [](double low, double middle, double high) {
+        const double below = middle - low;
+        const double above = high - middle;
+        constexpr double kSlopeTolerance = 0.25;
+        return std::abs(above - below) <= kSlopeTolerance * std::max(std::abs(above), std::abs(below));
+    };
+    if (!nearlyLinear(bluer.teff_k, centre.teff_k, redder.teff_k) ||
+        !nearlyLinear(bluer.mass_msun, centre.mass_msun, redder.mass_msun)) {
+        return std::nullopt;
+    }
+    return HostUncertainty{0.5 * std::abs(redder.teff_k - bluer.teff_k),
+                           0.5 * std::abs(redder.mass_msun - bluer.mass_msun), true};
+}
+
 HostUncertainty teffMassUncertainty(const photometry::CatalogRow& row,
                                     const photometry::Classifier& classifier,
                                     const MembershipSettings& membership, const HostListSettings& settings,
@@ -39,6 +94,11 @@ HostUncertainty teffMassUncertainty(const photometry::CatalogRow& row,
         return {};
     }
     const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
+    if (settings.propagate_when_exact) {
+        if (const auto propagated = propagatedUncertainty(row, classifier, posterior)) {
+            return *propagated;
+        }
+    }
     Xoshiro256 random(settings.seed, kHostStreamBase + stream);
     const auto realisations = static_cast<std::size_t>(settings.realisations);
     // The Monte Carlo's table-lookup normal deviates (census/detail/FastNormal.h: tails cut at 3.7 sigma,

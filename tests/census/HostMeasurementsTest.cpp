@@ -1,5 +1,7 @@
 #include "census/HostMeasurements.h"
 
+#include "census/Intervals.h"
+#include "census/mock/Neighbourhood.h"
 #include "photometry/DwarfLocus.h"
 
 #include <doctest/doctest.h>
@@ -47,4 +49,54 @@ TEST_CASE("hosts classified from J and Ks get Teff errors from their 2MASS error
     // L dwarfs span ~1000 K over ten subtypes (the same table): 0.1 mag errors cannot spread Teff by more
     // than a few subtypes.
     CHECK(large_errors < 500.0);
+}
+
+TEST_CASE("first-order Teff and mass errors agree with the re-measurements where they are used") {
+    // A simulated 25 pc neighbourhood (seed 5), the demo's size. The propagated errors are compared with
+    // 2000 re-measurements per host (the 68% half-width of 2000 draws scatters by ~2%, of 200 by ~6%).
+    census::mock::MockSettings mock_settings;
+    const auto mock = census::mock::simulateNeighbourhood(mock_settings, 5);
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    const census::MembershipSettings membership;
+    const census::PreparedSample sample(mock.catalog, {25.0}, membership, census::RowClassRules{}, 2,
+                                        &classifier);
+    census::HostListSettings settings;
+    settings.threads = 2;
+    const census::HostMeasurements fast =
+        census::measureHosts(mock.catalog, sample, classifier, membership, settings);
+    settings.propagate_when_exact = false;
+    settings.realisations = 2000;
+    const census::HostMeasurements full =
+        census::measureHosts(mock.catalog, sample, classifier, membership, settings);
+    REQUIRE(fast.rows == full.rows);
+    std::vector<double> teff_ratios, mass_ratios;
+    int propagated = 0;
+    for (std::size_t h = 0; h < fast.rows.size(); ++h) {
+        const auto& a = fast.uncertainties[h];
+        const auto& b = full.uncertainties[h];
+        if (!a.propagated) {
+            continue;
+        }
+        ++propagated;
+        if (b.teff_k > 0.0 && a.teff_k > 0.0) {
+            teff_ratios.push_back(a.teff_k / b.teff_k);
+        }
+        if (b.mass_msun > 0.0 && a.mass_msun > 0.0) {
+            mass_ratios.push_back(a.mass_msun / b.mass_msun);
+        }
+    }
+    const auto median = [](std::vector<double> v) { return census::sampleQuantile(v, 0.5); };
+    const auto quantile = [](std::vector<double> v, double q) { return census::sampleQuantile(v, q); };
+    MESSAGE("hosts " << fast.rows.size() << ", propagated " << propagated << "; teff ratio median "
+                     << median(teff_ratios) << " [" << quantile(teff_ratios, 0.05) << ", "
+                     << quantile(teff_ratios, 0.95) << "]; mass ratio median " << median(mass_ratios) << " ["
+                     << quantile(mass_ratios, 0.05) << ", " << quantile(mass_ratios, 0.95) << "]");
+    // Measured: 3631 of 4690 hosts propagated; Teff and mass ratios median 1.001, 90% of them within
+    // 0.968-1.038. The bar: 5% (the issue's), for the median and for the central 90%.
+    CHECK(propagated > static_cast<int>(fast.rows.size()) / 2);
+    for (const auto* ratios : {&teff_ratios, &mass_ratios}) {
+        CHECK(median(*ratios) == doctest::Approx(1.0).epsilon(0.02));
+        CHECK(quantile(*ratios, 0.05) > 0.95);
+        CHECK(quantile(*ratios, 0.95) < 1.05);
+    }
 }
