@@ -401,13 +401,15 @@ MergedCatalog mergeCatalogRows(std::vector<CatalogRow> rows, const CatalogMergeS
     first_of = {};
     object_of = {};
 
-    // 2. Positional match across files at the common epoch.
-    std::vector<UnitVector> positions(object_rows.size());
-    for (std::size_t i = 0; i < object_rows.size(); ++i) {
-        const std::uint32_t row = object_rows[i];
-        positions[i] = unitVector(positionAtEpoch(rows[row], epoch_yr[row], settings.match_epoch_yr));
-    }
-    if (settings.match_radius_arcsec > 0.0 && object_rows.size() > 1) {
+    // 2. Positional match across files at the common epoch. Rows are in file order: one file (the usual
+    // single query) has no pairs to look for.
+    const bool several_files = !rows.empty() && rows.front().file_index != rows.back().file_index;
+    if (settings.match_radius_arcsec > 0.0 && object_rows.size() > 1 && several_files) {
+        std::vector<UnitVector> positions(object_rows.size());
+        for (std::size_t i = 0; i < object_rows.size(); ++i) {
+            const std::uint32_t row = object_rows[i];
+            positions[i] = unitVector(positionAtEpoch(rows[row], epoch_yr[row], settings.match_epoch_yr));
+        }
         const auto pairs = positionalPairs(rows, object_rows, files, positions, settings, threads,
                                            report.pairs_refused_by_parallax);
         const std::vector<std::uint32_t> root = groupByPosition(pairs, object_rows.size(), std::move(files));
