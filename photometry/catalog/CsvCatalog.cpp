@@ -1,12 +1,15 @@
 #include "photometry/catalog/CsvCatalog.h"
 
 #include "photometry/base/InputError.h"
+#include "photometry/catalog/EcsvHeader.h"
+
+#include <zlib.h>
 
 #include <algorithm>
+#include <array>
 #include <cctype>
 #include <charconv>
 #include <cmath>
-#include <fstream>
 #include <optional>
 
 namespace starcensus::photometry {
@@ -23,15 +26,15 @@ std::string_view trimmed(std::string_view text) {
     return text;
 }
 
-// Splits at commas outside double quotes; quotes and surrounding blanks are removed from each field.
-void splitFields(std::string_view line, std::vector<std::string_view>& fields) {
+// Splits at the delimiter outside double quotes; quotes and surrounding blanks are removed from each field.
+void splitFields(std::string_view line, char delimiter, std::vector<std::string_view>& fields) {
     fields.clear();
     bool quoted = false;
     std::size_t start = 0;
     for (std::size_t i = 0; i < line.size(); ++i) {
         if (line[i] == '"') {
             quoted = !quoted;
-        } else if (line[i] == ',' && !quoted) {
+        } else if (line[i] == delimiter && !quoted) {
             fields.push_back(trimmed(line.substr(start, i - start)));
             start = i + 1;
         }
@@ -44,50 +47,128 @@ bool isCommentOrBlank(std::string_view line) {
     return first == std::string_view::npos || line[first] == '#';
 }
 
-bool isMissing(std::string_view text) {
-    return text.empty() || (text.size() == 3 && std::tolower(static_cast<unsigned char>(text[0])) == 'n' &&
-                            std::tolower(static_cast<unsigned char>(text[1])) == 'a' &&
-                            std::tolower(static_cast<unsigned char>(text[2])) == 'n');
+// ECSV also writes "null" (the Gaia bulk releases do, from memory); in CSV it stays text, as in Python's
+// csv module.
+bool isMissing(std::string_view text, bool ecsv) {
+    return text.empty() || (ecsv && text == "null") ||
+           (text.size() == 3 && std::tolower(static_cast<unsigned char>(text[0])) == 'n' &&
+            std::tolower(static_cast<unsigned char>(text[1])) == 'a' &&
+            std::tolower(static_cast<unsigned char>(text[2])) == 'n');
 }
 
 struct CsvField {
     std::size_t position;
     const ResolvedColumn* column;
+    // An ECSV float16/float32 column: its text is the shortest decimal of a single-precision value, read
+    // back to that value (as the FITS path holds it), not to the nearest double of the decimal.
+    bool single_precision;
 };
 
-// The lines of a CSV file that hold data (the header first), without comments, blank lines and '\r'.
-class CsvLines {
+// Lines of a text file, plain or gzip-compressed (zlib reads both), streamed: never whole in memory.
+class TextLines {
   public:
-    explicit CsvLines(const std::string& path) : path_(path), stream_(path, std::ios::binary) {
-        if (!stream_) {
+    explicit TextLines(const std::string& path) : path_(path), file_(gzopen(path.c_str(), "rb")) {
+        if (file_ == nullptr) {
             throw InputError(path + ": no such file or not readable");
         }
+        gzbuffer(file_, 1u << 17);
+    }
+    ~TextLines() { gzclose(file_); }
+    TextLines(const TextLines&) = delete;
+    TextLines& operator=(const TextLines&) = delete;
+
+    /// The next line without its '\n' (and '\r'); false at the end. Throws InputError for a damaged or
+    /// truncated compressed stream.
+    bool next(std::string& line) {
+        line.clear();
+        bool ended = false; // zlib reads ahead: an error is only ours once gzgets gives no more data
+        while (!ended) {
+            if (gzgets(file_, buffer_.data(), static_cast<int>(buffer_.size())) == nullptr) {
+                ended = true;
+                int status = Z_OK;
+                const char* message = gzerror(file_, &status);
+                if (status != Z_OK && status != Z_STREAM_END) {
+                    throw InputError(path_ + ": damaged or truncated compressed data after line " +
+                                     std::to_string(line_number_) + " (zlib: " + message + ")");
+                }
+                break;
+            }
+            line += buffer_.data();
+            if (line.back() == '\n') {
+                line.pop_back();
+                break;
+            }
+        }
+        if (ended && line.empty()) {
+            return false;
+        }
+        ++line_number_;
+        if (!line.empty() && line.back() == '\r') {
+            line.pop_back();
+        }
+        return true;
+    }
+    std::int64_t lineNumber() const { return line_number_; }
+
+  private:
+    std::string path_;
+    gzFile file_;
+    std::array<char, 1u << 16> buffer_{};
+    std::int64_t line_number_ = 0;
+};
+
+// The lines of a CSV or ECSV file that hold data (the header first), without comments, blank lines and
+// '\r'. An ECSV file (first line "# %ECSV ...") declares its columns, units, UCDs and delimiter in the
+// YAML of its leading comment lines (EcsvHeader.h); a plain CSV file states none of them.
+class CsvLines {
+  public:
+    explicit CsvLines(const std::string& path) : path_(path), lines_(path) {
+        if (!lines_.next(line_) || !isEcsvSignature(line_)) {
+            pending_ = true; // the first line is an ordinary one
+            return;
+        }
+        std::string yaml;
+        while (lines_.next(line_) && line_.starts_with("#")) {
+            yaml += line_.substr(line_.starts_with("# ") ? 2 : 1) + "\n";
+        }
+        pending_ = true;
+        ecsv_ = parseEcsvHeader(yaml, path);
     }
     /// The next line that is not a comment or blank; false at the end of the file.
     bool next() {
-        while (std::getline(stream_, line_)) {
-            ++line_number_;
-            if (!line_.empty() && line_.back() == '\r') {
-                line_.pop_back();
-            }
+        while (pending_ || lines_.next(line_)) {
+            pending_ = false;
             if (!isCommentOrBlank(line_)) {
                 return true;
             }
         }
-        if (stream_.bad()) {
-            throw InputError(path_ + ": read error after line " + std::to_string(line_number_));
-        }
         return false;
     }
     const std::string& line() const { return line_; }
-    std::int64_t lineNumber() const { return line_number_; }
+    std::int64_t lineNumber() const { return lines_.lineNumber(); }
+    bool isEcsv() const { return ecsv_.has_value(); }
+    const char* kind() const { return ecsv_ ? "ECSV" : "CSV"; }
 
-    /// The header row as column descriptions (no TFORM, UCD or unit: CSV states none).
+    /// The header row as column descriptions: for ECSV those its YAML declares (which must be the row's
+    /// names, in order), for CSV names only.
     std::vector<ColumnDescription> header(std::vector<std::string_view>& fields) {
         if (!next()) {
-            throw InputError(path_ + ": no header row (empty CSV file)");
+            throw InputError(path_ + ": no header row (empty " + kind() + " file)");
         }
-        splitFields(line_, fields);
+        splitFields(line_, delimiter(), fields);
+        if (ecsv_) {
+            const auto& declared = ecsv_->columns;
+            const bool same = fields.size() == declared.size() &&
+                              std::equal(fields.begin(), fields.end(), declared.begin(),
+                                         [](std::string_view name, const ColumnDescription& column) {
+                                             return name == column.name;
+                                         });
+            if (!same) {
+                throw InputError(path_ + " line " + std::to_string(lineNumber()) +
+                                 ": the header row's column names are not those the ECSV header declares");
+            }
+            return declared;
+        }
         std::vector<ColumnDescription> columns;
         for (std::size_t i = 0; i < fields.size(); ++i) {
             columns.push_back({static_cast<int>(i + 1), std::string(fields[i]), "", "", ""});
@@ -96,19 +177,22 @@ class CsvLines {
     }
     /// Splits the current line; throws InputError if it has not `expected` fields.
     void split(std::vector<std::string_view>& fields, std::size_t expected) const {
-        splitFields(line_, fields);
+        splitFields(line_, delimiter(), fields);
         if (fields.size() != expected) {
-            throw InputError(path_ + " line " + std::to_string(line_number_) + ": " +
+            throw InputError(path_ + " line " + std::to_string(lineNumber()) + ": " +
                              std::to_string(fields.size()) + " fields, the header has " +
                              std::to_string(expected));
         }
     }
 
   private:
+    char delimiter() const { return ecsv_ ? ecsv_->delimiter : ','; }
+
     std::string path_;
-    std::ifstream stream_;
+    TextLines lines_;
     std::string line_;
-    std::int64_t line_number_ = 0;
+    bool pending_ = false; // line_ holds a line next() has not returned yet
+    std::optional<EcsvHeader> ecsv_;
 };
 
 // A number as the reader accepts it (an explicit leading '+' allowed); nullopt otherwise.
@@ -131,7 +215,12 @@ bool isCsvPath(const std::string& path) {
     std::string lower = path;
     std::transform(lower.begin(), lower.end(), lower.begin(),
                    [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-    return lower.ends_with(".csv");
+    for (const char* suffix : {".csv", ".csv.gz", ".ecsv", ".ecsv.gz"}) {
+        if (lower.ends_with(suffix)) {
+            return true;
+        }
+    }
+    return false;
 }
 
 namespace detail {
@@ -141,7 +230,7 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
     FileScanResult result;
     FileScanReport& report = result.report;
     report.path = path;
-    report.hdu_name = "CSV";
+    report.hdu_name = lines.kind();
 
     std::vector<std::string_view> fields;
     const std::vector<ColumnDescription> columns = lines.header(fields);
@@ -151,7 +240,9 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
     std::vector<CsvField> mapped;
     for (const auto& resolved : report.mapping.fields) {
         if (resolved) {
-            mapped.push_back({resolved->column_index, &*resolved});
+            const std::string& datatype = columns[resolved->column_index].tform;
+            mapped.push_back(
+                {resolved->column_index, &*resolved, datatype == "float32" || datatype == "float16"});
         }
     }
     ScanAccumulator accumulator(result, settings);
@@ -167,7 +258,7 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
         row.row_index = report.rows++;
         for (const auto& field : mapped) {
             std::string_view text = fields[field.position];
-            if (isMissing(text)) {
+            if (isMissing(text, lines.isEcsv())) {
                 continue;
             }
             if (field.column->field == CatalogField::SpectralType) {
@@ -189,7 +280,8 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
             if (!value) {
                 fail(field, text);
             }
-            row.*rowMember(field.column->field) = canonicalValue(*field.column, *value);
+            const double stored = field.single_precision ? static_cast<float>(*value) : *value;
+            row.*rowMember(field.column->field) = canonicalValue(*field.column, stored);
         }
         accumulator.add(row);
         if (settings.progress != nullptr && report.rows % 65536 == 0) {
@@ -207,7 +299,7 @@ TableProfile profileCsvTable(const std::string& path) {
     CsvLines lines(path);
     TableProfile profile;
     profile.where = path;
-    profile.hdu_name = "CSV";
+    profile.hdu_name = lines.kind();
     std::vector<std::string_view> fields;
     for (auto& description : lines.header(fields)) {
         ColumnProfile column;
@@ -219,7 +311,7 @@ TableProfile profileCsvTable(const std::string& path) {
         ++profile.rows;
         for (std::size_t i = 0; i < fields.size(); ++i) {
             ColumnProfile& column = profile.columns[i];
-            if (isMissing(fields[i])) {
+            if (isMissing(fields[i], lines.isEcsv())) {
                 column.countNull();
             } else if (const auto value = parsedNumber(fields[i])) {
                 column.countNumber(*value);

@@ -1,9 +1,12 @@
 #pragma once
-// CSV input, as a convenience for small lists: one header row of column names (lines starting with "#"
-// before it and between rows are comments), comma-separated values, empty fields and "NaN" (any case)
-// are missing. Columns are mapped by name only (CSV has no UCDs) and no file states a unit, so units
-// come from --unit; a parallax column must have one unless it carries the Gaia name "parallax" or
-// "parallax_error", which is in mas by that release's definition (see MappingRequest).
+// CSV and ECSV input, plain or gzip-compressed (streamed). CSV: one header row of column names (lines
+// starting with "#" before it and between rows are comments), comma-separated values; columns are mapped
+// by name only (CSV has no UCDs) and no file states a unit, so units come from --unit; a parallax column
+// must have one unless it carries the Gaia name "parallax" or "parallax_error", which is in mas by that
+// release's definition (see MappingRequest). ECSV (a first line "# %ECSV 1.0", EcsvHeader.h; astropy's
+// writer and the Gaia bulk releases, whose files are named .csv.gz): the YAML header declares each
+// column's datatype, unit and UCD (meta.ucd), used as FITS's TFORM, TUNIT and TUCD are, and the delimiter.
+// In both, empty fields, "" and "NaN" (any case) are missing, and in ECSV also "null".
 #include "photometry/catalog/CatalogScanDetail.h"
 #include "photometry/catalog/ColumnProfile.h"
 
@@ -12,7 +15,8 @@
 
 namespace starcensus::photometry {
 
-/// True for names ending in ".csv" (any case): the files scanCatalogs reads as CSV.
+/// True for names ending in ".csv", ".csv.gz", ".ecsv" or ".ecsv.gz" (any case): the files scanCatalogs
+/// reads as CSV or ECSV (which of the two, the first line says).
 bool isCsvPath(const std::string& path);
 
 namespace detail {
