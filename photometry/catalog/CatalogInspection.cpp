@@ -180,7 +180,8 @@ void formatFields(std::ostringstream& out, const CatalogInspection& inspection) 
             std::string why = resolved->matched_by;
             if (!isTextField(resolved->field) && column.texts > 0) {
                 why += "; " + std::to_string(column.texts) + " cells not numbers ('" +
-                       column.samples.front() + "'): a run refuses them";
+                       column.samples.front() + "'): a run refuses them (--column " + field +
+                       "=none leaves the field unmapped)";
             }
             text.add({field, resolved->column_name, std::string(routeName(resolved->route)),
                       unitText(*resolved), std::to_string(nulls), why});
@@ -309,10 +310,14 @@ struct Capability {
 const std::vector<Capability>& capabilities() {
     using F = CatalogField;
     static const std::vector<Capability> list = {
-        {{F::Parallax, F::ParallaxError, F::G},
+        {{F::Parallax, F::ParallaxError},
          "census",
-         "memberships, classes, fractions, luminosity function",
+         "memberships, classes from the bands present, fractions",
          "none: a run stops"},
+        {{F::G},
+         "Gaia G",
+         "M_G classes, the luminosity function and completeness",
+         "classes from the other bands only; no luminosity function"},
         {{F::Bp, F::Rp},
          "BP-RP",
          "classes on the main-sequence locus, white dwarfs with Teff and mass",
@@ -345,13 +350,16 @@ const std::vector<Capability>& capabilities() {
         {{F::SourceId}, "source_id", "identifiers in sample.fits and hosts.fits", "sample.fits lists -1"},
         {{F::Pmra, F::Pmdec},
          "proper motions",
-         "read, not used by a run yet",
-         "none (not used by a run yet)"},
+         "positions moved to a common epoch when catalogues are merged",
+         "rows matched across catalogues at their catalogue positions"},
         {{F::SpectralType},
          "spectral types",
-         "read and parsed, not used downstream yet",
-         "none (not used downstream yet)"},
-        {{F::B, F::V}, "Johnson B, V", "read, not used by the classifier yet", "none (not used yet)"},
+         "literature classes used (--spectral-types) and compared with the photometric ones",
+         "photometric classes only"},
+        {{F::V, F::Ks},
+         "Johnson V",
+         "V-Ks classes for objects without BP-RP (bright stars)",
+         "objects without BP-RP get no V-Ks class"},
     };
     return list;
 }

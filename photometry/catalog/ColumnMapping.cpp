@@ -214,6 +214,9 @@ std::optional<ResolvedColumn> chooseColumn(const std::vector<ColumnDescription>&
     MappingRoute route = MappingRoute::User;
     if (user != user_columns.end()) {
         const std::string wanted = lowercase(user->second);
+        if (wanted == kUnmappedColumn) {
+            return std::nullopt; // the user leaves this field out (a required one then fails below)
+        }
         for (std::size_t i = 0; i < columns.size(); ++i) {
             if (lowercase(columns[i].name) == wanted) {
                 found.push_back({i, "--column " + std::string(fieldName(field)) + "=" + user->second});
@@ -323,8 +326,9 @@ std::string normalisedUcd(std::string_view ucd, CatalogField field) {
 }
 
 bool isRequiredField(CatalogField field) {
-    return field == CatalogField::Parallax || field == CatalogField::ParallaxError ||
-           field == CatalogField::G;
+    // Only the astrometry: a table without Gaia G (near- and mid-infrared lists of brown dwarfs) is
+    // classified from the bands it has.
+    return field == CatalogField::Parallax || field == CatalogField::ParallaxError;
 }
 
 std::span<const std::string_view> knownUcds(CatalogField field) {

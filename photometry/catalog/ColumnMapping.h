@@ -145,8 +145,12 @@ struct ColumnMapping {
 };
 
 /// What the caller adds to the file's own description of its columns.
+/// The --column value that leaves a field unmapped (any case), e.g. --column source_id=none for a table
+/// whose "source" column holds object names; a column named "none" cannot be chosen.
+inline constexpr std::string_view kUnmappedColumn = "none";
+
 struct MappingRequest {
-    std::map<std::string, std::string> user_columns; // logical field -> column name (--column)
+    std::map<std::string, std::string> user_columns; // logical field -> column name (--column), or none
     std::map<std::string, std::string> user_units;   // logical field -> unit when the file states none
     // CSV only: a column named exactly "parallax" or "parallax_error" without a stated unit is in mas,
     // the unit of those columns by the Gaia archive's definition (Gaia DR3 documentation, datamodel of

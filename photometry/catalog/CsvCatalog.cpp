@@ -47,10 +47,12 @@ bool isCommentOrBlank(std::string_view line) {
     return first == std::string_view::npos || line[first] == '#';
 }
 
-// ECSV also writes "null" (the Gaia bulk releases do, from memory); in CSV it stays text, as in Python's
-// csv module.
+// Missing: empty, "NaN" (any case), and the dashes and dots compilations print for "not measured" ("-",
+// "--", "---", "...", as in the Kirkpatrick et al. 2019 Y-dwarf table). ECSV also writes "null" (the Gaia
+// bulk releases do, from memory); in CSV that stays text.
 bool isMissing(std::string_view text, bool ecsv) {
-    return text.empty() || (ecsv && text == "null") ||
+    return text.empty() || (ecsv && text == "null") || text == "-" || text == "--" || text == "---" ||
+           text == "..." ||
            (text.size() == 3 && std::tolower(static_cast<unsigned char>(text[0])) == 'n' &&
             std::tolower(static_cast<unsigned char>(text[1])) == 'a' &&
             std::tolower(static_cast<unsigned char>(text[2])) == 'n');

@@ -6,7 +6,8 @@
 // release's definition (see MappingRequest). ECSV (a first line "# %ECSV 1.0", EcsvHeader.h; astropy's
 // writer and the Gaia bulk releases, whose files are named .csv.gz): the YAML header declares each
 // column's datatype, unit and UCD (meta.ucd), used as FITS's TFORM, TUNIT and TUCD are, and the delimiter.
-// In both, empty fields, "" and "NaN" (any case) are missing, and in ECSV also "null".
+// In both, empty fields, "", "NaN" (any case) and the not-measured marks "-", "--", "---", "..." are
+// missing, and in ECSV also "null".
 #include "photometry/catalog/CatalogScanDetail.h"
 #include "photometry/catalog/ColumnProfile.h"
 

@@ -8,7 +8,7 @@ NaN, or (integer columns) equal to TNULLn as stored, before scaling (FITS Standa
 astropy 5.2 leaves TNULL unmasked in scaled columns, so the stored integers are compared here). Only
 scalar numeric and character columns are profiled; a character cell is null when blank.
 CSV (no HDU): Python's csv module; lines starting with '#' and blank lines are skipped; a cell is null
-when it is empty or "nan" (any case), a number when float() reads it, text otherwise.
+when it is empty, "nan" (any case) or a not-measured mark ("-", "--", "---", "..."), a number when float() reads it, text otherwise.
 Prints JSON {name: {"nulls": n, "numbers": n, "texts": n, "min": x or null, "max": x or null}}.
 """
 import csv
@@ -33,7 +33,7 @@ def summary(cells):
 
 def csv_cell(text):
     text = text.strip().strip('"').strip()
-    if text == "" or text.lower() == "nan":
+    if text == "" or text.lower() == "nan" or text in ("-", "--", "---", "..."):
         return None
     try:
         return float(text)
