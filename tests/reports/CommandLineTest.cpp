@@ -468,3 +468,29 @@ TEST_CASE("ECSV, ECSV.gz and CSV.gz written by astropy give the same run as the 
         CHECK_FALSE(directoryHasFiles(dir / ("bad_" + file)));
     }
 }
+
+TEST_CASE("a table without Gaia G runs: the Kirkpatrick et al. 2019 Y dwarfs from MKO J and WISE") {
+    // The 23 Y dwarfs (Kirkpatrick et al. 2019, ApJS 240, 19; tests/reference/), '-' for not measured, a
+    // text column "source" that the name rule would take for source_id (left unmapped with none).
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-y-dwarfs");
+    const auto& dir = scratch.path();
+    const std::string table =
+        std::string(STARCENSUS_SOURCE_DIR) + "/tests/reference/y_dwarfs_kirkpatrick2019_photometry.csv";
+    const std::string mapping =
+        " --column source_id=none --column parallax=plx_mas --column parallax_error=plx_err "
+        "--column j=J_MKO --column w1=W1_mag --column w2=W2_mag --column spectral_type=SpT "
+        "--unit parallax=mas --unit parallax_error=mas";
+    REQUIRE(runStarcensus("run '" + table + "'" + mapping +
+                              " --radius 20 --draws 100 --spectral-types check --checksum none --out y",
+                          dir)
+                .exit_code == 0);
+    const auto radius = jsonFile(dir / "y" / "fractions.json").at("radii").at(0);
+    // Measured: 17 of the 23 photometrically Y (the classifier test's figure), 5 T (Y0 dwarfs on the T9.5V
+    // side of the locus), 1 without a class; median subtype difference 0.25.
+    const auto& check = radius.at("spectral_type_check");
+    CHECK(check.at("compared") == 23);
+    CHECK(check.at("confusion").at("Y").at("Y").get<int>() >= 17);
+    CHECK(check.at("median_abs_subtype_difference").get<double>() <= 0.5);
+    CHECK(radius.at("classes").at("Y").at("count").at("this_volume").at("median").get<double>() >= 17.0);
+    CHECK(std::filesystem::is_regular_file(dir / "y" / "report.html"));
+}
