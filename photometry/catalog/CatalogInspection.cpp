@@ -2,6 +2,7 @@
 
 #include "photometry/base/InputError.h"
 #include "photometry/catalog/CsvCatalog.h"
+#include "photometry/catalog/VoTableCatalog.h"
 
 #include <algorithm>
 #include <cmath>
@@ -17,11 +18,12 @@ namespace {
 void inspectFile(CatalogInspection& inspection, const ScanSettings& settings) {
     const std::string& path = inspection.path;
     const bool csv = isCsvPath(path);
-    if (!csv) {
+    const bool fits = !csv && !isVoTablePath(path); // the text formats have no HDUs
+    if (fits) {
         inspection.hdus = listHdus(path);
     }
     inspection.table = profileTable(path, settings.hdu);
-    if (!csv) {
+    if (fits) {
         inspection.hdu_option = std::to_string(inspection.table.hdu_index);
     }
     inspection.mapping = attemptColumns(descriptionsOf(inspection.table),

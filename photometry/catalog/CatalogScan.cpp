@@ -5,6 +5,7 @@
 #include "photometry/catalog/CatalogScanDetail.h"
 #include "photometry/catalog/CsvCatalog.h"
 #include "photometry/catalog/FitsCatalog.h"
+#include "photometry/catalog/VoTableCatalog.h"
 
 #include <fitsio.h>
 
@@ -192,8 +193,9 @@ CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettin
     // Files are claimed in order; the error of the first failing file in `paths` is the one thrown.
     forEachIndex(paths.size(), file_threads, [&](std::size_t index) {
         const auto file_index = static_cast<std::uint32_t>(index);
-        results[index] = isCsvPath(paths[index])
-                             ? detail::scanCsvFile(paths[index], file_index, settings)
+        results[index] = isCsvPath(paths[index]) ? detail::scanCsvFile(paths[index], file_index, settings)
+                         : isVoTablePath(paths[index])
+                             ? detail::scanVoTableFile(paths[index], file_index, settings)
                              : detail::scanFitsFile(paths[index], file_index, settings, threads_per_file);
         if (settings.progress != nullptr) {
             ++settings.progress->parts_done;

@@ -2,6 +2,7 @@
 
 #include "photometry/catalog/CsvCatalog.h"
 #include "photometry/catalog/FitsCatalog.h"
+#include "photometry/catalog/VoTableCatalog.h"
 
 #include <algorithm>
 
@@ -47,7 +48,9 @@ void ColumnProfile::settleKindFromCells() {
 }
 
 TableProfile profileTable(const std::string& path, const std::string& hdu) {
-    return isCsvPath(path) ? detail::profileCsvTable(path) : detail::profileFitsTable(path, hdu);
+    return isCsvPath(path)       ? detail::profileCsvTable(path)
+           : isVoTablePath(path) ? detail::profileVoTable(path)
+                                 : detail::profileFitsTable(path, hdu);
 }
 
 std::vector<ColumnDescription> descriptionsOf(const TableProfile& profile) {

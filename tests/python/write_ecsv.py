@@ -10,6 +10,9 @@ astropy's own writers:
   OUTDIR/table.ecsv.gz   the same, gzip-compressed
   OUTDIR/table_comma.ecsv  ECSV with delimiter ',' (the Gaia bulk releases' layout)
   OUTDIR/table.csv.gz    plain CSV (ascii.csv, no units), gzip-compressed
+  OUTDIR/table_tabledata.vot, table_binary.vot, table_binary2.vot
+                         VOTable (astropy.io.votable) in each serialisation, meta.ucd as the FIELD ucd
+  OUTDIR/table_binary2.vot.gz  the BINARY2 one, gzip-compressed
 """
 import gzip
 import shutil
@@ -33,5 +36,10 @@ with open(f"{outdir}/table.ecsv", "rb") as source, gzip.open(f"{outdir}/table.ec
     shutil.copyfileobj(source, target)
 table.write(f"{outdir}/table.csv", format="ascii.csv", overwrite=True)
 with open(f"{outdir}/table.csv", "rb") as source, gzip.open(f"{outdir}/table.csv.gz", "wb") as target:
+    shutil.copyfileobj(source, target)
+for serialisation in ("tabledata", "binary", "binary2"):
+    table.write(f"{outdir}/table_{serialisation}.vot", format="votable", tabledata_format=serialisation,
+                overwrite=True)
+with open(f"{outdir}/table_binary2.vot", "rb") as source, gzip.open(f"{outdir}/table_binary2.vot.gz", "wb") as target:
     shutil.copyfileobj(source, target)
 print("ok")

@@ -406,11 +406,11 @@ TEST_CASE("inspect's printed mapping, fed back as --config, gives the same run a
     }
 }
 
-TEST_CASE("ECSV, ECSV.gz and CSV.gz written by astropy give the same run as the FITS file") {
+TEST_CASE("ECSV, CSV.gz and VOTable written by astropy give the same run as the FITS file") {
     // astropy's writers (tests/python/write_ecsv.py: ascii.ecsv with the TUCDs as meta.ucd, space- and
-    // comma-delimited, gzip copies, and ascii.csv) from a simulated 12 pc catalogue: every output a run
-    // writes from the rows must be byte-identical to the FITS run's (nulls, units and float32 values
-    // included).
+    // comma-delimited, gzip copies, ascii.csv, and astropy.io.votable in TABLEDATA, BINARY and BINARY2)
+    // from a simulated 12 pc catalogue: every output a run writes from the rows must be byte-identical to
+    // the FITS run's (nulls, units and float32 values included).
     const starcensus::testing::ScratchDirectory scratch("starcensus-cli-ecsv");
     const auto& dir = scratch.path();
     REQUIRE(runStarcensus("simulate --out mock.fits --truth truth.json --radius-max 12 --seed 3", dir)
@@ -425,7 +425,11 @@ TEST_CASE("ECSV, ECSV.gz and CSV.gz written by astropy give the same run as the 
         {"table.ecsv", ""},
         {"table.ecsv.gz", ""},
         {"table_comma.ecsv", ""},
-        {"table.csv.gz", " --unit pmra=mas/yr --unit pmdec=mas/yr --unit ra=deg --unit dec=deg"}};
+        {"table.csv.gz", " --unit pmra=mas/yr --unit pmdec=mas/yr --unit ra=deg --unit dec=deg"},
+        {"table_tabledata.vot", ""},
+        {"table_binary.vot", ""},
+        {"table_binary2.vot", ""},
+        {"table_binary2.vot.gz", ""}};
     for (const auto& [file, units] : runs) {
         CAPTURE(file);
         const std::string out = "out_" + file;
@@ -452,12 +456,28 @@ TEST_CASE("ECSV, ECSV.gz and CSV.gz written by astropy give the same run as the 
     write("short_row.ecsv", ecsv.substr(0, ecsv.rfind(' ')) + "\n");
     const std::string gz = readFile(dir / "table.ecsv.gz");
     write("truncated.ecsv.gz", gz.substr(0, gz.size() / 2));
+    const std::string tabledata = readFile(dir / "table_tabledata.vot");
+    // Pieces joined rather than edited in place (GCC 12 warns, wrongly, on std::string::replace here).
+    const auto spliced = [](const std::string& text, std::size_t at, std::size_t removed,
+                            const char* inserted) {
+        return text.substr(0, at) + inserted + text.substr(at + removed);
+    };
+    const std::size_t first_cell = tabledata.find("<TD>");
+    write("short_row.vot", spliced(tabledata, first_cell, tabledata.find("</TD>") + 5 - first_cell, ""));
+    write("datatype.vot", spliced(tabledata, tabledata.find("datatype=\"double\""), 17, "datatype=\"quad\""));
+    write("truncated.vot", tabledata.substr(0, tabledata.size() / 2));
+    const std::string binary2 = readFile(dir / "table_binary2.vot");
+    write("base64.vot", spliced(binary2, binary2.find("<STREAM encoding=\"base64\">") + 26, 0, "!"));
     const std::vector<std::pair<std::string, std::string>> bad = {
         {"renamed.ecsv", "the header row's column names are not those the ECSV header declares"},
         {"datatype.ecsv", "ECSV column ra has datatype 'float80', not one of ECSV 1.0's"},
         {"yaml.ecsv", "ECSV header is not valid YAML"},
         {"short_row.ecsv", "fields, the header has 20"},
-        {"truncated.ecsv.gz", "damaged or truncated compressed data after line"}};
+        {"truncated.ecsv.gz", "damaged or truncated compressed data after line"},
+        {"short_row.vot", "VOTable row 1 has 19 cells, the table 20 FIELDs"},
+        {"datatype.vot", "has datatype 'quad', not one of VOTable 1.4's"},
+        {"truncated.vot", "not a well-formed VOTable"},
+        {"base64.vot", "VOTable binary stream has a character that is not base64 ('!')"}};
     for (const auto& [file, message] : bad) {
         CAPTURE(file);
         const Outcome outcome = runStarcensus("run " + file + lean + " --out bad_" + file, dir);
