@@ -3,7 +3,9 @@
 // applies in the same way (null counts, candidate test, counters, warnings).
 #include "photometry/catalog/CatalogScan.h"
 
+#include <charconv>
 #include <cmath>
+#include <optional>
 #include <string_view>
 #include <vector>
 
@@ -13,6 +15,22 @@ struct FileScanResult {
     FileScanReport report;
     std::vector<CatalogRow> candidates;
 };
+
+/// A number as the text readers (CSV, ECSV, VOTable TABLEDATA) accept it: the whole text, an explicit
+/// leading '+' allowed (which from_chars refuses); nullopt for anything else. T is double or std::int64_t.
+template <class T>
+std::optional<T> parseCellNumber(std::string_view text) {
+    if (!text.empty() && text.front() == '+') {
+        text.remove_prefix(1);
+    }
+    T value{};
+    const char* end = text.data() + text.size();
+    const auto [at, error] = std::from_chars(text.data(), end, value);
+    if (text.empty() || error != std::errc{} || at != end) {
+        return std::nullopt;
+    }
+    return value;
+}
 
 /// The CatalogRow member of a floating-point field; nullptr for source_id and spectral_type.
 double CatalogRow::*rowMember(CatalogField field);

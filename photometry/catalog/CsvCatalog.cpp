@@ -197,20 +197,6 @@ class CsvLines {
     std::optional<EcsvHeader> ecsv_;
 };
 
-// A number as the reader accepts it (an explicit leading '+' allowed); nullopt otherwise.
-std::optional<double> parsedNumber(std::string_view text) {
-    if (!text.empty() && text.front() == '+') { // from_chars does not take an explicit plus sign
-        text.remove_prefix(1);
-    }
-    double value = 0.0;
-    const char* end = text.data() + text.size();
-    const auto [at, error] = std::from_chars(text.data(), end, value);
-    if (text.empty() || error != std::errc{} || at != end) {
-        return std::nullopt;
-    }
-    return value;
-}
-
 } // namespace
 
 bool isCsvPath(const std::string& path) {
@@ -268,17 +254,14 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
                 continue;
             }
             if (field.column->field == CatalogField::SourceId) {
-                if (text.front() == '+') { // from_chars does not take an explicit plus sign
-                    text.remove_prefix(1);
+                const auto id = parseCellNumber<std::int64_t>(text);
+                if (!id) {
+                    fail(field, text);
                 }
-                const char* end = text.data() + text.size();
-                const auto [at, error] = std::from_chars(text.data(), end, row.source_id);
-                if (text.empty() || error != std::errc{} || at != end) {
-                    fail(field, text.empty() ? "+" : text);
-                }
+                row.source_id = *id;
                 continue;
             }
-            const auto value = parsedNumber(text);
+            const auto value = parseCellNumber<double>(text);
             if (!value) {
                 fail(field, text);
             }
@@ -315,7 +298,7 @@ TableProfile profileCsvTable(const std::string& path) {
             ColumnProfile& column = profile.columns[i];
             if (isMissing(fields[i], lines.isEcsv())) {
                 column.countNull();
-            } else if (const auto value = parsedNumber(fields[i])) {
+            } else if (const auto value = parseCellNumber<double>(fields[i])) {
                 column.countNumber(*value);
             } else {
                 column.countText(fields[i]);

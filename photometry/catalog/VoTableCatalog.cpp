@@ -77,32 +77,6 @@ struct Cell {
     std::string text;
 };
 
-std::optional<double> parsedNumber(std::string_view text) {
-    if (!text.empty() && text.front() == '+') {
-        text.remove_prefix(1);
-    }
-    double value = 0.0;
-    const char* end = text.data() + text.size();
-    const auto [at, error] = std::from_chars(text.data(), end, value);
-    if (text.empty() || error != std::errc{} || at != end) {
-        return std::nullopt;
-    }
-    return value;
-}
-
-std::optional<std::int64_t> parsedInteger(std::string_view text) {
-    if (!text.empty() && text.front() == '+') {
-        text.remove_prefix(1);
-    }
-    std::int64_t value = 0;
-    const char* end = text.data() + text.size();
-    const auto [at, error] = std::from_chars(text.data(), end, value);
-    if (text.empty() || error != std::errc{} || at != end) {
-        return std::nullopt;
-    }
-    return value;
-}
-
 std::string_view trimmed(std::string_view text) {
     while (!text.empty() && std::isspace(static_cast<unsigned char>(text.front()))) {
         text.remove_prefix(1);
@@ -122,13 +96,13 @@ Cell cellFromText(const VoField& field, std::string_view raw) {
         return cell;
     }
     if (field.isNumber()) {
-        if (const auto value = parsedNumber(text)) {
+        if (const auto value = detail::parseCellNumber<double>(text)) {
             if (std::isnan(*value)) {
                 return cell;
             }
             cell.kind = Cell::Kind::Number;
             cell.number = field.type == VoType::Float ? static_cast<float>(*value) : *value;
-            cell.integer = parsedInteger(text);
+            cell.integer = detail::parseCellNumber<std::int64_t>(text);
             return cell;
         }
     }
@@ -194,7 +168,7 @@ Cell cellFromBinary(const VoField& field, const unsigned char* bytes, std::size_
     }
     const bool is_integer = field.type != VoType::Float && field.type != VoType::Double;
     if (is_integer) {
-        if (!field.null_text.empty() && parsedInteger(field.null_text) == integer) {
+        if (!field.null_text.empty() && detail::parseCellNumber<std::int64_t>(field.null_text) == integer) {
             return cell;
         }
         cell.integer = integer;
