@@ -1,9 +1,8 @@
 #include "census/CatalogMerge.h"
 
-#include "photometry/base/Threads.h"
+#include "census/detail/SkyGeometry.h"
 
-#include <healpix_cxx/healpix_base.h>
-#include <healpix_cxx/pointing.h>
+#include "photometry/base/Threads.h"
 
 #include <algorithm>
 #include <array>
@@ -20,26 +19,16 @@ namespace {
 
 using photometry::CatalogRow;
 
-constexpr double kRadiansPerDegree = std::numbers::pi / 180.0;
-constexpr double kRadiansPerMas = kRadiansPerDegree / 3.6e6;
-constexpr double kArcsecPerRadian = 180.0 / std::numbers::pi * 3600.0;
-
-struct UnitVector {
-    double x = 0.0, y = 0.0, z = 0.0;
-};
+using detail::kArcsecPerRadian;
+using detail::kRadiansPerDegree;
+using detail::kRadiansPerMas;
+using detail::neighbourGrid;
+using detail::separationRadians;
+using detail::toPointing;
+using detail::UnitVector;
 
 UnitVector unitVector(SkyPosition position) {
-    const double ra = position.ra_deg * kRadiansPerDegree;
-    const double dec = position.dec_deg * kRadiansPerDegree;
-    return {std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra), std::sin(dec)};
-}
-
-/// Angle between two unit vectors (radians), from the chord: accurate at arcsecond separations, where
-/// acos of the dot product loses half its digits.
-double separationRadians(const UnitVector& a, const UnitVector& b) {
-    const double chord =
-        std::sqrt((a.x - b.x) * (a.x - b.x) + (a.y - b.y) * (a.y - b.y) + (a.z - b.z) * (a.z - b.z));
-    return 2.0 * std::asin(std::min(1.0, chord / 2.0));
+    return detail::unitVectorOf(position.ra_deg, position.dec_deg);
 }
 
 /// Better measurement of one quantity: a value beats a missing one, a value with an error beats one
@@ -189,20 +178,6 @@ struct CandidatePair {
     std::uint32_t b;
     auto operator<=>(const CandidatePair&) const = default;
 };
-
-/// HEALPix RING order whose pixels are about the match radius across, so a disc query returns a few
-/// pixels (Gorski et al. 2005, ApJ 622, 759: pixel size ~ 58.6 deg / nside; from memory).
-T_Healpix_Base<std::int64_t> neighbourGrid(double radius_rad) {
-    int order = T_Healpix_Base<std::int64_t>::order_max;
-    while (order > 0 && T_Healpix_Base<std::int64_t>(order, RING).max_pixrad() < radius_rad) {
-        --order;
-    }
-    return T_Healpix_Base<std::int64_t>(order, RING);
-}
-
-pointing toPointing(const UnitVector& u) {
-    return pointing(vec3(u.x, u.y, u.z));
-}
 
 /// Pairs of objects from disjoint files within the radius, nearest first; counts the pairs the parallax
 /// test refused.

@@ -18,6 +18,23 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 // 1 au/yr in km/s (IAU 2012 au, Julian year): v_t [km/s] = 4.74047 mu [arcsec/yr] d [pc].
 constexpr double kKmPerSecondPerAuPerYear = 4.74047;
+constexpr double kRadiansPerDegree = std::numbers::pi / 180.0;
+constexpr double kAuPerPc = 206264.806;
+// Resolved companions take source ids from this object index on: a bijection's inputs apart from the
+// systems' (fewer than 2^40 systems).
+constexpr std::int64_t kCompanionIndexOffset = std::int64_t{1} << 40;
+
+double dot(const std::array<double, 3>& a, const std::array<double, 3>& b) {
+    return a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
+}
+
+std::array<double, 3> randomUnitVector(Xoshiro256& random) {
+    const double z = 2.0 * random.uniform() - 1.0;
+    const double phi = 2.0 * std::numbers::pi * random.uniform();
+    const double r = std::sqrt(1.0 - z * z);
+    return {r * std::cos(phi), r * std::sin(phi), z};
+}
+
 // Red-clump calibration of Ruiz-Dern et al. 2018 (A&A 609, A116, abstract; published-figures.md
 // section 7): M_G = 0.495 + 1.121 (G - Ks - 2.1).
 constexpr double kClumpAbsGMag = 0.495;
@@ -82,6 +99,12 @@ void validateMockSettings(const MockSettings& s) {
     requireInRange("ifmr-intercept", s.ifmr_intercept_msun, 0.0, 1.4, "Msun");
     requireInRange("da-share", s.hydrogen_atmosphere_share, 0.0, 1.0, "");
     requireInRange("binary-fraction", s.binary_fraction, 0.0, 1.0, "");
+    requireInRange("wide-fraction", s.wide_companion_fraction, 0.0, 1.0, "");
+    requireInRange("wide-triple-share", s.wide_triple_share, 0.0, 1.0, "");
+    requireInRange("wide-log-period-mean", s.wide_log_period_mean_day, 0.0, 12.0, "dex");
+    requireInRange("wide-log-period-sigma", s.wide_log_period_sigma_dex, 0.0, 5.0, "dex");
+    requireInRange("resolution-limit", s.resolution_limit_arcsec, 0.0, 60.0, "arcsec");
+    requireInRange("wide-separation-max", s.wide_max_separation_au, 1.0, 1e7, "au");
     requireInRange("ms-mag-scatter", s.ms_abs_mag_scatter_mag, 0.0, 2.0, "mag");
     requireInRange("ms-colour-scatter", s.ms_colour_scatter_mag, 0.0, 1.0, "mag");
     requireInRange("giant-mag-scatter", s.giant_abs_g_scatter_mag, 0.0, 2.0, "mag");
@@ -168,9 +191,11 @@ MockGenerator::MockGenerator(const MockSettings& settings, std::uint64_t seed,
                              const photometry::ModelPhotometry& photometry)
     : settings_(settings), seed_(seed), photometry_(photometry),
       imf_((validateMockSettings(settings), settings.imf)), positions_(seed, 0), properties_(seed, 1),
+      companions_(seed, 2),
       volume_max_pc3_(4.0 / 3.0 * std::numbers::pi * std::pow(settings.radius_max_pc, 3)) {}
 
-MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, double age_gyr) {
+MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, double age_gyr,
+                                                      Xoshiro256& random) {
     const MockSettings& s = settings_;
     Component c;
     c.initial_mass_msun = initial_mass_msun;
@@ -190,9 +215,9 @@ MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, 
         c.star_class = photometry::dwarfClassOfCode(c.spectral_code);
         c.abs = photometry_.dwarf(c.spectral_code);
         // Intrinsic scatter: one shift of every band (luminosity), plus small colour offsets.
-        const double shift = s.ms_abs_mag_scatter_mag * properties_.normal();
-        const double optical = s.ms_colour_scatter_mag * properties_.normal();
-        const double infrared = s.ms_colour_scatter_mag * properties_.normal();
+        const double shift = s.ms_abs_mag_scatter_mag * random.normal();
+        const double optical = s.ms_colour_scatter_mag * random.normal();
+        const double infrared = s.ms_colour_scatter_mag * random.normal();
         c.abs.g += shift;
         c.abs.bp += shift + 0.5 * optical;
         c.abs.rp += shift - 0.5 * optical;
@@ -207,11 +232,11 @@ MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, 
         // et al. 2018 relation plus scatter; G-RP and J-Ks from the dwarf of the same BP-RP.
         c.stage = MockStage::Giant;
         c.star_class = StellarClass::Evolved;
-        const double bp_rp = s.giant_bp_rp_mag + s.giant_bp_rp_scatter_mag * properties_.normal();
-        const double g_ks = s.giant_g_ks_mag + s.giant_g_ks_scatter_mag * properties_.normal();
+        const double bp_rp = s.giant_bp_rp_mag + s.giant_bp_rp_scatter_mag * random.normal();
+        const double g_ks = s.giant_g_ks_mag + s.giant_g_ks_scatter_mag * random.normal();
         const photometry::BandMagnitudes same_colour = photometry_.dwarf(photometry_.codeOfBpRp(bp_rp));
         c.abs.g = kClumpAbsGMag + kClumpAbsGSlope * (g_ks - kClumpGKsPivotMag) +
-                  s.giant_abs_g_scatter_mag * properties_.normal();
+                  s.giant_abs_g_scatter_mag * random.normal();
         c.abs.rp = c.abs.g - (same_colour.g - same_colour.rp);
         c.abs.bp = c.abs.rp + bp_rp;
         c.abs.ks = c.abs.g - g_ks;
@@ -229,7 +254,7 @@ MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, 
     // The Montreal grids span log g 7.0-9.0.
     const double log_g = std::clamp(whiteDwarfLogG(c.mass_msun), 7.0, 9.0);
     const double cooling_age_yr = (age_gyr - giant_end_gyr) * 1e9;
-    const bool hydrogen = properties_.uniform() < s.hydrogen_atmosphere_share;
+    const bool hydrogen = random.uniform() < s.hydrogen_atmosphere_share;
     c.abs = photometry_.whiteDwarf(cooling_age_yr, log_g,
                                    hydrogen ? photometry::WhiteDwarfAtmosphere::Hydrogen
                                             : photometry::WhiteDwarfAtmosphere::Helium);
@@ -238,6 +263,196 @@ MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, 
         c.abs = photometry_.whiteDwarf(cooling_age_yr, log_g, photometry::WhiteDwarfAtmosphere::Hydrogen);
     }
     return c;
+}
+
+struct MockGenerator::Placement {
+    double distance_pc = kNaN;
+    double age_gyr = kNaN;
+    double ra_deg = kNaN;
+    double dec_deg = kNaN;
+    double velocity_ra_km_s = kNaN; // tangential velocity per axis; NaN: drawn by addObject
+    double velocity_dec_km_s = kNaN;
+    std::int64_t source_id = photometry::kMissingSourceId;
+    std::int64_t system_source_id = photometry::kMissingSourceId;
+    bool resolved_companion = false;
+    double separation_au = 0.0;
+    double separation_arcsec = 0.0;
+};
+
+void MockGenerator::addObject(Component primary, Component companion, const Placement& placement,
+                              Xoshiro256& random, std::vector<photometry::CatalogRow>& catalog,
+                              std::vector<ObjectTruth>& truth) {
+    const MockSettings& s = settings_;
+    const double distance_pc = placement.distance_pc;
+    const bool has_companion = !companion.compact_remnant;
+    if (has_companion && companion.abs.g < primary.abs.g) {
+        // The truth names the component that dominates the G light, the one a photometric census
+        // can classify (a white dwarf with a brighter M dwarf companion is seen as an M dwarf).
+        std::swap(primary, companion);
+    }
+    const photometry::BandMagnitudes abs = has_companion ? combine(primary.abs, companion.abs) : primary.abs;
+    const double modulus = 5.0 * std::log10(distance_pc) - 5.0;
+
+    ObjectTruth object;
+    object.source_id = placement.source_id;
+    object.system_source_id = placement.system_source_id;
+    object.resolved_companion = placement.resolved_companion;
+    object.separation_au = placement.separation_au;
+    object.separation_arcsec = placement.separation_arcsec;
+    object.true_class = primary.star_class;
+    object.stage = primary.stage;
+    object.spectral_code = primary.spectral_code;
+    object.distance_pc = distance_pc;
+    object.mass_msun = primary.mass_msun;
+    object.initial_mass_msun = primary.initial_mass_msun;
+    object.age_gyr = placement.age_gyr;
+    object.binary = has_companion;
+    if (has_companion) {
+        object.companion_class = companion.star_class;
+        object.companion_mass_msun = companion.mass_msun;
+    }
+    object.abs_g_mag = abs.g;
+    object.true_g_mag = abs.g + modulus;
+
+    // What the survey measures.
+    photometry::CatalogRow row;
+    row.source_id = object.source_id;
+    row.ra_deg = placement.ra_deg;
+    row.dec_deg = placement.dec_deg;
+    const double g_obs = observeMagnitude(object.true_g_mag, gMagErrorMag(object.true_g_mag), random);
+    row.g_mag = g_obs;
+    row.g_error_mag = gMagErrorMag(g_obs);
+    if (random.uniform() >= bpRpLossProbability(g_obs, s.bp_rp_loss_start_g_mag, s.bp_rp_loss_end_g_mag)) {
+        row.bp_error_mag = bpMagErrorMag(g_obs);
+        row.rp_error_mag = rpMagErrorMag(g_obs);
+        row.bp_mag = observeMagnitude(abs.bp + modulus, row.bp_error_mag, random);
+        row.rp_mag = observeMagnitude(abs.rp + modulus, row.rp_error_mag, random);
+        if (std::isnan(row.bp_mag)) {
+            row.bp_error_mag = kNaN;
+        }
+        if (std::isnan(row.rp_mag)) {
+            row.rp_error_mag = kNaN;
+        }
+    }
+    const double parallax_mas = 1000.0 / distance_pc;
+    row.parallax_error_mas = parallaxErrorMas(g_obs);
+    row.parallax_mas = parallax_mas + row.parallax_error_mas * random.normal();
+    // Tangential velocity per axis -> proper motion: mu [mas/yr] = 1000 v / (4.74047 d [pc]).
+    const double pm_error = properMotionErrorMasPerYr(g_obs);
+    const double to_pm = 1000.0 / (kKmPerSecondPerAuPerYear * distance_pc);
+    // A system's first object draws its velocity here (the draws interleave with the errors' as they
+    // always have, so mocks without resolved companions repeat); companions are given theirs.
+    object.velocity_ra_km_s = std::isnan(placement.velocity_ra_km_s)
+                                  ? s.velocity_dispersion_km_s * random.normal()
+                                  : placement.velocity_ra_km_s;
+    row.pmra_mas_per_yr = to_pm * object.velocity_ra_km_s + pm_error * random.normal();
+    object.velocity_dec_km_s = std::isnan(placement.velocity_dec_km_s)
+                                   ? s.velocity_dispersion_km_s * random.normal()
+                                   : placement.velocity_dec_km_s;
+    row.pmdec_mas_per_yr = to_pm * object.velocity_dec_km_s + pm_error * random.normal();
+    std::tie(row.j_mag, row.j_error_mag) = twoMassObservation(abs.j + modulus, s.j_limit_mag, random);
+    std::tie(row.h_mag, row.h_error_mag) = twoMassObservation(abs.h + modulus, s.h_limit_mag, random);
+    std::tie(row.ks_mag, row.ks_error_mag) = twoMassObservation(abs.ks + modulus, s.ks_limit_mag, random);
+    if (has_companion && random.uniform() < s.binary_high_ruwe_share) {
+        row.ruwe = s.binary_high_ruwe_min *
+                   std::pow(s.binary_high_ruwe_max / s.binary_high_ruwe_min, random.uniform());
+    } else {
+        row.ruwe = std::pow(10.0, s.ruwe_scatter_dex * random.normal());
+    }
+    object.catalogued = g_obs <= s.g_limit_mag; // false for NaN
+    if (object.catalogued) {
+        row.row_index = catalogued_++;
+        catalog.push_back(row);
+    }
+    truth.push_back(object);
+}
+
+void MockGenerator::addResolvedCompanions(const Component& first, const Placement& first_placement,
+                                          double age_gyr, std::vector<photometry::CatalogRow>& catalog,
+                                          std::vector<ObjectTruth>& truth) {
+    const MockSettings& s = settings_;
+    if (s.wide_companion_fraction <= 0.0 || companions_.uniform() >= s.wide_companion_fraction) {
+        return;
+    }
+    const int count = companions_.uniform() < s.wide_triple_share ? 2 : 1;
+    const double ra = first_placement.ra_deg * kRadiansPerDegree;
+    const double dec = first_placement.dec_deg * kRadiansPerDegree;
+    const std::array<double, 3> direction = {std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra),
+                                             std::sin(dec)};
+    double inner_au = kNaN;
+    for (int k = 0; k < count; ++k) {
+        const double q_min = std::min(1.0, s.imf.mass_min_msun / first.initial_mass_msun);
+        const double q = q_min + (1.0 - q_min) * companions_.uniform();
+        const Component companion = makeComponent(q * first.initial_mass_msun, age_gyr, companions_);
+        const double system_mass_msun = first.mass_msun + companion.mass_msun;
+        // Kepler's third law: a [au] = (P [yr])^(2/3) (M [Msun])^(1/3); wider than the tidal limit, or
+        // (triples) within a factor 3 of the inner orbit (hierarchical stability; common practice, no
+        // source), is drawn again.
+        double semi_major_au = kNaN;
+        for (int attempt = 0; attempt < 100; ++attempt) {
+            const double log_period_day =
+                s.wide_log_period_mean_day + s.wide_log_period_sigma_dex * companions_.normal();
+            const double period_yr = std::pow(10.0, log_period_day) / 365.25;
+            const double a_au = std::pow(period_yr, 2.0 / 3.0) * std::cbrt(system_mass_msun);
+            const bool hierarchical = std::isnan(inner_au) || a_au > 3.0 * inner_au || a_au < inner_au / 3.0;
+            if (a_au <= s.wide_max_separation_au && hierarchical) {
+                semi_major_au = a_au;
+                break;
+            }
+        }
+        // An isotropic orbit normal and phase: the separation along a random unit vector, the velocity along
+        // a random unit vector perpendicular to it.
+        const std::array<double, 3> along = randomUnitVector(companions_);
+        std::array<double, 3> across = randomUnitVector(companions_);
+        const double overlap = dot(across, along);
+        for (int i = 0; i < 3; ++i) {
+            across[i] -= overlap * along[i];
+        }
+        const double across_norm = std::sqrt(dot(across, across));
+        if (companion.compact_remnant || std::isnan(semi_major_au) || !(across_norm > 0.0)) {
+            continue;
+        }
+        const double separation_pc = semi_major_au / kAuPerPc;
+        std::array<double, 3> position{};
+        for (int i = 0; i < 3; ++i) {
+            position[i] = first_placement.distance_pc * direction[i] + separation_pc * along[i];
+        }
+        const double distance_pc = std::sqrt(dot(position, position));
+        const double cos_angle = std::clamp(dot(position, direction) / distance_pc, -1.0, 1.0);
+        const double angle_rad = std::acos(cos_angle);
+        const double angle_arcsec = angle_rad / kRadiansPerDegree * 3600.0;
+        if (angle_arcsec < s.resolution_limit_arcsec) {
+            continue; // would not be resolved: not added
+        }
+        Placement placement;
+        placement.distance_pc = distance_pc;
+        placement.age_gyr = age_gyr;
+        placement.ra_deg = std::fmod(std::atan2(position[1], position[0]) / kRadiansPerDegree + 360.0, 360.0);
+        placement.dec_deg = std::asin(position[2] / distance_pc) / kRadiansPerDegree;
+        // Circular speed v = 29.78 km/s sqrt(M / a) (M in Msun, a in au; from memory), seen along the
+        // companion's east and north.
+        const double speed_km_s = 29.78 * std::sqrt(system_mass_msun / semi_major_au);
+        const double cra = std::cos(placement.ra_deg * kRadiansPerDegree);
+        const double sra = std::sin(placement.ra_deg * kRadiansPerDegree);
+        const double sdec = std::sin(placement.dec_deg * kRadiansPerDegree);
+        const double cdec = std::cos(placement.dec_deg * kRadiansPerDegree);
+        const std::array<double, 3> east = {-sra, cra, 0.0};
+        const std::array<double, 3> north = {-sdec * cra, -sdec * sra, cdec};
+        for (int i = 0; i < 3; ++i) {
+            across[i] *= speed_km_s / across_norm;
+        }
+        placement.velocity_ra_km_s = first_placement.velocity_ra_km_s + dot(across, east);
+        placement.velocity_dec_km_s = first_placement.velocity_dec_km_s + dot(across, north);
+        placement.source_id = mockSourceId(seed_, kCompanionIndexOffset + companions_made_++);
+        placement.system_source_id = first_placement.system_source_id;
+        placement.resolved_companion = true;
+        placement.separation_au = angle_rad * first_placement.distance_pc * kAuPerPc;
+        placement.separation_arcsec = angle_arcsec;
+        Component no_companion;
+        no_companion.compact_remnant = true;
+        addObject(companion, no_companion, placement, companions_, catalog, truth);
+        inner_au = semi_major_au;
+    }
 }
 
 bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::CatalogRow>& catalog,
@@ -257,13 +472,13 @@ bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::Catalo
         const double primary_mass = imf_.sample(properties_);
         const double age_gyr = s.disc_age_gyr * properties_.uniform();
         const bool binary = properties_.uniform() < s.binary_fraction;
-        Component primary = makeComponent(primary_mass, age_gyr);
+        Component primary = makeComponent(primary_mass, age_gyr, properties_);
         Component companion;
         companion.compact_remnant = true; // "no companion"
         if (binary) {
             const double q_min = std::min(1.0, s.imf.mass_min_msun / primary_mass);
             const double q = q_min + (1.0 - q_min) * properties_.uniform();
-            companion = makeComponent(q * primary_mass, age_gyr);
+            companion = makeComponent(q * primary_mass, age_gyr, properties_);
         }
         if (primary.compact_remnant) {
             // An NS/BH is removed; a visible companion becomes the object.
@@ -273,84 +488,19 @@ bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::Catalo
             ++remnant_only_systems_;
             continue;
         }
-        const bool has_companion = !companion.compact_remnant;
-        if (has_companion && companion.abs.g < primary.abs.g) {
-            // The truth names the component that dominates the G light, the one a photometric census
-            // can classify (a white dwarf with a brighter M dwarf companion is seen as an M dwarf).
-            std::swap(primary, companion);
-        }
-        const photometry::BandMagnitudes abs =
-            has_companion ? combine(primary.abs, companion.abs) : primary.abs;
-        const double modulus = 5.0 * std::log10(distance_pc) - 5.0;
-
-        ObjectTruth object;
-        object.source_id = mockSourceId(seed_, systems_);
-        object.true_class = primary.star_class;
-        object.stage = primary.stage;
-        object.spectral_code = primary.spectral_code;
-        object.distance_pc = distance_pc;
-        object.mass_msun = primary.mass_msun;
-        object.initial_mass_msun = primary.initial_mass_msun;
-        object.age_gyr = age_gyr;
-        object.binary = has_companion;
-        if (has_companion) {
-            object.companion_class = companion.star_class;
-            object.companion_mass_msun = companion.mass_msun;
-        }
-        object.abs_g_mag = abs.g;
-        object.true_g_mag = abs.g + modulus;
+        Placement placement;
+        placement.distance_pc = distance_pc;
+        placement.age_gyr = age_gyr;
+        placement.ra_deg = ra_deg;
+        placement.dec_deg = dec_deg;
+        placement.source_id = mockSourceId(seed_, systems_);
+        placement.system_source_id = placement.source_id;
         ++systems_;
-
-        // What the survey measures.
-        photometry::CatalogRow row;
-        row.source_id = object.source_id;
-        row.ra_deg = ra_deg;
-        row.dec_deg = dec_deg;
-        const double g_obs =
-            observeMagnitude(object.true_g_mag, gMagErrorMag(object.true_g_mag), properties_);
-        row.g_mag = g_obs;
-        row.g_error_mag = gMagErrorMag(g_obs);
-        if (properties_.uniform() >=
-            bpRpLossProbability(g_obs, s.bp_rp_loss_start_g_mag, s.bp_rp_loss_end_g_mag)) {
-            row.bp_error_mag = bpMagErrorMag(g_obs);
-            row.rp_error_mag = rpMagErrorMag(g_obs);
-            row.bp_mag = observeMagnitude(abs.bp + modulus, row.bp_error_mag, properties_);
-            row.rp_mag = observeMagnitude(abs.rp + modulus, row.rp_error_mag, properties_);
-            if (std::isnan(row.bp_mag)) {
-                row.bp_error_mag = kNaN;
-            }
-            if (std::isnan(row.rp_mag)) {
-                row.rp_error_mag = kNaN;
-            }
-        }
-        const double parallax_mas = 1000.0 / distance_pc;
-        row.parallax_error_mas = parallaxErrorMas(g_obs);
-        row.parallax_mas = parallax_mas + row.parallax_error_mas * properties_.normal();
-        // Tangential velocity per axis -> proper motion: mu [mas/yr] = 1000 v / (4.74047 d [pc]).
-        const double pm_error = properMotionErrorMasPerYr(g_obs);
-        const double to_pm = 1000.0 / (kKmPerSecondPerAuPerYear * distance_pc);
-        row.pmra_mas_per_yr =
-            to_pm * s.velocity_dispersion_km_s * properties_.normal() + pm_error * properties_.normal();
-        row.pmdec_mas_per_yr =
-            to_pm * s.velocity_dispersion_km_s * properties_.normal() + pm_error * properties_.normal();
-        std::tie(row.j_mag, row.j_error_mag) =
-            twoMassObservation(abs.j + modulus, s.j_limit_mag, properties_);
-        std::tie(row.h_mag, row.h_error_mag) =
-            twoMassObservation(abs.h + modulus, s.h_limit_mag, properties_);
-        std::tie(row.ks_mag, row.ks_error_mag) =
-            twoMassObservation(abs.ks + modulus, s.ks_limit_mag, properties_);
-        if (has_companion && properties_.uniform() < s.binary_high_ruwe_share) {
-            row.ruwe = s.binary_high_ruwe_min *
-                       std::pow(s.binary_high_ruwe_max / s.binary_high_ruwe_min, properties_.uniform());
-        } else {
-            row.ruwe = std::pow(10.0, s.ruwe_scatter_dex * properties_.normal());
-        }
-        object.catalogued = g_obs <= s.g_limit_mag; // false for NaN
-        if (object.catalogued) {
-            row.row_index = catalogued_++;
-            catalog.push_back(row);
-        }
-        truth.push_back(object);
+        const Component first = primary;
+        addObject(primary, companion, placement, properties_, catalog, truth);
+        placement.velocity_ra_km_s = truth.back().velocity_ra_km_s;
+        placement.velocity_dec_km_s = truth.back().velocity_dec_km_s;
+        addResolvedCompanions(first, placement, age_gyr, catalog, truth);
     }
     return !done_;
 }

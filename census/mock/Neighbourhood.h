@@ -18,6 +18,13 @@
 //  - Unresolved binaries: companion mass q * M1 with q uniform in [mass_min / M1, 1]; same age and
 //    distance; fluxes added per band. The object keeps the class of the component that is brighter in
 //    G (the one a photometric census can classify); the other is its companion.
+//  - Resolved companions: a share of the systems draws one outer companion (a share of those two: a
+//    triple), mass ratio as above, semi-major axis log-normal from the period distribution of Raghavan et
+//    al. 2010 (ApJS 190, 1, Sect. 7.1: log P/d ~ N(5.03, 2.28); from memory) through Kepler's third law
+//    for the system mass, circular orbit at an isotropic orientation and phase. A companion that would
+//    appear closer than the resolution limit is not added (unresolved companions are the binaries above).
+//    The companion moves with the primary's tangential velocity plus its orbital velocity; it is its own
+//    object, with its own measurement errors.
 //  - Measurement errors from MeasurementErrors.h, Gaussian in flux for the Gaia bands and in magnitude for
 //    2MASS; an object is catalogued if its measured G is at most the survey limit.
 #include "census/InitialMassFunction.h"
@@ -57,6 +64,15 @@ struct MockSettings {
     // Binaries.
     double binary_fraction = 0.3; // unresolved binary systems / all systems (Reylé et al. 2021 find ~27%
                                   // multiplicity within 10 pc, published-figures.md section 1)
+    // Resolved companions: off by default (the calibrations of the mocks' other tests count one object
+    // per system); the system tests use 0.15 with a triple share of 0.2 (common practice, no source).
+    double wide_companion_fraction = 0.0; // systems drawing a resolved (outer) companion
+    double wide_triple_share = 0.2; // of those, systems drawing a second one (common practice, no source)
+    double wide_log_period_mean_day = 5.03; // Raghavan et al. 2010, ApJS 190, 1 (from memory)
+    double wide_log_period_sigma_dex = 2.28;
+    double resolution_limit_arcsec = 2.0;     // companions closer are not added (Gaia DR3 resolves pairs
+                                              // beyond ~1-2 arcsec, El-Badry et al. 2021; from memory)
+    double wide_max_separation_au = 206265.0; // 1 pc: wider orbits are redrawn (tidal limit; from memory)
     // Intrinsic scatter (mag; common practice, no source).
     double ms_abs_mag_scatter_mag = 0.1;  // one shift of all bands of a main-sequence star or brown dwarf
     double ms_colour_scatter_mag = 0.02;  // BP-RP and J-Ks, each split equally between its two bands
@@ -107,8 +123,17 @@ struct ObjectTruth {
     bool binary = false; // a visible (non-NS/BH) companion
     photometry::StellarClass companion_class = photometry::StellarClass::Unclassified;
     double companion_mass_msun = photometry::kMissing; // present-day
-    double abs_g_mag = photometry::kMissing;           // combined absolute G (mag)
-    double true_g_mag = photometry::kMissing;          // combined apparent G without errors (mag)
+    // The resolved system: every object of one system has the source_id of its first object (the one
+    // the system was drawn around) as system_source_id; the others are resolved companions, at this
+    // projected separation (au) and angle (arcsec) from it.
+    std::int64_t system_source_id = photometry::kMissingSourceId;
+    bool resolved_companion = false;
+    double separation_au = 0.0;
+    double separation_arcsec = 0.0;
+    double velocity_ra_km_s = photometry::kMissing; // true tangential velocity per axis (km/s)
+    double velocity_dec_km_s = photometry::kMissing;
+    double abs_g_mag = photometry::kMissing;  // combined absolute G (mag)
+    double true_g_mag = photometry::kMissing; // combined apparent G without errors (mag)
     bool catalogued = false;
 };
 
@@ -129,8 +154,8 @@ void addToCounts(std::span<const ObjectTruth> truth, std::vector<RadiusCounts>& 
 struct MockResult {
     MockSettings settings;
     std::uint64_t seed = 0;
-    std::vector<photometry::CatalogRow> catalog; // catalogued objects, nearest first
-    std::vector<ObjectTruth> truth;              // every object, nearest first
+    std::vector<photometry::CatalogRow> catalog; // catalogued objects, by system distance
+    std::vector<ObjectTruth> truth;              // every object, by system distance (companions follow)
     std::int64_t remnant_only_systems = 0;       // systems of NS/BH only: removed, in neither list
 };
 
@@ -150,17 +175,26 @@ class MockGenerator {
 
   private:
     struct Component;
-    Component makeComponent(double initial_mass_msun, double age_gyr);
+    struct Placement;
+    Component makeComponent(double initial_mass_msun, double age_gyr, Xoshiro256& random);
+    /// Appends the object of one component (and its unresolved companion, if any) as truth and, if
+    /// detected, catalog row; its measurements come from `random`.
+    void addObject(Component primary, Component companion, const Placement& placement, Xoshiro256& random,
+                   std::vector<photometry::CatalogRow>& catalog, std::vector<ObjectTruth>& truth);
+    void addResolvedCompanions(const Component& first, const Placement& first_placement, double age_gyr,
+                               std::vector<photometry::CatalogRow>& catalog, std::vector<ObjectTruth>& truth);
 
     MockSettings settings_;
     std::uint64_t seed_;
     const photometry::ModelPhotometry& photometry_;
     InitialMassFunction imf_;
     Xoshiro256 positions_;  // volume gaps, directions
-    Xoshiro256 properties_; // everything else
+    Xoshiro256 properties_; // everything else of the first object of each system
+    Xoshiro256 companions_; // the resolved companions: their orbits, components and measurements
     double enclosed_volume_pc3_ = 0.0;
     double volume_max_pc3_;
     std::int64_t systems_ = 0;
+    std::int64_t companions_made_ = 0; // resolved companions so far (their source ids)
     std::int64_t catalogued_ = 0;
     std::int64_t remnant_only_systems_ = 0;
     bool done_ = false;

@@ -1,0 +1,347 @@
+#include "census/Systems.h"
+
+#include "census/detail/SkyGeometry.h"
+#include "photometry/base/OptionChecks.h"
+#include "photometry/base/Threads.h"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <numeric>
+#include <optional>
+#include <tuple>
+
+namespace starcensus::census {
+
+namespace {
+
+using detail::kArcsecPerRadian;
+using detail::kRadiansPerDegree;
+using detail::UnitVector;
+using photometry::CatalogRow;
+
+constexpr double kAuPerPc = 206264.806;
+// v_t [km/s] = 4.74047 mu [arcsec/yr] d [pc] (IAU 2012 au, Julian year).
+constexpr double kKmPerSecondPerAuPerYear = 4.74047;
+// Escape speed at 1 au from 1 Msun: sqrt(2 G Msun / au) = sqrt(2) x 29.78 km/s (from memory).
+constexpr double kEscapeSpeedAtAuKmPerS = 42.122;
+// Cells of the chance-alignment estimate: log10 projected separation (au) from 0 in steps of 0.5 dex, and
+// dmu / allowed dmu in quarters (common practice, no source: a few pairs per cell in a 10^4-object sample).
+constexpr double kLogSeparationStepDex = 0.5;
+constexpr int kSeparationCells = 12; // 1 au .. 10^6 au, past 1 pc = 2.06e5 au
+constexpr int kMotionCells = 4;
+constexpr int kChanceCells = kSeparationCells * kMotionCells;
+
+bool usable(const CatalogRow& row) {
+    return std::isfinite(row.ra_deg) && std::isfinite(row.dec_deg) && row.parallax_mas > 0.0 &&
+           std::isfinite(row.pmra_mas_per_yr) && std::isfinite(row.pmdec_mas_per_yr);
+}
+
+/// Error-weighted mean parallax of two rows (mas); the plain mean without errors.
+double pairParallaxMas(const CatalogRow& a, const CatalogRow& b) {
+    const bool weighted = a.parallax_error_mas > 0.0 && b.parallax_error_mas > 0.0;
+    if (!weighted) {
+        return 0.5 * (a.parallax_mas + b.parallax_mas);
+    }
+    const double wa = 1.0 / (a.parallax_error_mas * a.parallax_error_mas);
+    const double wb = 1.0 / (b.parallax_error_mas * b.parallax_error_mas);
+    return (wa * a.parallax_mas + wb * b.parallax_mas) / (wa + wb);
+}
+
+double errorOrZero(double error) {
+    return std::isfinite(error) && error > 0.0 ? error : 0.0;
+}
+
+/// The tests of Systems.h on one pair at angle separation_rad; nullopt if it fails one.
+std::optional<SystemPair> candidatePair(const CatalogRow& a, const CatalogRow& b, double separation_rad,
+                                        const SystemSettings& s) {
+    const double parallax_mas = pairParallaxMas(a, b);
+    const double distance_pc = 1000.0 / parallax_mas;
+    const double projected_pc = separation_rad * distance_pc;
+    if (projected_pc > s.max_projected_separation_pc) {
+        return std::nullopt;
+    }
+    const double parallax_error_mas =
+        std::hypot(errorOrZero(a.parallax_error_mas), errorOrZero(b.parallax_error_mas));
+    // A radial separation r s at distance d changes the parallax by plx^2 r s / 1000 (mas; s in pc).
+    const double depth_mas =
+        parallax_mas * parallax_mas * s.radial_to_projected_ratio * projected_pc / 1000.0;
+    if (std::abs(a.parallax_mas - b.parallax_mas) >
+        s.parallax_consistency_sigma * parallax_error_mas + depth_mas) {
+        return std::nullopt;
+    }
+    const double to_proper_motion = 1000.0 / (kKmPerSecondPerAuPerYear * distance_pc); // mas/yr per km/s
+    const double projected_au = projected_pc * kAuPerPc;
+    const double escape_mas_per_yr = kEscapeSpeedAtAuKmPerS *
+                                     std::sqrt(s.max_total_mass_msun / std::max(projected_au, 1e-3)) *
+                                     to_proper_motion;
+    // One space velocity seen in two directions theta apart differs by up to |v| theta (v in proper-motion
+    // units: the mean proper motion and the largest radial velocity assumed).
+    const double mean_pm =
+        0.5 * std::hypot(a.pmra_mas_per_yr + b.pmra_mas_per_yr, a.pmdec_mas_per_yr + b.pmdec_mas_per_yr);
+    const double perspective_mas_per_yr =
+        separation_rad * std::hypot(mean_pm, s.max_radial_velocity_km_s * to_proper_motion);
+    // Two axes, two stars: sigma of |dmu| per axis is the hypot of the two stars' errors.
+    const double pm_error = s.proper_motion_error_per_parallax_error * parallax_error_mas;
+    const double allowed = escape_mas_per_yr + perspective_mas_per_yr + s.proper_motion_sigma * pm_error;
+    const double difference =
+        std::hypot(a.pmra_mas_per_yr - b.pmra_mas_per_yr, a.pmdec_mas_per_yr - b.pmdec_mas_per_yr);
+    if (difference > allowed) {
+        return std::nullopt;
+    }
+    SystemPair pair;
+    pair.separation_arcsec = separation_rad * kArcsecPerRadian;
+    pair.projected_separation_au = projected_au;
+    pair.proper_motion_difference_mas_per_yr = difference;
+    pair.allowed_proper_motion_difference_mas_per_yr = allowed;
+    return pair;
+}
+
+int chanceCell(const SystemPair& pair) {
+    const int separation_cell =
+        std::clamp(static_cast<int>(std::floor(std::log10(std::max(pair.projected_separation_au, 1.0)) /
+                                               kLogSeparationStepDex)),
+                   0, kSeparationCells - 1);
+    const double motion = pair.proper_motion_difference_mas_per_yr /
+                          std::max(pair.allowed_proper_motion_difference_mas_per_yr, 1e-30);
+    const int motion_cell = std::clamp(static_cast<int>(motion * kMotionCells), 0, kMotionCells - 1);
+    return separation_cell * kMotionCells + motion_cell;
+}
+
+/// Candidate pairs (query row i, target row j) with the target positions `targets`: each unordered pair
+/// once, searched from its member with the larger parallax (ties: the lower index), whose search radius
+/// covers the pair (the pair's mean parallax is not larger). The HEALPix grid is sized for the median
+/// search radius.
+std::vector<SystemPair> searchPairs(std::span<const CatalogRow> rows,
+                                    const std::vector<std::uint32_t>& usable_rows,
+                                    const std::vector<UnitVector>& positions,
+                                    const std::vector<UnitVector>& targets, const SystemSettings& s) {
+    if (usable_rows.empty()) {
+        return {};
+    }
+    const double cap_rad = s.max_search_angle_deg * kRadiansPerDegree;
+    auto radiusOf = [&](std::uint32_t row) {
+        return std::min(cap_rad, s.max_projected_separation_pc * rows[row].parallax_mas / 1000.0);
+    };
+    std::vector<double> radii;
+    radii.reserve(usable_rows.size());
+    for (const std::uint32_t row : usable_rows) {
+        radii.push_back(radiusOf(row));
+    }
+    std::nth_element(radii.begin(), radii.begin() + static_cast<std::ptrdiff_t>(radii.size() / 2),
+                     radii.end());
+    const auto grid = detail::neighbourGrid(radii[radii.size() / 2]);
+    std::vector<std::pair<std::int64_t, std::uint32_t>> by_pixel;
+    by_pixel.reserve(usable_rows.size());
+    for (const std::uint32_t row : usable_rows) {
+        const UnitVector& u = targets[row];
+        by_pixel.emplace_back(grid.vec2pix(vec3(u.x, u.y, u.z)), row);
+    }
+    std::sort(by_pixel.begin(), by_pixel.end());
+    const unsigned workers = resolveThreadCount(s.threads);
+    std::vector<std::vector<SystemPair>> found(workers);
+    forEachIndex(usable_rows.size(), s.threads, [&](std::size_t k, unsigned worker) {
+        const std::uint32_t i = usable_rows[k];
+        const CatalogRow& a = rows[i];
+        const double radius_rad = radiusOf(i);
+        rangeset<std::int64_t> pixels;
+        grid.query_disc_inclusive(detail::toPointing(positions[i]), radius_rad, pixels);
+        for (std::size_t r = 0; r < pixels.nranges(); ++r) {
+            auto it = std::lower_bound(by_pixel.begin(), by_pixel.end(),
+                                       std::pair<std::int64_t, std::uint32_t>{pixels.ivbegin(r), 0});
+            for (; it != by_pixel.end() && it->first < pixels.ivend(r); ++it) {
+                const std::uint32_t j = it->second;
+                const CatalogRow& b = rows[j];
+                if (j == i || b.parallax_mas > a.parallax_mas ||
+                    (b.parallax_mas == a.parallax_mas && j < i)) {
+                    continue;
+                }
+                const double separation_rad = detail::separationRadians(positions[i], targets[j]);
+                if (separation_rad > radius_rad) {
+                    continue;
+                }
+                if (auto pair = candidatePair(a, b, separation_rad, s)) {
+                    pair->a = std::min(i, j);
+                    pair->b = std::max(i, j);
+                    found[worker].push_back(*pair);
+                }
+            }
+        }
+    });
+    std::vector<SystemPair> pairs;
+    for (auto& part : found) {
+        pairs.insert(pairs.end(), part.begin(), part.end());
+    }
+    std::sort(pairs.begin(), pairs.end(), [](const SystemPair& x, const SystemPair& y) {
+        return std::tie(x.a, x.b) < std::tie(y.a, y.b);
+    });
+    return pairs;
+}
+
+/// The positions displaced by shift_deg: along the parallel (ra += shift / cos dec) within 60 deg of the
+/// equator, towards the equator by |shift| beyond, so every object moves by about |shift| and the sky
+/// density around it stays what it was.
+std::vector<UnitVector> shiftedSky(std::span<const CatalogRow> rows, double shift_deg) {
+    constexpr double kPolarCapDeg = 60.0;
+    std::vector<UnitVector> shifted(rows.size());
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        const CatalogRow& row = rows[i];
+        double ra_deg = row.ra_deg;
+        double dec_deg = row.dec_deg;
+        if (std::abs(dec_deg) <= kPolarCapDeg) {
+            ra_deg += shift_deg / std::cos(dec_deg * kRadiansPerDegree);
+        } else {
+            dec_deg -= std::copysign(std::abs(shift_deg), dec_deg);
+        }
+        shifted[i] = detail::unitVectorOf(ra_deg, dec_deg);
+    }
+    return shifted;
+}
+
+std::uint32_t findRoot(std::vector<std::uint32_t>& parent, std::uint32_t i) {
+    while (parent[i] != i) {
+        parent[i] = parent[parent[i]];
+        i = parent[i];
+    }
+    return i;
+}
+
+/// True if row x should be the primary rather than row y: more massive; without masses (or equal),
+/// brighter in G; then the lower index.
+bool outranks(std::span<const CatalogRow> rows, std::span<const double> masses_msun, std::uint32_t x,
+              std::uint32_t y) {
+    const double mx = std::isnan(masses_msun[x]) ? -1.0 : masses_msun[x];
+    const double my = std::isnan(masses_msun[y]) ? -1.0 : masses_msun[y];
+    if (mx != my) {
+        return mx > my;
+    }
+    const double gx = std::isnan(rows[x].g_mag) ? 99.0 : rows[x].g_mag;
+    const double gy = std::isnan(rows[y].g_mag) ? 99.0 : rows[y].g_mag;
+    if (gx != gy) {
+        return gx < gy;
+    }
+    return x < y;
+}
+
+} // namespace
+
+void validateSystemSettings(const SystemSettings& s) {
+    requireInRange("system-separation-max", s.max_projected_separation_pc, 0.0, 10.0, "pc",
+                   LowerBound::Exclusive);
+    requireInRange("system-search-angle-max", s.max_search_angle_deg, 0.0, 30.0, "deg",
+                   LowerBound::Exclusive);
+    requireInRange("system-sky-shift", s.sky_shift_deg, s.max_search_angle_deg, 90.0, "deg",
+                   LowerBound::Exclusive);
+    requireInRange("system-chance-max", s.max_chance_probability, 0.0, 1.0, "");
+    requireInRange("system-ruwe", s.unresolved_ruwe, 1.0, 100.0, "");
+    requireThat(s.sky_shifts >= 1 && s.sky_shifts <= 16, "system-sky-shifts", "must be in [1, 16]");
+}
+
+SystemCatalog findSystems(std::span<const CatalogRow> rows, std::span<const double> masses_msun,
+                          std::span<const std::uint8_t> above_binary_band, const SystemSettings& s) {
+    validateSystemSettings(s);
+    const auto n = static_cast<std::uint32_t>(rows.size());
+    std::vector<std::uint32_t> usable_rows;
+    std::vector<UnitVector> positions(n);
+    for (std::uint32_t i = 0; i < n; ++i) {
+        if (usable(rows[i])) {
+            usable_rows.push_back(i);
+            positions[i] = detail::unitVectorOf(rows[i].ra_deg, rows[i].dec_deg);
+        }
+    }
+    SystemCatalog result;
+    result.pairs = searchPairs(rows, usable_rows, positions, positions, s);
+
+    // Shifted skies: +1, -1, +2, -2, ... times sky_shift_deg.
+    std::array<double, kChanceCells> shifted_counts{};
+    for (int k = 0; k < s.sky_shifts; ++k) {
+        const double shift_deg = s.sky_shift_deg * (k / 2 + 1) * (k % 2 == 0 ? 1.0 : -1.0);
+        for (const SystemPair& pair :
+             searchPairs(rows, usable_rows, positions, shiftedSky(rows, shift_deg), s)) {
+            shifted_counts[static_cast<std::size_t>(chanceCell(pair))] += 1.0;
+        }
+    }
+    std::array<double, kChanceCells> real_counts{};
+    for (const SystemPair& pair : result.pairs) {
+        real_counts[static_cast<std::size_t>(chanceCell(pair))] += 1.0;
+    }
+    result.shifted_pairs_per_sky =
+        std::accumulate(shifted_counts.begin(), shifted_counts.end(), 0.0) / s.sky_shifts;
+
+    result.flags.assign(n, 0);
+    for (std::uint32_t i = 0; i < n; ++i) {
+        if (rows[i].ruwe > s.unresolved_ruwe) {
+            result.flags[i] |= SystemFlagHighRuwe;
+        }
+        if (above_binary_band[i] != 0) {
+            result.flags[i] |= SystemFlagAboveBinaryBand;
+        }
+    }
+    std::vector<std::uint32_t> parent(n);
+    std::iota(parent.begin(), parent.end(), 0u);
+    for (SystemPair& pair : result.pairs) {
+        const auto cell = static_cast<std::size_t>(chanceCell(pair));
+        pair.chance_probability = std::min(1.0, shifted_counts[cell] / s.sky_shifts / real_counts[cell]);
+        pair.joined = pair.chance_probability <= s.max_chance_probability;
+        if (pair.joined) {
+            parent[findRoot(parent, pair.b)] = findRoot(parent, pair.a);
+        } else {
+            result.flags[pair.a] |= SystemFlagChanceRejected;
+            result.flags[pair.b] |= SystemFlagChanceRejected;
+        }
+    }
+
+    // Systems in order of their lowest row: the first row met of each root opens it.
+    std::vector<std::int64_t> system_of_root(n, -1);
+    for (std::uint32_t i = 0; i < n; ++i) {
+        const std::uint32_t root = findRoot(parent, i);
+        if (system_of_root[root] < 0) {
+            system_of_root[root] = static_cast<std::int64_t>(result.systems.size());
+            result.systems.emplace_back();
+        }
+        result.systems[static_cast<std::size_t>(system_of_root[root])].members.push_back(i);
+    }
+    std::vector<double> largest_chance(result.systems.size(), 0.0);
+    for (const SystemPair& pair : result.pairs) {
+        if (pair.joined) {
+            double& largest =
+                largest_chance[static_cast<std::size_t>(system_of_root[findRoot(parent, pair.a)])];
+            largest = std::max(largest, pair.chance_probability);
+        }
+    }
+    result.system_ids.assign(n, 0);
+    result.roles.assign(n, SystemRole::Single);
+    for (std::size_t k = 0; k < result.systems.size(); ++k) {
+        StellarSystem& system = result.systems[k];
+        system.id = static_cast<std::int64_t>(k) + 1;
+        system.largest_chance_probability = largest_chance[k];
+        system.primary = *std::min_element(
+            system.members.begin(), system.members.end(),
+            [&](std::uint32_t x, std::uint32_t y) { return outranks(rows, masses_msun, x, y); });
+        const UnitVector& primary_position = positions[system.primary];
+        auto angleFromPrimary = [&](std::uint32_t member) {
+            return member == system.primary ? 0.0
+                                            : detail::separationRadians(primary_position, positions[member]);
+        };
+        std::stable_sort(system.members.begin(), system.members.end(), [&](std::uint32_t x, std::uint32_t y) {
+            return angleFromPrimary(x) < angleFromPrimary(y);
+        });
+        for (const std::uint32_t member : system.members) {
+            const double angle_rad = angleFromPrimary(member);
+            const double separation_au =
+                angle_rad * 1000.0 / pairParallaxMas(rows[system.primary], rows[member]) * kAuPerPc;
+            if (separation_au > system.widest_separation_au) {
+                system.widest_separation_au = separation_au;
+                system.widest_separation_arcsec = angle_rad * kArcsecPerRadian;
+            }
+            system.flags |= result.flags[member];
+            result.system_ids[member] = system.id;
+            if (system.members.size() > 1) {
+                result.roles[member] = member == system.primary ? SystemRole::Primary : SystemRole::Companion;
+            }
+        }
+    }
+    return result;
+}
+
+} // namespace starcensus::census
