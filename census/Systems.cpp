@@ -52,6 +52,11 @@ double errorOrZero(double error) {
     return std::isfinite(error) && error > 0.0 ? error : 0.0;
 }
 
+/// The factor on a row's errors: its RUWE where above 1 (SystemSettings::inflate_errors_by_ruwe).
+double errorScale(const CatalogRow& row, const SystemSettings& s) {
+    return s.inflate_errors_by_ruwe && row.ruwe > 1.0 ? row.ruwe : 1.0;
+}
+
 /// The tests of Systems.h on one pair at angle separation_rad; nullopt if it fails one.
 std::optional<SystemPair> candidatePair(const CatalogRow& a, const CatalogRow& b, double separation_rad,
                                         const SystemSettings& s) {
@@ -61,8 +66,11 @@ std::optional<SystemPair> candidatePair(const CatalogRow& a, const CatalogRow& b
     if (projected_pc > s.max_projected_separation_pc) {
         return std::nullopt;
     }
+    const double close_factor =
+        separation_rad * kArcsecPerRadian < s.close_pair_arcsec ? s.close_pair_error_factor : 1.0;
     const double parallax_error_mas =
-        std::hypot(errorOrZero(a.parallax_error_mas), errorOrZero(b.parallax_error_mas));
+        close_factor * std::hypot(errorOrZero(a.parallax_error_mas) * errorScale(a, s),
+                                  errorOrZero(b.parallax_error_mas) * errorScale(b, s));
     // A radial separation r s at distance d changes the parallax by plx^2 r s / 1000 (mas; s in pc).
     const double depth_mas =
         parallax_mas * parallax_mas * s.radial_to_projected_ratio * projected_pc / 1000.0;

@@ -43,6 +43,15 @@ struct SystemSettings {
     // no proper-motion errors; in Gaia DR3 the two are about equal (Lindegren et al. 2021, A&A 649, A2,
     // Table 4; from memory).
     double proper_motion_error_per_parallax_error = 1.0;
+    // Errors of rows with RUWE > 1 are multiplied by their RUWE: an unresolved companion's photocentre
+    // motion enters both the parallax and the proper motion, and the quoted errors do not know it
+    // (common practice, no source).
+    bool inflate_errors_by_ruwe = true;
+    // Errors of both rows of a pair closer than close_pair_arcsec are multiplied by close_pair_error_factor:
+    // Gaia DR3 underestimates them for close pairs (El-Badry et al. 2021, Sect. 2, loosen the parallax
+    // test below ~4 arcsec; from memory).
+    double close_pair_arcsec = 4.0;
+    double close_pair_error_factor = 2.0;
     // Largest radial velocity assumed in the perspective term (km/s; common practice, no source).
     double max_radial_velocity_km_s = 100.0;
     // The shifted skies: displacements of 1..sky_shifts times sky_shift_deg, alternately east and west

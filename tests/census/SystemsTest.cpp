@@ -8,7 +8,11 @@
 
 #include <cmath>
 #include <cstdio>
+#include <fstream>
+#include <map>
 #include <set>
+#include <sstream>
+#include <string>
 #include <unordered_map>
 #include <utility>
 
@@ -163,4 +167,128 @@ TEST_CASE("Systems: resolved pairs of mocks are recovered complete and pure insi
     CHECK(true_pairs > 300);
     CHECK(completeness >= 0.95);
     CHECK(purity >= 0.95);
+}
+
+namespace {
+
+std::vector<std::string> splitFields(const std::string& line) {
+    std::vector<std::string> fields;
+    std::string field;
+    std::istringstream stream(line);
+    while (std::getline(stream, field, ',')) {
+        fields.push_back(field);
+    }
+    if (!line.empty() && line.back() == ',') {
+        fields.emplace_back();
+    }
+    return fields;
+}
+
+double numberOr(const std::string& text, double fallback) {
+    return text.empty() ? fallback : std::stod(text);
+}
+
+} // namespace
+
+TEST_CASE("Systems: CARMENES IX multiple systems with Gaia DR3 astrometry for every component are found") {
+    // Cifuentes et al. 2025 (arXiv:2412.12264), CARMENES input catalogue IX, cif03.full_table.csv: one row
+    // per resolved component, ID_system shared by the rows of one system (empty: single); the columns copied
+    // to tests/reference/carmenes_ix_multiplicity.csv. Published systems whose every row has DR3 parallax and
+    // proper motion; the goal of the issue: ours agree (same members, no others) for >= 90% of them.
+    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/carmenes_ix_multiplicity.csv");
+    REQUIRE(file);
+    std::string line;
+    std::getline(file, line);
+    const auto header = splitFields(line);
+    const auto column = [&](const std::string& name) {
+        const auto it = std::find(header.begin(), header.end(), name);
+        REQUIRE(it != header.end());
+        return static_cast<std::size_t>(it - header.begin());
+    };
+    const std::size_t id_star = column("ID_star"), id_system = column("ID_system"), ra = column("ra"),
+                      dec = column("dec"), plx = column("parallax"), plx_error = column("parallax_error"),
+                      plx_ref = column("parallax_ref"), pmra = column("pmra"), pmdec = column("pmdec"),
+                      pm_ref = column("pm_ref"), ruwe = column("ruwe"), g = column("G_mag"),
+                      mass = column("M_Msol");
+    struct Entry {
+        std::string system;
+        bool dr3 = false;
+        CatalogRow row;
+        double mass_msun = 0.0;
+    };
+    std::vector<Entry> entries;
+    while (std::getline(file, line)) {
+        const auto fields = splitFields(line);
+        REQUIRE(fields.size() == header.size());
+        Entry entry;
+        entry.system = fields[id_system].empty() || fields[id_system] == "0" ? "single " + fields[id_star] : fields[id_system];
+        entry.dr3 = fields[plx_ref] == "DR3" && fields[pm_ref] == "DR3";
+        if (entry.dr3) {
+            entry.row.ra_deg = std::stod(fields[ra]);
+            entry.row.dec_deg = std::stod(fields[dec]);
+            entry.row.parallax_mas = std::stod(fields[plx]);
+            entry.row.parallax_error_mas = std::stod(fields[plx_error]);
+            entry.row.pmra_mas_per_yr = std::stod(fields[pmra]);
+            entry.row.pmdec_mas_per_yr = std::stod(fields[pmdec]);
+            entry.row.ruwe = numberOr(fields[ruwe], std::nan(""));
+            entry.row.g_mag = numberOr(fields[g], std::nan(""));
+        }
+        entry.mass_msun = numberOr(fields[mass], std::nan(""));
+        entries.push_back(entry);
+    }
+    std::map<std::string, bool> all_dr3;
+    for (const Entry& entry : entries) {
+        const auto [it, inserted] = all_dr3.try_emplace(entry.system, true);
+        it->second = it->second && entry.dr3;
+    }
+    std::vector<CatalogRow> rows;
+    std::vector<double> masses;
+    std::vector<std::string> published;
+    for (const Entry& entry : entries) {
+        if (all_dr3.at(entry.system)) {
+            rows.push_back(entry.row);
+            masses.push_back(entry.mass_msun);
+            published.push_back(entry.system);
+        }
+    }
+    const std::vector<std::uint8_t> no_band(rows.size(), 0);
+    const SystemCatalog found = findSystems(rows, masses, no_band, SystemSettings{});
+    std::map<std::string, std::set<std::int64_t>> ours_of_published;
+    std::map<std::string, std::size_t> size_of_published;
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        ours_of_published[published[i]].insert(found.system_ids[i]);
+        ++size_of_published[published[i]];
+    }
+    // Confusion: published resolved members (rows) against the members of our system holding its rows
+    // (0: split over several of ours).
+    std::map<std::size_t, std::map<std::size_t, int>> confusion;
+    int agree = 0, multiples = 0, multiples_agree = 0;
+    for (const auto& [system, ours] : ours_of_published) {
+        const std::size_t published_size = size_of_published.at(system);
+        const std::size_t our_size =
+            ours.size() == 1 ? found.systems[static_cast<std::size_t>(*ours.begin() - 1)].members.size() : 0;
+        ++confusion[std::min<std::size_t>(published_size, 4)][std::min<std::size_t>(our_size, 4)];
+        const bool same = our_size == published_size;
+        agree += same ? 1 : 0;
+        if (published_size > 1) {
+            ++multiples;
+            multiples_agree += same ? 1 : 0;
+        }
+    }
+    std::printf(
+        "CARMENES IX systems with DR3 astrometry for every row: %zu rows, %zu systems (%d multiple)\n",
+        rows.size(), ours_of_published.size(), multiples);
+    std::printf("confusion, published members (rows) x our members (0 = split, 4 = 4 or more):\n");
+    for (const auto& [published_size, row] : confusion) {
+        std::printf("  published %zu:", published_size);
+        for (std::size_t ours = 0; ours <= 4; ++ours) {
+            std::printf(" %zu:%d", ours, row.count(ours) != 0 ? row.at(ours) : 0);
+        }
+        std::printf("\n");
+    }
+    const double agreement = static_cast<double>(agree) / static_cast<double>(ours_of_published.size());
+    const double multiple_agreement = static_cast<double>(multiples_agree) / multiples;
+    std::printf("agreement: %.4f of all systems, %.4f of the multiples\n", agreement, multiple_agreement);
+    CHECK(agreement >= 0.90);
+    CHECK(multiple_agreement >= 0.90);
 }
