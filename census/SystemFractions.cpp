@@ -1,0 +1,155 @@
+#include "census/SystemFractions.h"
+
+#include "photometry/ClassGrid.h"
+
+#include <cmath>
+#include <limits>
+
+namespace starcensus::census {
+
+namespace {
+
+/// The primaries (rows that are a system's primary or single), in the three blocks of SystemFractions.h,
+/// and where the blocks end.
+struct OrderedPrimaries {
+    std::vector<photometry::CatalogRow> rows;
+    std::size_t resolved_end = 0; // rows[0, resolved_end): primaries with a resolved companion
+    std::size_t flagged_end = 0;  // rows[resolved_end, flagged_end): the others with a flagged member
+};
+
+OrderedPrimaries orderPrimaries(std::span<const photometry::CatalogRow> rows, const SystemCatalog& catalog) {
+    constexpr std::uint8_t kUnresolvedFlags = SystemFlagHighRuwe | SystemFlagAboveBinaryBand;
+    std::vector<const photometry::CatalogRow*> blocks[3];
+    for (const StellarSystem& system : catalog.systems) {
+        const int block = system.members.size() > 1 ? 0 : (system.flags & kUnresolvedFlags) != 0 ? 1 : 2;
+        blocks[block].push_back(&rows[system.primary]);
+    }
+    OrderedPrimaries ordered;
+    for (const auto& block : blocks) {
+        for (const photometry::CatalogRow* row : block) {
+            ordered.rows.push_back(*row);
+        }
+        if (&block == &blocks[0]) {
+            ordered.resolved_end = ordered.rows.size();
+        } else if (&block == &blocks[1]) {
+            ordered.flagged_end = ordered.rows.size();
+        }
+    }
+    return ordered;
+}
+
+ClassGroup everyCategory() {
+    ClassGroup all{"all", {}};
+    all.categories.set();
+    return all;
+}
+
+MultiplicityEstimate multiplicityOf(const ClassGroup& group, std::size_t r, const DrawTallies& primaries,
+                                    const DrawTallies& resolved, const DrawTallies& with_unresolved,
+                                    int deviates_per_draw, Xoshiro256& random) {
+    std::vector<double> n = groupCountsByDraw(primaries, r, group);
+    const std::vector<double> m_resolved = groupCountsByDraw(resolved, r, group);
+    const std::vector<double> m_flagged = groupCountsByDraw(with_unresolved, r, group);
+    MultiplicityEstimate estimate;
+    estimate.name = group.name;
+    estimate.resolved = multiplicityIntervals(m_resolved, n, deviates_per_draw, random);
+    estimate.with_unresolved = multiplicityIntervals(m_flagged, n, deviates_per_draw, random);
+    estimate.primaries = summarizeDraws(n);
+    return estimate;
+}
+
+} // namespace
+
+std::vector<double> primaryRankingMasses(std::span<const photometry::CatalogRow> rows,
+                                         const photometry::Classifier& classifier, const RowClassRules& rules,
+                                         std::vector<std::uint8_t>* above_binary_band) {
+    std::vector<double> masses;
+    masses.reserve(rows.size());
+    for (const photometry::CatalogRow& row : rows) {
+        const photometry::Classification result = classifyRow(row, classifier, rules);
+        masses.push_back(result.stellar_class == photometry::StellarClass::Evolved
+                             ? std::numeric_limits<double>::infinity()
+                             : result.mass_msun);
+        if (above_binary_band != nullptr) {
+            above_binary_band->push_back(
+                photometry::hasFlag(result.flags, photometry::ClassificationFlag::AboveBinaryBand) ? 1 : 0);
+        }
+    }
+    return masses;
+}
+
+TwoIntervals multiplicityIntervals(const std::vector<double>& multiples, const std::vector<double>& primaries,
+                                   int deviates_per_draw, Xoshiro256& random) {
+    std::vector<double> shares;
+    std::vector<double> population;
+    for (std::size_t d = 0; d < primaries.size(); ++d) {
+        const double n = primaries[d];
+        const double m = multiples[d];
+        if (n > 0.0) {
+            shares.push_back(m / n);
+        }
+        for (int k = 0; k < deviates_per_draw; ++k) {
+            // Beta(a, b) as Gamma(a) / (Gamma(a) + Gamma(b)).
+            const double x = random.gamma(m + 0.5);
+            const double y = random.gamma(n - m + 0.5);
+            population.push_back(x / (x + y));
+        }
+    }
+    constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+    const IntervalSummary none{kNaN, kNaN, kNaN, kNaN, kNaN};
+    return {shares.empty() ? none : summarizeDraws(shares),
+            population.empty() ? none : summarizeDraws(population)};
+}
+
+SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
+    SystemAnalysis analysis;
+    std::vector<std::uint8_t> above_binary_band;
+    const std::vector<double> masses =
+        primaryRankingMasses(inputs.rows, *inputs.classifier, inputs.rules, &above_binary_band);
+    analysis.catalog = findSystems(inputs.rows, masses, above_binary_band, inputs.systems);
+
+    const OrderedPrimaries ordered = orderPrimaries(inputs.rows, analysis.catalog);
+    const std::span<const photometry::CatalogRow> all(ordered.rows);
+    const auto grid = photometry::ClassGrid::fromClassifier(*inputs.classifier);
+    DrawSettings draws = inputs.draws;
+    draws.progress = nullptr;
+    const auto tallies = [&](std::span<const photometry::CatalogRow> subset) {
+        const PreparedSample sample(subset, inputs.radii_pc, inputs.membership, inputs.rules, draws.threads,
+                                    inputs.classifier);
+        return std::pair{drawSample(sample, grid, draws), sample};
+    };
+    const auto [primary_tallies, primary_sample] = tallies(all);
+    const DrawTallies resolved = tallies(all.first(ordered.resolved_end)).first;
+    const DrawTallies with_unresolved = tallies(all.first(ordered.flagged_end)).first;
+
+    const FractionSettings fraction_settings{.seed = inputs.draws.seed};
+    std::vector<PopulationDeviates> population =
+        populationDeviatesByRadius(primary_tallies, inputs.groups, fraction_settings);
+    std::vector<double> expected;
+    for (std::size_t r = 0; r < inputs.radii_pc.size(); ++r) {
+        expected.push_back(primary_sample.expectedCount(r));
+    }
+    const std::vector<RadiusEstimate> fractions = estimateFractions(
+        primary_tallies, inputs.radii_pc, hardCutCounts(all, inputs.radii_pc, inputs.membership), expected,
+        inputs.groups, population);
+    analysis.primary_priors = estimatePriors(inputs.radii_pc, inputs.groups, std::move(population));
+    const ClassGroup every = everyCategory();
+    for (std::size_t r = 0; r < inputs.radii_pc.size(); ++r) {
+        // Its own stream per radius (stream numbers above the census's own use; common practice).
+        Xoshiro256 random(inputs.draws.seed, 0x5157'0000u + r);
+        SystemRadiusEstimate estimate;
+        estimate.radius_pc = inputs.radii_pc[r];
+        estimate.primaries = fractions[r].members;
+        estimate.primary_fractions = fractions[r].groups;
+        const int deviates = fraction_settings.population_deviates_per_draw;
+        estimate.all = multiplicityOf(every, r, primary_tallies, resolved, with_unresolved, deviates, random);
+        for (const ClassGroup& group : inputs.groups) {
+            estimate.multiplicity.push_back(
+                multiplicityOf(group, r, primary_tallies, resolved, with_unresolved, deviates, random));
+        }
+        analysis.radii.push_back(std::move(estimate));
+    }
+    return analysis;
+}
+
+} // namespace starcensus::census

@@ -1,0 +1,79 @@
+#pragma once
+// The census by systems: the systems of the cleaned rows (Systems.h), and per radius the fractions of
+// system primaries by class and the multiplicity fraction per primary class, with this-volume and
+// population intervals as Fractions.h has them for objects.
+//
+// Counting: a system primary (the most massive member; a single object is its own primary) is counted
+// by its own membership in each Monte Carlo draw: primaries of systems that straddle a radius count
+// where the primary lies, companions never count. The multiplicity fraction of a class is the share of
+// its primaries that have a resolved companion; "with unresolved candidates" also counts primaries of
+// systems with a member flagged as a likely unresolved binary (RUWE, binary band). An unresolved binary
+// is one object and one system either way: the object counts and the system-primary fractions do not
+// change with the flags.
+//
+// Pairing of the draws: the primaries are ordered resolved multiples first, then the flagged others,
+// then the rest, and drawn three times (all; the first block; the first two blocks) with the same seed.
+// Each star's draws come from its own stream (seed, index), so the three runs draw the same outcomes
+// for the same star and the ratios per draw are exact.
+#include "census/ClassGroups.h"
+#include "census/Fractions.h"
+#include "census/Membership.h"
+#include "census/MonteCarlo.h"
+#include "census/Priors.h"
+#include "census/Random.h"
+#include "census/RowClassification.h"
+#include "census/Systems.h"
+
+#include <span>
+#include <string>
+#include <vector>
+
+namespace starcensus::census {
+
+struct MultiplicityEstimate {
+    std::string name;             // the class group of the primaries
+    TwoIntervals resolved;        // share of the primaries with a resolved companion
+    TwoIntervals with_unresolved; // ... or a member flagged as a likely unresolved binary
+    IntervalSummary primaries;    // primaries of the group within the radius (this volume)
+};
+
+struct SystemRadiusEstimate {
+    double radius_pc = 0.0;
+    IntervalSummary primaries;                      // system primaries within the radius (this volume)
+    std::vector<GroupEstimate> primary_fractions;   // fractions of the system primaries by group
+    MultiplicityEstimate all;                       // every primary
+    std::vector<MultiplicityEstimate> multiplicity; // per group
+};
+
+struct SystemAnalysis {
+    SystemCatalog catalog;
+    std::vector<SystemRadiusEstimate> radii;
+    std::vector<RadiusPriors> primary_priors; // Priors.h fits to the primaries' population deviates
+};
+
+struct SystemCensusInputs {
+    std::span<const photometry::CatalogRow> rows; // cleaned rows
+    const photometry::Classifier* classifier = nullptr;
+    RowClassRules rules;
+    std::vector<double> radii_pc;
+    MembershipSettings membership;
+    DrawSettings draws;
+    std::vector<ClassGroup> groups;
+    SystemSettings systems;
+};
+
+/// The masses that pick each system's primary: classifyRow's locus mass; evolved stars rank first
+/// (in a coeval system the star that left the main sequence was the more massive), unknown ones last.
+std::vector<double> primaryRankingMasses(std::span<const photometry::CatalogRow> rows,
+                                         const photometry::Classifier& classifier, const RowClassRules& rules,
+                                         std::vector<std::uint8_t>* above_binary_band = nullptr);
+
+SystemAnalysis analyseSystems(const SystemCensusInputs& inputs);
+
+/// Multiplicity intervals from paired member counts per draw ([draw]) of multiples and primaries: this
+/// volume, the ratio per draw (draws without primaries skipped); population, per draw
+/// `deviates_per_draw` Beta(m + 1/2, n - m + 1/2) deviates (the Jeffreys posterior of a binomial share).
+TwoIntervals multiplicityIntervals(const std::vector<double>& multiples, const std::vector<double>& primaries,
+                                   int deviates_per_draw, Xoshiro256& random);
+
+} // namespace starcensus::census
