@@ -221,7 +221,8 @@ TEST_CASE("Systems: CARMENES IX multiple systems with Gaia DR3 astrometry for ev
         const auto fields = splitFields(line);
         REQUIRE(fields.size() == header.size());
         Entry entry;
-        entry.system = fields[id_system].empty() || fields[id_system] == "0" ? "single " + fields[id_star] : fields[id_system];
+        entry.system = fields[id_system].empty() || fields[id_system] == "0" ? "single " + fields[id_star]
+                                                                             : fields[id_system];
         entry.dr3 = fields[plx_ref] == "DR3" && fields[pm_ref] == "DR3";
         if (entry.dr3) {
             entry.row.ra_deg = std::stod(fields[ra]);
@@ -291,4 +292,25 @@ TEST_CASE("Systems: CARMENES IX multiple systems with Gaia DR3 astrometry for ev
     std::printf("agreement: %.4f of all systems, %.4f of the multiples\n", agreement, multiple_agreement);
     CHECK(agreement >= 0.90);
     CHECK(multiple_agreement >= 0.90);
+
+    // Order-of-magnitude check: Reyle et al. 2021 (A&A 650, A201, abstract) find a multiplicity frequency of
+    // ~27% within 10 pc. Our systems whose primary has parallax > 100 mas, from these Gaia-visible M-dwarf
+    // systems: resolved only, and with RUWE-flagged members counted as multiples. Within a factor 3.
+    int nearby = 0, nearby_resolved = 0, nearby_with_unresolved = 0;
+    for (const StellarSystem& system : found.systems) {
+        if (rows[system.primary].parallax_mas > 100.0) {
+            ++nearby;
+            nearby_resolved += system.members.size() > 1 ? 1 : 0;
+            nearby_with_unresolved +=
+                system.members.size() > 1 || (system.flags & SystemFlagHighRuwe) != 0 ? 1 : 0;
+        }
+    }
+    const double resolved_share = static_cast<double>(nearby_resolved) / nearby;
+    const double with_unresolved_share = static_cast<double>(nearby_with_unresolved) / nearby;
+    std::printf("within 10 pc: %d systems, multiplicity %.3f resolved, %.3f with RUWE > 1.4 members "
+                "(Reyle et al. 2021: ~0.27)\n",
+                nearby, resolved_share, with_unresolved_share);
+    CHECK(nearby > 50);
+    CHECK(resolved_share > 0.27 / 3.0);
+    CHECK(resolved_share < 0.27 * 3.0);
 }
