@@ -75,6 +75,19 @@ po::options_description censusOptions(CensusSettings& settings) {
         "epoch of the positions of every input without its own --file-epoch (Julian year; Gaia DR3: 2016)");
     add("file-epoch", po::value(&settings.file_epoch_definitions)->composing()->value_name("FILE=YEAR"),
         "epoch of one input file's positions (Julian year), e.g. 2mass.csv=2000 (repeatable)");
+    SystemSettings& systems = settings.systems;
+    add("system-separation-max", number(systems.max_projected_separation_pc, "PC"),
+        "widest projected separation of a resolved pair (pc; wide binaries reach ~1 pc)");
+    add("system-search-angle-max", number(systems.max_search_angle_deg, "DEG"),
+        "cap of the companion search radius on the sky (deg)");
+    add("system-sky-shift", number(systems.sky_shift_deg, "DEG"),
+        "displacement of the shifted skies that measure chance alignments (deg; above the search cap)");
+    add("system-sky-shifts", po::value(&systems.sky_shifts)->default_value(systems.sky_shifts)->value_name("N"),
+        "shifted skies averaged for the chance-alignment probabilities");
+    add("system-chance-max", number(systems.max_chance_probability, "P"),
+        "pairs with a larger chance-alignment probability are not joined into systems");
+    add("system-ruwe", number(systems.unresolved_ruwe, "RUWE"),
+        "objects with a larger RUWE are flagged as likely unresolved binaries");
     return options;
 }
 
@@ -126,6 +139,7 @@ void validate(CensusSettings& settings) {
     requireInRange("match-parallax-sigma", settings.merge.parallax_consistency_sigma, 0.0, 100.0, "",
                    LowerBound::Exclusive);
     requireInRange("catalog-epoch", settings.merge.default_epoch_yr, 1900.0, 2100.0, "yr");
+    validateSystemSettings(settings.systems);
     settings.file_epochs.clear();
     for (const auto& definition : settings.file_epoch_definitions) {
         const auto equals = definition.rfind('=');

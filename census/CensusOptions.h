@@ -8,6 +8,7 @@
 #include "census/MonteCarlo.h"
 #include "census/QualityCuts.h"
 #include "census/RowClassification.h"
+#include "census/Systems.h"
 
 #include <boost/program_options.hpp>
 
@@ -28,6 +29,7 @@ struct CensusSettings {
     QualitySettings quality;
     DrawSettings draws;
     CatalogMergeSettings merge; // file_epochs_yr is filled per run from file_epochs
+    SystemSettings systems;     // threads are taken from draws
 
     // Filled by validate():
     std::vector<std::pair<std::string, double>> file_epochs; // (path as given, Julian year)

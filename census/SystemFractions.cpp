@@ -52,8 +52,8 @@ MultiplicityEstimate multiplicityOf(const ClassGroup& group, std::size_t r, cons
     const std::vector<double> m_flagged = groupCountsByDraw(with_unresolved, r, group);
     MultiplicityEstimate estimate;
     estimate.name = group.name;
-    estimate.resolved = multiplicityIntervals(m_resolved, n, deviates_per_draw, random);
-    estimate.with_unresolved = multiplicityIntervals(m_flagged, n, deviates_per_draw, random);
+    estimate.resolved = multiplicityShare(m_resolved, n, deviates_per_draw, random);
+    estimate.with_unresolved = multiplicityShare(m_flagged, n, deviates_per_draw, random);
     estimate.primaries = summarizeDraws(n);
     return estimate;
 }
@@ -78,8 +78,9 @@ std::vector<double> primaryRankingMasses(std::span<const photometry::CatalogRow>
     return masses;
 }
 
-TwoIntervals multiplicityIntervals(const std::vector<double>& multiples, const std::vector<double>& primaries,
-                                   int deviates_per_draw, Xoshiro256& random) {
+MultiplicityShare multiplicityShare(const std::vector<double>& multiples,
+                                    const std::vector<double>& primaries, int deviates_per_draw,
+                                    Xoshiro256& random) {
     std::vector<double> shares;
     std::vector<double> population;
     for (std::size_t d = 0; d < primaries.size(); ++d) {
@@ -97,8 +98,14 @@ TwoIntervals multiplicityIntervals(const std::vector<double>& multiples, const s
     }
     constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
     const IntervalSummary none{kNaN, kNaN, kNaN, kNaN, kNaN};
-    return {shares.empty() ? none : summarizeDraws(shares),
-            population.empty() ? none : summarizeDraws(population)};
+    MultiplicityShare share;
+    const bool any_primaries = !shares.empty();
+    if (any_primaries) {
+        share.population_beta = fitBetaMoments(population);
+    }
+    share.fraction = {any_primaries ? summarizeDraws(shares) : none,
+                      any_primaries ? summarizeDraws(population) : none};
+    return share;
 }
 
 SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {

@@ -30,11 +30,18 @@
 
 namespace starcensus::census {
 
+/// A multiplicity fraction: its two intervals, and a Beta fitted to the population deviates by the
+/// method of moments (Priors.h) for rate tools (alpha = beta = 0 without primaries).
+struct MultiplicityShare {
+    TwoIntervals fraction;
+    BetaFit population_beta;
+};
+
 struct MultiplicityEstimate {
-    std::string name;             // the class group of the primaries
-    TwoIntervals resolved;        // share of the primaries with a resolved companion
-    TwoIntervals with_unresolved; // ... or a member flagged as a likely unresolved binary
-    IntervalSummary primaries;    // primaries of the group within the radius (this volume)
+    std::string name;                  // the class group of the primaries
+    MultiplicityShare resolved;        // share of the primaries with a resolved companion
+    MultiplicityShare with_unresolved; // ... or a member flagged as a likely unresolved binary
+    IntervalSummary primaries;         // primaries of the group within the radius (this volume)
 };
 
 struct SystemRadiusEstimate {
@@ -70,10 +77,11 @@ std::vector<double> primaryRankingMasses(std::span<const photometry::CatalogRow>
 
 SystemAnalysis analyseSystems(const SystemCensusInputs& inputs);
 
-/// Multiplicity intervals from paired member counts per draw ([draw]) of multiples and primaries: this
+/// A multiplicity share from paired member counts per draw ([draw]) of multiples and primaries: this
 /// volume, the ratio per draw (draws without primaries skipped); population, per draw
 /// `deviates_per_draw` Beta(m + 1/2, n - m + 1/2) deviates (the Jeffreys posterior of a binomial share).
-TwoIntervals multiplicityIntervals(const std::vector<double>& multiples, const std::vector<double>& primaries,
-                                   int deviates_per_draw, Xoshiro256& random);
+MultiplicityShare multiplicityShare(const std::vector<double>& multiples,
+                                    const std::vector<double>& primaries, int deviates_per_draw,
+                                    Xoshiro256& random);
 
 } // namespace starcensus::census

@@ -15,6 +15,7 @@
 #include "reports/Progress.h"
 #include "reports/Provenance.h"
 #include "reports/SampleOutput.h"
+#include "reports/SystemsOutput.h"
 
 #include <chrono>
 #include <ctime>
@@ -243,11 +244,29 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     std::future<void> prior_fits = std::async(std::launch::async, [&] {
         result.priors = census::estimatePriors(census.radii_pc, census.groups, population.get());
     });
-    // sample.fits and the draws tables need only the draws: they are written beside the analyses.
+    // Systems: the companion search and the Monte Carlo of the system primaries (SystemFractions.h).
+    std::shared_future<census::SystemAnalysis> systems = std::async(std::launch::async, [&] {
+                                                             census::SystemCensusInputs inputs;
+                                                             inputs.rows = rows;
+                                                             inputs.classifier = &classifier;
+                                                             inputs.rules = class_rules;
+                                                             inputs.radii_pc = census.radii_pc;
+                                                             inputs.membership = census.membership;
+                                                             inputs.draws = census.draws;
+                                                             inputs.groups = census.groups;
+                                                             inputs.systems = census.systems;
+                                                             inputs.systems.threads = census.draws.threads;
+                                                             return census::analyseSystems(inputs);
+                                                         }).share();
+    // sample.fits and the draws tables need only the draws and the systems: they are written beside the
+    // analyses.
     const std::filesystem::path& directory = settings.output_directory;
     std::filesystem::create_directories(directory);
     std::future<void> draw_tables = std::async(std::launch::async, [&] {
-        writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, class_rules);
+        const census::SystemCatalog& system_catalog = systems.get().catalog;
+        writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, class_rules,
+                         system_catalog);
+        writeSystemsTable(directory / "systems.fits", rows, system_catalog, classifier, class_rules);
         writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
         writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
     });
@@ -279,19 +298,23 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     addCompletenessToFractions(fractions, luminosity);
     addSpectralTypeAgreement(fractions, census::compareSpectralTypes(rows, sample, classifier, class_rules),
                              census.spectral_types);
+    addSystemsToFractions(fractions, systems.get(), census.systems);
+    result.systems = systems.get().catalog.systems.size();
     result.corrected = luminosity.corrected;
     writeJsonFile(directory / "fractions.json", fractions);
     writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
-    writeJsonFile(directory / "priors.json", priorsJson(result.priors));
+    nlohmann::json priors = priorsJson(result.priors);
+    addSystemPriors(priors, systems.get());
+    writeJsonFile(directory / "priors.json", priors);
     const census::HostMeasurements measured_hosts = host_measurements.get();
     if (hosts.enabled) {
         result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
-                                      class_rules, hosts, measured_hosts);
+                                      class_rules, hosts, measured_hosts, systems.get().catalog);
     }
     result.timings.outputs_s = secondsSince(start);
-    std::vector<std::string> outputs = {"sample.fits",       "fractions.json", "fractions.csv",
-                                        "priors.json",       "draws.fits",     "draws.csv",
-                                        "completeness.json", "lumfunc.csv",    "lumfunc_fit.json"};
+    std::vector<std::string> outputs = {
+        "sample.fits", "systems.fits", "fractions.json",    "fractions.csv", "priors.json",
+        "draws.fits",  "draws.csv",    "completeness.json", "lumfunc.csv",   "lumfunc_fit.json"};
     if (hosts.enabled) {
         outputs.push_back("hosts.fits");
     }

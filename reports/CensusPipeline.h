@@ -1,10 +1,10 @@
 #pragma once
 // `starcensus run`: catalogs in, census out. Reads and selects the candidates, applies the quality cuts,
 // computes membership posteriors, runs the Monte Carlo over measurement errors, summarises fractions per
-// radius, fits the host priors and writes sample.fits, fractions.json, fractions.csv, priors.json,
-// draws.fits, draws.csv, hosts.fits, provenance.json and the completeness and luminosity-function files
-// (reports/LuminosityOutput.h) into the output directory. Every file is complete before it appears under
-// its name; nothing is written if any step fails before output.
+// radius, finds the stellar systems, fits the host priors and writes sample.fits, systems.fits,
+// fractions.json, fractions.csv, priors.json, draws.fits, draws.csv, hosts.fits, provenance.json and the
+// completeness and luminosity-function files (reports/LuminosityOutput.h) into the output directory. Every
+// file is complete before it appears under its name; nothing is written if any step fails before output.
 #include "census/CatalogMerge.h"
 #include "census/CensusOptions.h"
 #include "census/CompletenessCorrection.h"
@@ -55,7 +55,8 @@ struct PipelineResult {
     std::vector<census::RadiusEstimate> estimates;
     std::vector<census::CorrectedRadius> corrected; // completeness-corrected counts; empty without a fit
     std::vector<census::RadiusPriors> priors;
-    std::size_t hosts = 0; // rows of hosts.fits
+    std::size_t hosts = 0;   // rows of hosts.fits
+    std::size_t systems = 0; // rows of systems.fits
     std::size_t candidates_after_cuts = 0;
     PipelineTimings timings;
 };

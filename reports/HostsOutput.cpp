@@ -2,6 +2,7 @@
 
 #include "photometry/catalog/FitsTableWriter.h"
 #include "reports/SampleOutput.h"
+#include "reports/SystemsOutput.h"
 
 #include <algorithm>
 #include <cmath>
@@ -69,6 +70,9 @@ std::vector<FitsColumn> hostColumns() {
              0,
              {}},
         });
+    for (auto& column : systemMembershipColumns()) {
+        columns.push_back(std::move(column));
+    }
     return columns;
 }
 
@@ -77,8 +81,8 @@ std::vector<FitsColumn> hostColumns() {
 std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
                            const photometry::Classifier& classifier, const census::RowClassRules& rules,
-                           const census::HostListSettings& settings,
-                           const census::HostMeasurements& measured) {
+                           const census::HostListSettings& settings, const census::HostMeasurements& measured,
+                           const census::SystemCatalog& systems) {
     const std::size_t r = measured.radius_index;
     const std::vector<std::size_t>& hosts = measured.rows;
     const std::vector<census::HostUncertainty>& uncertainties = measured.uncertainties;
@@ -108,6 +112,7 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
             static_cast<float>(tallies.star_classes[hosts[h] * photometry::kClassCount +
                                                     static_cast<std::size_t>(result.stellar_class)]) /
             static_cast<float>(tallies.draws));
+        appendSystemMembership(block, c, systems, hosts[h]);
     }
     writer.append(block);
     writer.finish();

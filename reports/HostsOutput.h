@@ -4,6 +4,7 @@
 // classifier, as in sample.fits), Teff and mass and their uncertainties (census/HostMeasurements.h).
 #include "census/HostMeasurements.h"
 #include "census/MonteCarlo.h"
+#include "census/Systems.h"
 #include "photometry/Classifier.h"
 #include "photometry/catalog/CatalogRow.h"
 
@@ -17,7 +18,7 @@ namespace starcensus::reports {
 std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
                            const photometry::Classifier& classifier, const census::RowClassRules& rules,
-                           const census::HostListSettings& settings,
-                           const census::HostMeasurements& measured);
+                           const census::HostListSettings& settings, const census::HostMeasurements& measured,
+                           const census::SystemCatalog& systems);
 
 } // namespace starcensus::reports

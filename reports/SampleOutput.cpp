@@ -1,5 +1,7 @@
 #include "reports/SampleOutput.h"
 
+#include "reports/SystemsOutput.h"
+
 #include "photometry/catalog/FitsTableWriter.h"
 
 #include <cmath>
@@ -114,6 +116,9 @@ std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
                            0,
                            {}});
     }
+    for (auto& column : systemMembershipColumns()) {
+        columns.push_back(std::move(column));
+    }
     return columns;
 }
 
@@ -168,7 +173,8 @@ std::string spectralTypeColumn(const photometry::Classification& result) {
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                      const photometry::Classifier& classifier, const census::RowClassRules& rules) {
+                      const photometry::Classifier& classifier, const census::RowClassRules& rules,
+                      const census::SystemCatalog& systems) {
     photometry::FitsTableWriter writer(
         path, "SAMPLE", sampleColumns(sample.radii()),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"}});
@@ -209,6 +215,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
                 static_cast<float>(tallies.star_classes[s * photometry::kClassCount + k]) /
                 static_cast<float>(tallies.draws));
         }
+        appendSystemMembership(block, c, systems, s);
         if (block.rowCount() == kBlockRows) {
             writer.append(block);
             block.clear();

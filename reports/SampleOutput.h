@@ -1,9 +1,11 @@
 #pragma once
 // sample.fits: one row per candidate that passed the quality cuts, with the inputs used, the membership
 // probability per radius, absolute magnitude and colours, the exact classification (class, subtype,
-// Teff, mass, flags) and the class probabilities from the Monte Carlo.
+// Teff, mass, flags), the class probabilities from the Monte Carlo and the object's system (id, role,
+// flags; reports/SystemsOutput.h).
 #include "census/MonteCarlo.h"
 #include "census/RowClassification.h"
+#include "census/Systems.h"
 #include "photometry/Classifier.h"
 #include "photometry/catalog/CatalogRow.h"
 #include "photometry/catalog/FitsTableWriter.h"
@@ -29,6 +31,7 @@ std::string radiusLabel(double radius_pc);
 
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
-                      const photometry::Classifier& classifier, const census::RowClassRules& rules);
+                      const photometry::Classifier& classifier, const census::RowClassRules& rules,
+                      const census::SystemCatalog& systems);
 
 } // namespace starcensus::reports

@@ -75,10 +75,13 @@ TEST_CASE("SystemFractions: multiplicity intervals are the Jeffreys Beta posteri
     // sqrt(0.302 * 0.698 / 102) = 0.0455 (exact arithmetic).
     const std::vector<double> multiples(500, 30.0), primaries(500, 100.0);
     Xoshiro256 random(7, 0);
-    const TwoIntervals intervals = multiplicityIntervals(multiples, primaries, 4, random);
+    const MultiplicityShare share = multiplicityShare(multiples, primaries, 4, random);
+    const TwoIntervals& intervals = share.fraction;
     CHECK(intervals.this_volume.median == doctest::Approx(0.3));
     CHECK(intervals.this_volume.lo95 == doctest::Approx(0.3));
     CHECK(intervals.population.median == doctest::Approx(0.3005).epsilon(0.02)); // Beta median ~ mean - skew
+    CHECK(share.population_beta.alpha == doctest::Approx(30.5).epsilon(0.05));   // the posterior's own Beta
+    CHECK(share.population_beta.beta == doctest::Approx(70.5).epsilon(0.05));
     CHECK((intervals.population.hi68 - intervals.population.lo68) / 2.0 ==
           doctest::Approx(0.0455).epsilon(0.05));
 }
@@ -100,7 +103,7 @@ TEST_CASE("SystemFractions: multiplicity population intervals cover the mocks' m
         pooled_primaries += truth.primaries;
         pooled_multiples += truth.multiples;
         const SystemAnalysis analysis = analyseMock(mock, kRadiusPc, 100, static_cast<std::uint64_t>(seed));
-        intervals.push_back(analysis.radii[0].all.resolved.population);
+        intervals.push_back(analysis.radii[0].all.resolved.fraction.population);
         resolved_primaries.push_back(analysis.radii[0].all.primaries.median);
     }
     const double truth = static_cast<double>(pooled_multiples) / static_cast<double>(pooled_primaries);

@@ -7,11 +7,15 @@ Usage: check_census_outputs.py DIRECTORY
 Prints JSON on standard output:
   {"hosts": {"rows": N, "columns": [...], "units": {...}, "min_p_member": x, "hostrad_pc": R},
    "draws": {"rows": N, "columns": [...], "members_equal_class_sums": bool, "fractions_sum_to_one": bool},
-   "priors": {"dirichlet_fraction": x, "group_beta_fraction": x, "gamma_level": x}}
+   "priors": {"dirichlet_fraction": x, "group_beta_fraction": x, "gamma_level": x},
+   "systems": {"rows": N, "columns": [...], "multiple": N, "members_agree": bool, "roles_agree": bool}}
 where the priors entries are the largest differences between the stored Monte Carlo quantiles and the
 fitted distributions: |scipy.stats.beta.ppf(p, alpha_c, a0 - alpha_c) - stored| for the Dirichlet marginals
 (the aggregation property of the Dirichlet), the same for the groups' Betas, and
-|scipy.stats.gamma.cdf(stored, shape, scale=1/rate) - p| for the densities.
+|scipy.stats.gamma.cdf(stored, shape, scale=1/rate) - p| for the densities. For systems.fits against
+sample.fits: members_agree when every system's n_members equals the sample rows with its system_id and its
+member list names those rows' source_ids; roles_agree when each multiple system has one primary (its
+primary_source_id) and singles are the one-member systems.
 """
 import json
 import math
@@ -59,7 +63,33 @@ def main(directory):
                 level = stats.gamma.cdf(entry["density_pc3"][key], gamma["shape"], scale=1.0 / gamma["rate_pc3"])
                 gamma_worst = max(gamma_worst, abs(level - p))
 
+    systems = Table.read(f"{directory}/systems.fits")
+    sample = Table.read(f"{directory}/sample.fits")
+    members_of = {}
+    for source_id, system_id, role in zip(sample["source_id"], sample["system_id"], sample["system_role"]):
+        members_of.setdefault(int(system_id), []).append((str(source_id), str(role).strip()))
+    members_agree = True
+    roles_agree = True
+    for system_id, n_members, primary, members in zip(systems["system_id"], systems["n_members"],
+                                                      systems["primary_source_id"], systems["members"]):
+        rows = members_of.get(int(system_id), [])
+        listed = str(members).split()
+        members_agree &= len(rows) == int(n_members) and sorted(listed) == sorted(r[0] for r in rows)
+        roles = sorted(r[1] for r in rows)
+        if int(n_members) == 1:
+            roles_agree &= roles == ["single"]
+        else:
+            roles_agree &= roles.count("primary") == 1 and dict((r[1], r[0]) for r in rows)["primary"] == str(primary)
+            roles_agree &= listed[0] == str(primary)
+
     print(json.dumps({
+        "systems": {
+            "rows": len(systems),
+            "columns": systems.colnames,
+            "multiple": int(np.sum(np.asarray(systems["n_members"]) > 1)),
+            "members_agree": bool(members_agree),
+            "roles_agree": bool(roles_agree),
+        },
         "hosts": {
             "rows": len(hosts),
             "columns": hosts.colnames,

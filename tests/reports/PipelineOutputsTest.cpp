@@ -20,6 +20,7 @@ namespace {
 /// A mock 8 pc neighbourhood written as a FITS catalog, and pipeline settings for it.
 reports::PipelineSettings mockRun(const std::filesystem::path& directory) {
     census::mock::MockSettings mock_settings;
+    mock_settings.wide_companion_fraction = 0.15; // resolved systems for systems.fits
     mock_settings.radius_max_pc = 8.0;
     const auto mock = census::mock::simulateNeighbourhood(mock_settings, 314);
     census::mock::writeMockCatalog(directory / "mock.fits", mock);
@@ -58,18 +59,25 @@ TEST_CASE(
     CHECK(filesIn(settings.output_directory) ==
           std::vector<std::string>{"completeness.json", "draws.csv", "draws.fits", "fractions.csv",
                                    "fractions.json", "hosts.fits", "lumfunc.csv", "lumfunc_fit.json",
-                                   "priors.json", "provenance.json", "sample.fits"});
+                                   "priors.json", "provenance.json", "sample.fits", "systems.fits"});
     CHECK(log.str().empty());
 
     const auto checked = nlohmann::json::parse(
         runReferencePython("check_census_outputs.py", settings.output_directory.string()));
     // hosts.fits: the columns of README (Outputs), p >= 0.5 within the largest radius.
     const std::vector<std::string> host_columns = {
-        "source_id",      "file_index", "row_index", "ra",         "dec",      "parallax",
-        "parallax_error", "g",          "abs_g",     "bp_rp",      "class",    "spectral_type",
-        "teff",           "teff_error", "mass",      "mass_error", "p_member", "class_probability"};
+        "source_id",      "file_index",  "row_index",   "ra",         "dec",      "parallax",
+        "parallax_error", "g",           "abs_g",       "bp_rp",      "class",    "spectral_type",
+        "teff",           "teff_error",  "mass",        "mass_error", "p_member", "class_probability",
+        "system_id",      "system_role", "system_flags"};
     CHECK(checked["hosts"]["columns"].get<std::vector<std::string>>() == host_columns);
     CHECK(checked["hosts"]["units"]["teff_error"] == "K");
+    // systems.fits against sample.fits, read back with astropy: one row per system, members and roles
+    // consistent with the members' own rows.
+    CHECK(checked["systems"]["rows"] == result.systems);
+    CHECK(checked["systems"]["members_agree"] == true);
+    CHECK(checked["systems"]["roles_agree"] == true);
+    MESSAGE("systems.fits: " << checked["systems"].dump());
     CHECK(checked["hosts"]["units"]["mass"] == "solMass");
     CHECK(checked["hosts"]["hostrad_pc"] == 6.0);
     CHECK(checked["hosts"]["rows"] == result.hosts);
