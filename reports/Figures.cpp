@@ -18,6 +18,7 @@
 #include <optional>
 #include <ostream>
 #include <sstream>
+#include <tuple>
 
 namespace starcensus::reports {
 
@@ -918,12 +919,68 @@ FigureOutput skyMapFigure(const ReportInputs& inputs, const ReportAnalysis& anal
     });
 }
 
+/// Multiplicity per primary class at the largest radius (fractions.json "systems"): resolved companions
+/// and, beside them, with the likely unresolved binaries; nullopt for a run without systems.
+std::optional<FigureOutput> multiplicityFigure(const ReportInputs& inputs,
+                                               const std::filesystem::path& directory) {
+    const auto& radius = inputs.fractions.at("radii").back();
+    if (!radius.contains("systems")) {
+        return std::nullopt;
+    }
+    const auto& multiplicity = radius.at("systems").at("multiplicity");
+    std::vector<std::string> names;
+    for (const auto& [name, entry] : multiplicity.items()) {
+        if (entry.at("primaries").value("median", 0.0) >= 1.0) {
+            names.push_back(name);
+        }
+    }
+    const std::string radius_text = formatNumber(radius.at("radius_pc").get<double>());
+    const std::string caption = "Share of the system primaries of each class (most massive member, within " +
+                                radius_text +
+                                " pc) with a resolved companion (filled), and with a resolved companion or a "
+                                "member flagged as a likely "
+                                "unresolved binary by RUWE or the binary band (open); population intervals, "
+                                "thick bar 68%, thin bar 95%.";
+    PageSize size;
+    size.width = std::max<PLINT>(900, static_cast<PLINT>(70 * names.size() + 300));
+    return renderFigure(directory, "multiplicity", "Multiplicity by primary class", caption, size, [&] {
+        plvpor(0.1, 0.76, 0.2, 0.9);
+        plwind(-0.5, static_cast<double>(std::max<std::size_t>(names.size(), 1)) - 0.5, 0.0, 1.0);
+        plcol0(kBlack);
+        plbox("bc", 0.0, 0, "bcnstv", 0.0, 0);
+        plmtex("l", 4.5, 0.5, 0.5, "multiplicity fraction of primaries");
+        plmtex("t", 1.5, 0.5, 0.5, ("Multiplicity by primary class, " + radius_text + " pc").c_str());
+        const std::pair<const char*, SeriesStyle> series[] = {
+            {"resolved", {kBlue, "●"}}, {"with_unresolved_candidates", {kVermillion, "○"}}};
+        for (std::size_t i = 0; i < names.size(); ++i) {
+            plcol0(kBlack);
+            plmtex("b", 1.5, (static_cast<double>(i) + 0.5) / static_cast<double>(names.size()), 0.5,
+                   names[i].c_str());
+            for (std::size_t k = 0; k < 2; ++k) {
+                const auto& interval = multiplicity.at(names[i]).at(series[k].first).at("population");
+                const PLFLT x[] = {static_cast<double>(i) + (k == 0 ? -0.12 : 0.12)};
+                plcol0(series[k].second.colour);
+                for (const auto& [lo, hi, width] :
+                     {std::tuple{"lo95", "hi95", 1.0}, std::tuple{"lo68", "hi68", 3.0}}) {
+                    PLFLT low[] = {interval.value(lo, kNaN)};
+                    PLFLT high[] = {interval.value(hi, kNaN)};
+                    plwidth(width);
+                    plerry(1, x, low, high);
+                }
+                plwidth(1.0);
+                drawGlyphs({x[0]}, {interval.value("median", kNaN)}, series[k].second, 0.8);
+            }
+        }
+        drawLegend({{"resolved", series[0].second}, {"or flagged", series[1].second}});
+    });
+}
+
 } // namespace
 
 const std::vector<std::string>& reportFigureIds() {
     static const std::vector<std::string> ids = {
-        "cmd",    "luminosity_function", "cumulative_counts", "fractions_by_class", "fractions_vs_radius",
-        "sky_map"};
+        "cmd",     "luminosity_function", "cumulative_counts", "fractions_by_class", "fractions_vs_radius",
+        "sky_map", "multiplicity"};
     return ids;
 }
 
@@ -951,6 +1008,10 @@ std::vector<FigureOutput> drawReportFigures(const ReportInputs& inputs, const Re
     figures.push_back(fractionsVersusRadiusFigure(inputs, directory));
     step("sky map");
     figures.push_back(skyMapFigure(inputs, analysis, directory));
+    if (auto multiplicity = multiplicityFigure(inputs, directory)) {
+        step("multiplicity");
+        figures.push_back(std::move(*multiplicity));
+    }
     return figures;
 }
 

@@ -67,7 +67,7 @@ TEST_CASE("report.html renders in headless Chromium with every figure drawn") {
     const auto report = reports::writeCensusReport(directory);
     const auto figures = embeddedFigures(readFile(report.html));
     REQUIRE(figures.size() == report.figures.size());
-    REQUIRE(figures.size() == 5); // no lumfunc.csv in this run: every figure but the luminosity function
+    REQUIRE(figures.size() == 6); // no lumfunc.csv in this run: every figure but the luminosity function
 
     // 1. Chromium parses the page into the same number of figures, each with its image.
     const auto dom_log = scratch.path() / "dom.html";

@@ -19,6 +19,7 @@ const std::filesystem::path& demoRunDirectory() {
     static const bool written = [] {
         census::mock::MockSettings mock_settings;
         mock_settings.radius_max_pc = 12.0;
+        mock_settings.wide_companion_fraction = 0.15; // systems for the multiplicity figure
         const auto mock = census::mock::simulateNeighbourhood(mock_settings, 3);
         census::mock::writeMockCatalog(scratch.path() / "mock.fits", mock);
         reports::PipelineSettings settings;

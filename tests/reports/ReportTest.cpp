@@ -111,8 +111,8 @@ TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one s
     const auto report = writeCensusReport(directory);
 
     // Without lumfunc.csv the luminosity function is left out, with a note; the rest is always drawn.
-    const std::vector<std::string> expected = {"cmd", "cumulative_counts", "fractions_by_class",
-                                               "fractions_vs_radius", "sky_map"};
+    const std::vector<std::string> expected = {
+        "cmd", "cumulative_counts", "fractions_by_class", "fractions_vs_radius", "sky_map", "multiplicity"};
     CHECK(idsOf(report.figures) == expected);
     CHECK(report.notes.size() == 4); // lumfunc.csv, lumfunc_fit.json, completeness.json, provenance.json
     const std::string html = readFile(report.html);
@@ -159,8 +159,8 @@ TEST_CASE("the report uses lumfunc.csv, lumfunc_fit.json, completeness.json and 
     writeOptionalInputs(directory);
     const auto report = writeCensusReport(directory);
     const std::vector<std::string> expected = {
-        "cmd",    "luminosity_function", "cumulative_counts", "fractions_by_class", "fractions_vs_radius",
-        "sky_map"};
+        "cmd",     "luminosity_function", "cumulative_counts", "fractions_by_class", "fractions_vs_radius",
+        "sky_map", "multiplicity"};
     CHECK(idsOf(report.figures) == expected);
     CHECK(idsOf(report.figures) == reportFigureIds());
     CHECK(report.notes.empty());
