@@ -116,7 +116,7 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         const char* arguments;
         const char* expected; // part of the message
     };
-    const std::array<Case, 12> cases = {{
+    const std::array<Case, 15> cases = {{
         {"run a_directory --out out", "a_directory: is a directory"},
         {"run notes.fits --out a_file", "--out a_file: exists and is not a directory"},
         {"run missing.fits --out out", "missing.fits"},
@@ -129,6 +129,11 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         {"run notes.fits --match-radius -1 --out out", "--match-radius: -1 is outside the allowed range"},
         {"run notes.fits --file-epoch notes.fits --out out", "--file-epoch: 'notes.fits' is not FILE=YEAR"},
         {"run notes.fits --file-epoch notes.fits=J2000 --out out", "--file-epoch: 'notes.fits=J2000' is not"},
+        {"run notes.fits --system-chance-max 2 --out out",
+         "--system-chance-max: 2 is outside the allowed range"},
+        {"run notes.fits --system-sky-shift 3 --out out",
+         "--system-sky-shift: 3 is outside the allowed range"},
+        {"simulate --wide-fraction 1.5 --out mock.fits", "--wide-fraction: 1.5 is outside the allowed range"},
     }};
     for (const auto& test : cases) {
         const Outcome outcome = runStarcensus(test.arguments, dir);
