@@ -1,5 +1,6 @@
 #include "census/CatalogMerge.h"
 
+#include "census/detail/PairSearch.h"
 #include "census/detail/SkyGeometry.h"
 
 #include "photometry/base/Threads.h"
@@ -17,6 +18,7 @@ namespace starcensus::census {
 
 namespace {
 
+using detail::findRoot;
 using photometry::CatalogRow;
 
 using detail::kArcsecPerRadian;
@@ -228,21 +230,10 @@ std::vector<CandidatePair> positionalPairs(const std::vector<CatalogRow>& rows,
             }
         }
     });
-    std::vector<CandidatePair> pairs;
-    for (auto& part : found) {
-        pairs.insert(pairs.end(), part.begin(), part.end());
-    }
+    std::vector<CandidatePair> pairs = detail::joinParts(found);
     std::sort(pairs.begin(), pairs.end()); // nearest first; ties by index: independent of threads
     refused_by_parallax = std::accumulate(refused.begin(), refused.end(), std::int64_t{0});
     return pairs;
-}
-
-std::uint32_t findRoot(std::vector<std::uint32_t>& parent, std::uint32_t i) {
-    while (parent[i] != i) {
-        parent[i] = parent[parent[i]];
-        i = parent[i];
-    }
-    return i;
 }
 
 /// Union of the pairs, nearest first, as long as a group's files stay disjoint: each group's root is its

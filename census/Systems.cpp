@@ -1,5 +1,6 @@
 #include "census/Systems.h"
 
+#include "census/detail/PairSearch.h"
 #include "census/detail/SkyGeometry.h"
 #include "photometry/base/OptionChecks.h"
 #include "photometry/base/Threads.h"
@@ -15,6 +16,7 @@ namespace starcensus::census {
 
 namespace {
 
+using detail::findRoot;
 using detail::kArcsecPerRadian;
 using detail::kRadiansPerDegree;
 using detail::UnitVector;
@@ -176,10 +178,7 @@ std::vector<SystemPair> searchPairs(std::span<const CatalogRow> rows,
             }
         }
     });
-    std::vector<SystemPair> pairs;
-    for (auto& part : found) {
-        pairs.insert(pairs.end(), part.begin(), part.end());
-    }
+    std::vector<SystemPair> pairs = detail::joinParts(found);
     std::sort(pairs.begin(), pairs.end(), [](const SystemPair& x, const SystemPair& y) {
         return std::tie(x.a, x.b) < std::tie(y.a, y.b);
     });
@@ -204,14 +203,6 @@ std::vector<UnitVector> shiftedSky(std::span<const CatalogRow> rows, double shif
         shifted[i] = detail::unitVectorOf(ra_deg, dec_deg);
     }
     return shifted;
-}
-
-std::uint32_t findRoot(std::vector<std::uint32_t>& parent, std::uint32_t i) {
-    while (parent[i] != i) {
-        parent[i] = parent[parent[i]];
-        i = parent[i];
-    }
-    return i;
 }
 
 /// True if row x should be the primary rather than row y: more massive; without masses (or equal),

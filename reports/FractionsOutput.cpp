@@ -9,11 +9,6 @@ namespace starcensus::reports {
 
 namespace {
 
-nlohmann::json twoIntervalsJson(const census::TwoIntervals& intervals) {
-    return {{"this_volume", intervalJson(intervals.this_volume)},
-            {"population", intervalJson(intervals.population)}};
-}
-
 void appendIntervalColumns(std::ostringstream& row, const census::IntervalSummary& interval) {
     row << ',' << interval.median << ',' << interval.lo68 << ',' << interval.hi68 << ',' << interval.lo95
         << ',' << interval.hi95;
@@ -27,6 +22,11 @@ nlohmann::json intervalJson(const census::IntervalSummary& interval) {
             {"hi68", interval.hi68},
             {"lo95", interval.lo95},
             {"hi95", interval.hi95}};
+}
+
+nlohmann::json twoIntervalsJson(const census::TwoIntervals& intervals) {
+    return {{"this_volume", intervalJson(intervals.this_volume)},
+            {"population", intervalJson(intervals.population)}};
 }
 
 nlohmann::json fractionsJson(const std::vector<census::RadiusEstimate>& estimates,

@@ -15,6 +15,8 @@ namespace starcensus::reports {
 inline constexpr const char* kFractionsSchema = "starcensus.fractions/1";
 
 nlohmann::json intervalJson(const census::IntervalSummary& interval);
+/// {"this_volume": intervalJson, "population": intervalJson}.
+nlohmann::json twoIntervalsJson(const census::TwoIntervals& intervals);
 
 nlohmann::json fractionsJson(const std::vector<census::RadiusEstimate>& estimates,
                              const nlohmann::json& provenance);

@@ -15,11 +15,6 @@ using photometry::FitsColumnType;
 // carry their system_id either way).
 constexpr int kMembersWidth = 200;
 
-nlohmann::json twoIntervalsJson(const census::TwoIntervals& intervals) {
-    return {{"this_volume", intervalJson(intervals.this_volume)},
-            {"population", intervalJson(intervals.population)}};
-}
-
 nlohmann::json shareJson(const census::MultiplicityShare& share) {
     nlohmann::json json = twoIntervalsJson(share.fraction);
     json["population_beta"] = {{"alpha", share.population_beta.alpha}, {"beta", share.population_beta.beta}};

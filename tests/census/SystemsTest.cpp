@@ -3,15 +3,14 @@
 #include "census/RowClassification.h"
 #include "census/mock/Neighbourhood.h"
 #include "photometry/base/InputError.h"
+#include "tests/support/ReferenceTable.h"
 
 #include <doctest/doctest.h>
 
 #include <cmath>
 #include <cstdio>
-#include <fstream>
 #include <map>
 #include <set>
-#include <sstream>
 #include <string>
 #include <unordered_map>
 #include <utility>
@@ -171,19 +170,6 @@ TEST_CASE("Systems: resolved pairs of mocks are recovered complete and pure insi
 
 namespace {
 
-std::vector<std::string> splitFields(const std::string& line) {
-    std::vector<std::string> fields;
-    std::string field;
-    std::istringstream stream(line);
-    while (std::getline(stream, field, ',')) {
-        fields.push_back(field);
-    }
-    if (!line.empty() && line.back() == ',') {
-        fields.emplace_back();
-    }
-    return fields;
-}
-
 double numberOr(const std::string& text, double fallback) {
     return text.empty() ? fallback : std::stod(text);
 }
@@ -195,16 +181,8 @@ TEST_CASE("Systems: CARMENES IX multiple systems with Gaia DR3 astrometry for ev
     // per resolved component, ID_system shared by the rows of one system (empty: single); the columns copied
     // to tests/reference/carmenes_ix_multiplicity.csv. Published systems whose every row has DR3 parallax and
     // proper motion; the goal of the issue: ours agree (same members, no others) for >= 90% of them.
-    std::ifstream file(STARCENSUS_SOURCE_DIR "/tests/reference/carmenes_ix_multiplicity.csv");
-    REQUIRE(file);
-    std::string line;
-    std::getline(file, line);
-    const auto header = splitFields(line);
-    const auto column = [&](const std::string& name) {
-        const auto it = std::find(header.begin(), header.end(), name);
-        REQUIRE(it != header.end());
-        return static_cast<std::size_t>(it - header.begin());
-    };
+    const starcensus::testing::ReferenceTable table("carmenes_ix_multiplicity.csv");
+    const auto column = [&](const std::string& name) { return table.column(name); };
     const std::size_t id_star = column("ID_star"), id_system = column("ID_system"), ra = column("ra"),
                       dec = column("dec"), plx = column("parallax"), plx_error = column("parallax_error"),
                       plx_ref = column("parallax_ref"), pmra = column("pmra"), pmdec = column("pmdec"),
@@ -217,9 +195,7 @@ TEST_CASE("Systems: CARMENES IX multiple systems with Gaia DR3 astrometry for ev
         double mass_msun = 0.0;
     };
     std::vector<Entry> entries;
-    while (std::getline(file, line)) {
-        const auto fields = splitFields(line);
-        REQUIRE(fields.size() == header.size());
+    for (const auto& fields : table.rows()) {
         Entry entry;
         entry.system = fields[id_system].empty() || fields[id_system] == "0" ? "single " + fields[id_star]
                                                                              : fields[id_system];

@@ -1,6 +1,7 @@
 #include "photometry/Classifier.h"
 #include "photometry/ClassGrid.h"
 #include "photometry/SpectralType.h"
+#include "tests/support/ReferenceTable.h"
 
 #include <doctest/doctest.h>
 
@@ -18,21 +19,7 @@ using namespace starcensus::photometry;
 namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-/// One CSV line split at commas outside double quotes.
-std::vector<std::string> splitCsv(const std::string& line) {
-    std::vector<std::string> fields(1);
-    bool quoted = false;
-    for (char c : line) {
-        if (c == '"') {
-            quoted = !quoted;
-        } else if (c == ',' && !quoted) {
-            fields.emplace_back();
-        } else {
-            fields.back() += c;
-        }
-    }
-    return fields;
-}
+using starcensus::testing::splitCsv;
 
 double toNumber(const std::string& text) {
     return text.empty() ? kNaN : std::stod(text);
