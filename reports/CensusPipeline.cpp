@@ -63,7 +63,13 @@ nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector
             {"match_parallax_sigma", census.merge.parallax_consistency_sigma},
             {"match_epoch_yr", census.merge.match_epoch_yr},
             {"catalog_epoch_yr", census.merge.default_epoch_yr},
-            {"file_epochs_yr", fileEpochsJson(census.file_epochs)}};
+            {"file_epochs_yr", fileEpochsJson(census.file_epochs)},
+            {"system_separation_max_pc", census.systems.max_projected_separation_pc},
+            {"system_search_angle_max_deg", census.systems.max_search_angle_deg},
+            {"system_sky_shift_deg", census.systems.sky_shift_deg},
+            {"system_sky_shifts", census.systems.sky_shifts},
+            {"system_chance_max", census.systems.max_chance_probability},
+            {"system_ruwe", census.systems.unresolved_ruwe}};
 }
 
 /// The merge counts for provenance.json and fractions.json: totals and, per pair of input files with a
@@ -300,6 +306,9 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                              census.spectral_types);
     addSystemsToFractions(fractions, systems.get(), census.systems);
     result.systems = systems.get().catalog.systems.size();
+    for (const auto& system : systems.get().catalog.systems) {
+        result.multiple_systems += system.members.size() > 1 ? 1 : 0;
+    }
     result.corrected = luminosity.corrected;
     writeJsonFile(directory / "fractions.json", fractions);
     writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
@@ -336,6 +345,8 @@ std::string summarizeRun(const PipelineResult& result) {
          << " objects: " << merges.source_id_merges << " by source_id, " << merges.positional_merges
          << " by position (" << merges.pairs_refused_by_parallax
          << " close pairs kept apart by their parallaxes)\n";
+    text << "  systems: " << result.systems << " (" << result.multiple_systems
+         << " with resolved companions; systems.fits)\n";
     for (const auto& cut : result.cuts) {
         text << "  cut " << cut.name << ": " << cut.rows_affected << " (" << cut.description << ")\n";
     }
