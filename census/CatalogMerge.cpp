@@ -102,6 +102,9 @@ void absorb(CatalogRow& kept, double& kept_epoch_yr, const CatalogRow& other, do
     if (kept.source_id == photometry::kMissingSourceId) {
         kept.source_id = other.source_id;
     }
+    if (std::isnan(kept.literature_components)) {
+        kept.literature_components = other.literature_components;
+    }
 }
 
 bool parallaxesConsistent(const CatalogRow& a, const CatalogRow& b, double sigma) {

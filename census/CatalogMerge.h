@@ -76,7 +76,8 @@ struct MergedCatalog {
 ///   smaller error (a value with an error beats one without; ties and values without errors: the earlier
 ///   row); ra, dec, pmra, pmdec and ruwe belong to one astrometric solution and travel with the
 ///   parallax; the literature spectral type is the earliest parsed one (else the earliest refused);
-///   source_id is the earliest non-missing one; file_index and row_index are the object's first row's.
+///   source_id and the literature component count are the earliest non-missing ones; file_index and row_index
+///   are the object's first row's.
 /// `threads`: as forEachIndex (the neighbour search); the result does not depend on it.
 MergedCatalog mergeCatalogRows(std::vector<photometry::CatalogRow> rows, const CatalogMergeSettings& settings,
                                unsigned threads = 0);

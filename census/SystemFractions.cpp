@@ -18,7 +18,8 @@ struct OrderedPrimaries {
 };
 
 OrderedPrimaries orderPrimaries(std::span<const photometry::CatalogRow> rows, const SystemCatalog& catalog) {
-    constexpr std::uint8_t kUnresolvedFlags = SystemFlagHighRuwe | SystemFlagAboveBinaryBand;
+    constexpr std::uint8_t kUnresolvedFlags =
+        SystemFlagHighRuwe | SystemFlagAboveBinaryBand | SystemFlagLiteratureMultiple;
     std::vector<const photometry::CatalogRow*> blocks[3];
     for (const StellarSystem& system : catalog.systems) {
         const int block = system.members.size() > 1 ? 0 : (system.flags & kUnresolvedFlags) != 0 ? 1 : 2;

@@ -7,7 +7,8 @@
 // by its own membership in each Monte Carlo draw: primaries of systems that straddle a radius count
 // where the primary lies, companions never count. The multiplicity fraction of a class is the share of
 // its primaries that have a resolved companion; "with unresolved candidates" also counts primaries of
-// systems with a member flagged as a likely unresolved binary (RUWE, binary band). An unresolved binary
+// systems with a member flagged as a likely unresolved binary (RUWE, binary band, a literature
+// multiplicity column counting more components than were resolved). An unresolved binary
 // is one object and one system either way: the object counts and the system-primary fractions do not
 // change with the flags.
 //

@@ -326,6 +326,9 @@ SystemCatalog findSystems(std::span<const CatalogRow> rows, std::span<const doub
             return angleFromPrimary(x) < angleFromPrimary(y);
         });
         for (const std::uint32_t member : system.members) {
+            if (rows[member].literature_components > static_cast<double>(system.members.size())) {
+                result.flags[member] |= SystemFlagLiteratureMultiple;
+            }
             const double angle_rad = angleFromPrimary(member);
             const double separation_au =
                 angle_rad * 1000.0 / pairParallaxMas(rows[system.primary], rows[member]) * kAuPerPc;

@@ -68,6 +68,10 @@ enum SystemFlag : std::uint8_t {
     SystemFlagHighRuwe = 1u << 0,        // RUWE above unresolved_ruwe: likely an unresolved binary
     SystemFlagAboveBinaryBand = 1u << 1, // the classifier's binary band: likely an unresolved binary
     SystemFlagChanceRejected = 1u << 2,  // has a candidate pair refused for its chance probability
+    // The catalogue's multiplicity column (CatalogRow::literature_components) counts more components in
+    // the object's system than the system found here has members: likely an unresolved (or unseen)
+    // companion.
+    SystemFlagLiteratureMultiple = 1u << 3,
 };
 
 /// A candidate pair of rows (indices into the input; a < b).

@@ -56,7 +56,7 @@ std::vector<photometry::FitsColumn> systemMembershipColumns() {
          "",
          "meta.code",
          "bits: 1 RUWE above the limit, 2 above the binary band (likely unresolved), 4 a pair refused as a "
-         "chance alignment",
+         "chance alignment, 8 literature components above the members",
          0,
          {}},
     };
@@ -114,7 +114,7 @@ void writeSystemsTable(const std::filesystem::path& path, std::span<const photom
          FitsColumnType::UInt8,
          "",
          "meta.code",
-         "union of the members' system_flags (1 RUWE, 2 binary band, 4 chance pair refused)",
+         "union of the members' system_flags (1 RUWE, 2 binary band, 4 chance pair refused, 8 literature)",
          0,
          {}},
     };

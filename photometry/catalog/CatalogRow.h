@@ -47,6 +47,9 @@ struct CatalogRow {
     double v_error_mag = kMissing;
     double w1_error_mag = kMissing;
     double w2_error_mag = kMissing;
+    // Components of the object's system in the catalogue's multiplicity column (components field; 1
+    // single, 2 double, ...; dimensionless), NaN without one.
+    double literature_components = kMissing;
     // The catalogue's spectral type (spectral_type field), parsed at read time by parseLiteratureType()
     // (photometry/SpectralType.h) so the row stays plain numbers. literature_code is the parser's spectral
     // code (O0 = 0 ... M0 = 60 ... Y0 = 90; dimensionless), NaN when absent or refused, without a subtype

@@ -63,6 +63,7 @@ double CatalogRow::*rowMember(CatalogField field) {
         &CatalogRow::v_error_mag,
         &CatalogRow::w1_error_mag,
         &CatalogRow::w2_error_mag,
+        &CatalogRow::literature_components,
         nullptr,
     };
     return members[static_cast<std::size_t>(field)];

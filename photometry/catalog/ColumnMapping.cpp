@@ -81,6 +81,7 @@ std::span<const UnitChoice> unitChoices(CatalogField field) {
     switch (field) {
     case CatalogField::SourceId:
     case CatalogField::Ruwe:
+    case CatalogField::Components:
     case CatalogField::SpectralType:
         return kDimensionlessUnits;
     case CatalogField::Ra:
@@ -150,6 +151,8 @@ const FieldRule& fieldRule(CatalogField field) {
          {"w1sigmpro", "e_w1mag", "w1_mag_error", "w1mag_error", "w1sigmpro_pm", "w1err"}},
         {{"stat.error;phot.mag;em.ir.4-8um"},
          {"w2sigmpro", "e_w2mag", "w2_mag_error", "w2mag_error", "w2sigmpro_pm", "w2err"}},
+        // Literature multiplicity: components of the system (by name only; no UCD1+ word says it).
+        {{}, {"n_components", "ncomp", "n_comp", "components"}},
         // Spectral type: UCD1+ src.spType. Names that say which spectrum
         // the type came from (SpT_opt, SpT_IR) are left out on purpose: tables often give both, and two
         // name matches would make every such table ambiguous; pick one with --column spectral_type=.
@@ -361,6 +364,7 @@ std::string_view canonicalUnit(CatalogField field) {
     switch (field) {
     case CatalogField::SourceId:
     case CatalogField::Ruwe:
+    case CatalogField::Components:
     case CatalogField::SpectralType:
         return "";
     case CatalogField::Ra:

@@ -50,42 +50,22 @@ enum class CatalogField : std::uint8_t {
     VError,
     W1Error,
     W2Error,
+    // Number of components of the object's system in a literature multiplicity column (1 single, 2
+    // double, ...; dimensionless): census/Systems.h flags objects whose system has more than it resolves.
+    Components,
     // MK spectral type as text ("M5.5V", "L0: INT-G", "DA7.8"): the only text field; the readers parse it
     // into CatalogRow's literature_* members.
     SpectralType,
 };
 
-inline constexpr std::size_t kCatalogFieldCount = 29;
+inline constexpr std::size_t kCatalogFieldCount = 30;
 /// The logical names used by --column and --unit, in CatalogField order.
-inline constexpr std::array<std::string_view, kCatalogFieldCount> kCatalogFieldNames = {"source_id",
-                                                                                        "ra",
-                                                                                        "dec",
-                                                                                        "parallax",
-                                                                                        "parallax_error",
-                                                                                        "pmra",
-                                                                                        "pmdec",
-                                                                                        "g",
-                                                                                        "bp",
-                                                                                        "rp",
-                                                                                        "g_error",
-                                                                                        "bp_error",
-                                                                                        "rp_error",
-                                                                                        "j",
-                                                                                        "h",
-                                                                                        "ks",
-                                                                                        "ruwe",
-                                                                                        "j_error",
-                                                                                        "h_error",
-                                                                                        "ks_error",
-                                                                                        "b",
-                                                                                        "v",
-                                                                                        "w1",
-                                                                                        "w2",
-                                                                                        "b_error",
-                                                                                        "v_error",
-                                                                                        "w1_error",
-                                                                                        "w2_error",
-                                                                                        "spectral_type"};
+inline constexpr std::array<std::string_view, kCatalogFieldCount> kCatalogFieldNames = {
+    "source_id",  "ra",           "dec",  "parallax", "parallax_error", "pmra",     "pmdec",
+    "g",          "bp",           "rp",   "g_error",  "bp_error",       "rp_error", "j",
+    "h",          "ks",           "ruwe", "j_error",  "h_error",        "ks_error", "b",
+    "v",          "w1",           "w2",   "b_error",  "v_error",        "w1_error", "w2_error",
+    "components", "spectral_type"};
 
 constexpr std::string_view fieldName(CatalogField field) {
     return kCatalogFieldNames[static_cast<std::size_t>(field)];

@@ -3,12 +3,15 @@
 #include "census/RowClassification.h"
 #include "census/mock/Neighbourhood.h"
 #include "photometry/base/InputError.h"
+#include "photometry/catalog/CatalogScan.h"
 #include "tests/support/ReferenceTable.h"
 
 #include <doctest/doctest.h>
 
 #include <cmath>
 #include <cstdio>
+#include <filesystem>
+#include <fstream>
 #include <map>
 #include <set>
 #include <string>
@@ -289,4 +292,28 @@ TEST_CASE("Systems: CARMENES IX multiple systems with Gaia DR3 astrometry for ev
     CHECK(nearby > 50);
     CHECK(resolved_share > 0.27 / 3.0);
     CHECK(resolved_share < 0.27 * 3.0);
+}
+
+TEST_CASE(
+    "Systems: a literature multiplicity column (components) flags systems with fewer resolved members") {
+    // A CSV with the components column by name: the reader maps it (photometry/catalog/ColumnMapping.h),
+    // and findSystems flags a single whose catalogue counts two components, not one that counts one.
+    const auto path = std::filesystem::temp_directory_path() / "starcensus-systems-components.csv";
+    {
+        std::ofstream csv(path);
+        csv << "source_id,ra,dec,parallax,parallax_error,pmra,pmdec,phot_g_mean_mag,n_components\n"
+               "1,10.0,20.0,100.0,0.05,300.0,-200.0,12.0,2\n"
+               "2,50.0,-20.0,80.0,0.05,100.0,50.0,13.0,1\n";
+    }
+    starcensus::photometry::ScanSettings settings;
+    const auto scan = starcensus::photometry::scanCatalogs({path.string()}, settings);
+    std::filesystem::remove(path);
+    REQUIRE(scan.candidates.size() == 2);
+    CHECK(scan.candidates[0].literature_components == 2.0);
+    const std::vector<double> masses = {0.5, 0.5};
+    const std::vector<std::uint8_t> band = {0, 0};
+    const SystemCatalog found = findSystems(scan.candidates, masses, band, SystemSettings{});
+    CHECK((found.flags[0] & SystemFlagLiteratureMultiple) != 0);
+    CHECK((found.flags[1] & SystemFlagLiteratureMultiple) == 0);
+    CHECK(found.roles[0] == SystemRole::Single);
 }

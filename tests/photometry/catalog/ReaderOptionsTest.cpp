@@ -72,7 +72,7 @@ TEST_CASE("bad reader option values are rejected with the value and the allowed 
           "option --column 'parallax': expected NAME=COLUMN with NAME one of: source_id ra dec parallax "
           "parallax_error pmra pmdec g bp rp g_error bp_error rp_error j h ks ruwe j_error h_error ks_error "
           "b v "
-          "w1 w2 b_error v_error w1_error w2_error spectral_type");
+          "w1 w2 b_error v_error w1_error w2_error components spectral_type");
     CHECK(parseError({"--column", "plx=PLX"})
               .starts_with("option --column 'plx=PLX': unknown field 'plx' (fields: "));
     CHECK(parseError({"--column", "g=A", "--column", "G=B"}) ==
