@@ -418,8 +418,11 @@ void MockGenerator::addResolvedCompanions(const Component& first, const Placemen
             position[i] = first_placement.distance_pc * direction[i] + separation_pc * along[i];
         }
         const double distance_pc = std::sqrt(dot(position, position));
-        const double cos_angle = std::clamp(dot(position, direction) / distance_pc, -1.0, 1.0);
-        const double angle_rad = std::acos(cos_angle);
+        // atan2(|p x d|, p . d): accurate for the tightest orbits, where acos(p . d / |p|) rounds to 0.
+        const std::array<double, 3> cross = {position[1] * direction[2] - position[2] * direction[1],
+                                             position[2] * direction[0] - position[0] * direction[2],
+                                             position[0] * direction[1] - position[1] * direction[0]};
+        const double angle_rad = std::atan2(std::sqrt(dot(cross, cross)), dot(position, direction));
         const double angle_arcsec = angle_rad / kRadiansPerDegree * 3600.0;
         if (angle_arcsec < s.resolution_limit_arcsec) {
             continue; // would not be resolved: not added

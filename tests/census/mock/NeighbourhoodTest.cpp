@@ -9,6 +9,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <unordered_map>
 
 using namespace starcensus::census;
 using namespace starcensus::census::mock;
@@ -295,4 +296,45 @@ TEST_CASE("bad mock settings are rejected naming the option, value and range") {
     bad = {};
     bad.bp_rp_loss_start_g_mag = 21.5;
     CHECK_THROWS_AS(simulateNeighbourhood(bad, 1), starcensus::InputError);
+}
+
+TEST_CASE("resolved companions: separations follow the Raghavan et al. 2010 period distribution") {
+    // Raghavan et al. 2010 (ApJS 190, 1, Sect. 7.1; from memory): log10 P/day ~ N(5.03, 2.28). Through
+    // Kepler's third law log10 a/au = (2/3)(log10 P/day - log10 365.25) + (1/3) log10 M/Msun, and for an
+    // isotropic orientation at a random phase of a circular orbit the projected separation is a sin i with
+    // E[log10 sin i] = (ln 2 - 1) / ln 10 = -0.1333 (exact integral over cos i uniform). Every system draws
+    // one companion and nothing is hidden by the resolution limit, so the mean of log10 s - (1/3) log10 M
+    // over the companions is (2/3)(5.03 - 2.5626) - 0.1333 = 1.5115, less what the redraw of orbits wider
+    // than 1 pc (log10 a = 5.31, z ~ 2.48 for M ~ 0.5 Msun) trims from the top of N(1.645, 1.52):
+    // sigma phi(z) / Phi(z) = 1.52 x 0.0184 / 0.993 = 0.028, so 1.483; standard error (2/3) 2.28 / sqrt(n).
+    MockSettings settings;
+    settings.radius_max_pc = 30.0;
+    settings.wide_companion_fraction = 1.0;
+    settings.wide_triple_share = 0.0;
+    settings.resolution_limit_arcsec = 0.0;
+    const MockResult result = simulateNeighbourhood(settings, 99);
+    std::unordered_map<std::int64_t, const ObjectTruth*> first;
+    for (const ObjectTruth& t : result.truth) {
+        if (!t.resolved_companion) {
+            first[t.source_id] = &t;
+        }
+    }
+    double sum = 0.0;
+    std::size_t companions = 0;
+    for (const ObjectTruth& t : result.truth) {
+        if (t.resolved_companion) {
+            const ObjectTruth& primary = *first.at(t.system_source_id);
+            CHECK(std::abs(t.distance_pc - primary.distance_pc) < 1.0); // within 1 pc in space
+            sum += std::log10(t.separation_au) - std::log10(primary.mass_msun + t.mass_msun) / 3.0;
+            ++companions;
+        }
+    }
+    REQUIRE(companions > 1000);
+    // Most systems get one; the rest drew a compact remnant as companion, or none survived the redraws.
+    CHECK(static_cast<double>(companions) > 0.9 * static_cast<double>(first.size()));
+    const double mean = sum / static_cast<double>(companions);
+    const double standard_error = 2.0 / 3.0 * 2.28 / std::sqrt(static_cast<double>(companions));
+    MESSAGE("companions " << companions << ", mean log10 s - log10(M) / 3 = " << mean << " +- "
+                          << standard_error);
+    CHECK(std::abs(mean - 1.483) < 4.0 * standard_error + 0.01);
 }
