@@ -10,6 +10,7 @@
 #include <cmath>
 #include <numeric>
 #include <optional>
+#include <stdexcept>
 #include <tuple>
 
 namespace starcensus::census {
@@ -239,6 +240,9 @@ void validateSystemSettings(const SystemSettings& s) {
 SystemCatalog findSystems(std::span<const CatalogRow> rows, std::span<const double> masses_msun,
                           std::span<const std::uint8_t> above_binary_band, const SystemSettings& s) {
     validateSystemSettings(s);
+    if (masses_msun.size() != rows.size() || above_binary_band.size() != rows.size()) {
+        throw std::invalid_argument("findSystems: one mass and one binary-band flag per row");
+    }
     const auto n = static_cast<std::uint32_t>(rows.size());
     std::vector<std::uint32_t> usable_rows;
     std::vector<UnitVector> positions(n);
