@@ -203,6 +203,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     CommonOptions common;
     std::string output_directory = "out/demo";
     census::mock::MockRequest request; // a 25 pc sphere at 0.1 systems per pc^3 (MockSettings defaults)
+    request.settings.wide_companion_fraction = 0.15; // with resolved companions, for the systems outputs
     census::CensusSettings census_settings;
     census_settings.radii_text = "5,10,15,20";
     census_settings.group_definitions = {"FGK=F,G,K", "earlyM=M0-M4", "lateM=M5-M9"};
