@@ -7,12 +7,13 @@
 // A pair is a candidate when, with d = 1000 / parallax of the pair (its error-weighted mean parallax):
 //  - projected separation s = theta d <= max_projected_separation_pc;
 //  - |plx_a - plx_b| <= k sqrt(err_a^2 + err_b^2) + plx^2 (r s) / 1000, the second term allowing a radial
-//    separation r times the projected one (El-Badry, Rix & Heintz 2021, MNRAS 506, 2269, Sect. 2, use the
+//    separation r times the projected one (El-Badry, Rix & Heintz 2021, MNRAS 506, 2269, use the
 //    first term alone; the second matters only for wide pairs within a few tens of pc);
 //  - |mu_a - mu_b| <= the escape speed at s from total mass max_total_mass_msun, as a proper motion,
 //    + the perspective difference of one space velocity over the angle theta, + k sigma_dmu (El-Badry et
-//    al. 2021, Eq. 2, with the circular speed of 5 Msun; the escape speed is the bound-orbit limit).
-// Chance alignments (Lepine & Bongiorno 2007, AJ 133, 889, Sect. 3; El-Badry et al. 2021, Sect. 3): the
+//    al. 2021, with the circular speed of 5 Msun; the escape speed is the bound-orbit limit).
+// The El-Badry et al. details here (their tests, 5 Msun, R < 0.1, the 1 pc limit) are from memory.
+// Chance alignments (Lepine & Bongiorno 2007, AJ 133, 889; El-Badry et al. 2021; from memory): the
 // same search between the catalogue and copies of it displaced by sky_shift_deg, where no pair is
 // physical, counts the chance pairs per cell of (log projected separation, dmu / allowed dmu); a pair's
 // chance-alignment probability is the mean shifted count over the real count in its cell (at most 1).
@@ -28,7 +29,7 @@ namespace starcensus::census {
 
 struct SystemSettings {
     // Largest projected separation of a resolved pair (pc). Wide binaries reach ~1 pc; El-Badry et al.
-    // 2021 search to 1 pc, where the Galactic tide unbinds them (Jiang & Tremaine 2010, from memory).
+    // 2021 search to 1 pc, where the Galactic tide unbinds them (Jiang & Tremaine 2010; both from memory).
     double max_projected_separation_pc = 1.0;
     // Cap of the search radius (deg), so the few objects within ~10 pc do not query a whole hemisphere.
     // At 5 deg a 1 pc pair is found beyond 11.5 pc; closer, pairs up to 5 deg (Proxima: 2.2 deg).
@@ -48,7 +49,7 @@ struct SystemSettings {
     // (common practice, no source).
     bool inflate_errors_by_ruwe = true;
     // Errors of both rows of a pair closer than close_pair_arcsec are multiplied by close_pair_error_factor:
-    // Gaia DR3 underestimates them for close pairs (El-Badry et al. 2021, Sect. 2, loosen the parallax
+    // Gaia DR3 underestimates them for close pairs (El-Badry et al. 2021 loosen the parallax
     // test below ~4 arcsec; from memory).
     double close_pair_arcsec = 4.0;
     double close_pair_error_factor = 2.0;
