@@ -82,7 +82,8 @@ po::options_description censusOptions(CensusSettings& settings) {
         "cap of the companion search radius on the sky (deg)");
     add("system-sky-shift", number(systems.sky_shift_deg, "DEG"),
         "displacement of the shifted skies that measure chance alignments (deg; above the search cap)");
-    add("system-sky-shifts", po::value(&systems.sky_shifts)->default_value(systems.sky_shifts)->value_name("N"),
+    add("system-sky-shifts",
+        po::value(&systems.sky_shifts)->default_value(systems.sky_shifts)->value_name("N"),
         "shifted skies averaged for the chance-alignment probabilities");
     add("system-chance-max", number(systems.max_chance_probability, "P"),
         "pairs with a larger chance-alignment probability are not joined into systems");
