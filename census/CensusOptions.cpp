@@ -5,7 +5,6 @@
 
 #include <algorithm>
 #include <charconv>
-#include <cstdio>
 
 namespace starcensus::census {
 
@@ -15,9 +14,7 @@ namespace {
 
 /// A numeric option whose default is shown as written (%g), not with binary round-off.
 po::typed_value<double>* number(double& target, const char* value_name) {
-    char text[32];
-    std::snprintf(text, sizeof text, "%g", target);
-    return po::value(&target)->default_value(target, text)->value_name(value_name);
+    return po::value(&target)->default_value(target, numberText(target))->value_name(value_name);
 }
 
 } // namespace
@@ -123,7 +120,7 @@ void validate(CensusSettings& settings) {
                          "' is not one of constant-density, flat-parallax");
     }
     requireThat(settings.membership.outer_distance_pc > settings.radii_pc.back(), "prior-outer-distance",
-                "must exceed the largest radius (" + std::to_string(settings.radii_pc.back()) + " pc)");
+                "must exceed the largest radius (" + numberText(settings.radii_pc.back()) + " pc)");
     requireInRange("parallax-zero-point", settings.membership.parallax_zero_point_mas, -1.0, 1.0, "mas");
     requireInRange("parallax-error-scale", settings.membership.parallax_error_inflation, 0.1, 10.0, "");
     requireInRange("max-ruwe", settings.quality.max_ruwe, 0.0, 100.0, "");

@@ -4,11 +4,11 @@
 #include "census/Random.h"
 #include "census/detail/FastNormal.h"
 #include "photometry/base/InputError.h"
+#include "photometry/base/OptionChecks.h"
 #include "photometry/base/Threads.h"
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <optional>
 #include <string>
 
@@ -138,9 +138,7 @@ std::size_t hostRadiusIndex(const HostListSettings& settings, const std::vector<
     }
     const auto found = std::find(radii_pc.begin(), radii_pc.end(), settings.radius_pc);
     if (found == radii_pc.end()) {
-        char text[32];
-        std::snprintf(text, sizeof text, "%g", settings.radius_pc);
-        throw InputError(std::string("--hosts-radius: ") + text +
+        throw InputError("--hosts-radius: " + numberText(settings.radius_pc) +
                          " pc is not one of the census radii (--radius)");
     }
     return static_cast<std::size_t>(found - radii_pc.begin());

@@ -6,6 +6,7 @@
 #include "photometry/base/AtomicOutput.h"
 #include "photometry/base/InputError.h"
 #include "photometry/base/InputPaths.h"
+#include "photometry/base/OptionChecks.h"
 #include "photometry/base/Progress.h"
 #include "reports/DrawsOutput.h"
 #include "reports/FractionsOutput.h"
@@ -185,7 +186,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     if (scan.candidates.empty()) {
         throw InputError("no candidates: none of the " + std::to_string(scan.totals.rows_read) + " rows in " +
                          std::to_string(paths.size()) + " input file(s) can lie within " +
-                         std::to_string(census.radii_pc.back()) + " pc");
+                         numberText(census.radii_pc.back()) + " pc");
     }
     // One row per object before anything counts them: overlapping catalogues, or one file under two
     // names, would otherwise count a star twice.

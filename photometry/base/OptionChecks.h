@@ -4,10 +4,19 @@
 #include "photometry/base/InputError.h"
 
 #include <cmath>
+#include <cstdio>
 #include <sstream>
 #include <string>
 
 namespace starcensus {
+
+/// A number for a message or a help text as printf's %g writes it: "10", "0.5", "1e+06", not
+/// std::to_string's "10.000000".
+inline std::string numberText(double value) {
+    char text[32];
+    std::snprintf(text, sizeof text, "%g", value);
+    return text;
+}
 
 enum class LowerBound { Inclusive, Exclusive };
 

@@ -23,6 +23,7 @@
 #include <iomanip>
 #include <iostream>
 #include <sstream>
+#include <typeinfo>
 
 namespace starcensus::cli {
 
@@ -44,20 +45,46 @@ po::options_description commonOptions(CommonOptions& common) {
     return options;
 }
 
+/// Boost.Program_options reads "-1" into an unsigned option as 2^64 - 1 (its lexical_cast wraps): a minus
+/// sign before the value of an unsigned option (--seed, --draws, --threads ...) is refused here instead.
+void refuseNegativeUnsigned(const po::parsed_options& parsed, const po::variables_map& values) {
+    for (const auto& option : parsed.options) {
+        const auto stored = values.find(option.string_key);
+        if (stored == values.end()) {
+            continue;
+        }
+        const std::type_info& type = stored->second.value().type();
+        if (type != typeid(unsigned) && type != typeid(unsigned long) && type != typeid(unsigned long long)) {
+            continue;
+        }
+        for (const auto& token : option.value) {
+            const auto first = token.find_first_not_of(" \t");
+            if (first != std::string::npos && token[first] == '-') {
+                throw InputError("--" + option.string_key + " " + token + ": must be a non-negative integer");
+            }
+        }
+    }
+}
+
 /// Parses command line (and config file) into `values`; true if --help was asked for (and printed).
 bool parseOptions(const std::string& command, const std::vector<std::string>& arguments,
                   const po::options_description& options,
                   const po::positional_options_description& positional, const CommonOptions& common,
                   po::variables_map& values) {
     try {
-        po::store(po::command_line_parser(arguments).options(options).positional(positional).run(), values);
+        const auto command_line =
+            po::command_line_parser(arguments).options(options).positional(positional).run();
+        po::store(command_line, values);
+        refuseNegativeUnsigned(command_line, values);
         if (values.count("config") != 0) {
             const auto path = values["config"].as<std::string>();
             std::ifstream config(path);
             if (!config) {
                 throw InputError("--config: cannot read " + path);
             }
-            po::store(po::parse_config_file(config, options), values);
+            const auto from_file = po::parse_config_file(config, options);
+            po::store(from_file, values);
+            refuseNegativeUnsigned(from_file, values);
         }
         po::notify(values);
     } catch (const po::error& error) {

@@ -3,9 +3,8 @@
 // outputs).
 #include "reports/cli/Commands.h"
 
-#include "photometry/base/InputError.h"
+#include "reports/cli/ExitStatus.h"
 
-#include <exception>
 #include <iostream>
 #include <string>
 #include <vector>
@@ -30,37 +29,34 @@ int main(int argc, char** argv) {
     const std::vector<std::string> arguments(argv + 1, argv + argc);
     if (arguments.empty() || arguments[0] == "--help" || arguments[0] == "-h" || arguments[0] == "help") {
         std::cout << kUsage;
-        return arguments.empty() ? 2 : 0;
+        return arguments.empty() ? starcensus::cli::kExitUserError : 0;
     }
     if (arguments[0] == "--version") {
         std::cout << "starcensus " << STARCENSUS_VERSION << '\n';
         return 0;
     }
     const std::vector<std::string> rest(arguments.begin() + 1, arguments.end());
-    try {
-        const std::string& command = arguments[0];
-        if (command == "run") {
-            return starcensus::cli::runCommand(rest);
-        }
-        if (command == "simulate") {
-            return starcensus::cli::simulateCommand(rest);
-        }
-        if (command == "inspect") {
-            return starcensus::cli::inspectCommand(rest);
-        }
-        if (command == "demo") {
-            return starcensus::cli::demoCommand(rest);
-        }
-        if (command == "report") {
-            return starcensus::cli::reportCommand(rest);
-        }
-        std::cerr << "starcensus: error: unknown command '" << command << "'\n" << kUsage;
-        return 2;
-    } catch (const starcensus::InputError& error) {
-        std::cerr << "starcensus: error: " << error.what() << '\n';
-        return 2;
-    } catch (const std::exception& error) {
-        std::cerr << "starcensus: internal error: " << error.what() << '\n';
-        return 1;
-    }
+    return starcensus::cli::exitStatusOf(
+        [&] {
+            const std::string& command = arguments[0];
+            if (command == "run") {
+                return starcensus::cli::runCommand(rest);
+            }
+            if (command == "simulate") {
+                return starcensus::cli::simulateCommand(rest);
+            }
+            if (command == "inspect") {
+                return starcensus::cli::inspectCommand(rest);
+            }
+            if (command == "demo") {
+                return starcensus::cli::demoCommand(rest);
+            }
+            if (command == "report") {
+                return starcensus::cli::reportCommand(rest);
+            }
+            std::cerr << "starcensus: error: unknown command '" << command
+                      << "' (starcensus --help lists the commands)\n";
+            return starcensus::cli::kExitUserError;
+        },
+        std::cerr);
 }

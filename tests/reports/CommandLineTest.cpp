@@ -111,12 +111,16 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         not_fits << "this is not a FITS file\n";
         std::ofstream plain_file(dir / "a_file");
         std::filesystem::create_directory(dir / "a_directory");
+        std::ofstream far_star(dir / "far.csv"); // one star at 1 kpc: no candidate within 10 pc
+        far_star << "ra,dec,parallax,parallax_error,g_mag\n10,20,1.0,0.1,12\n";
+        std::ofstream negative_seed(dir / "negative_seed.ini");
+        negative_seed << "seed = -1\n";
     }
     struct Case {
         const char* arguments;
         const char* expected; // part of the message
     };
-    const std::array<Case, 15> cases = {{
+    const std::array<Case, 24> cases = {{
         {"run a_directory --out out", "a_directory: is a directory"},
         {"run notes.fits --out a_file", "--out a_file: exists and is not a directory"},
         {"run missing.fits --out out", "missing.fits"},
@@ -134,6 +138,17 @@ TEST_CASE("bad input stops the run with one line naming the culprit and writes n
         {"run notes.fits --system-sky-shift 3 --out out",
          "--system-sky-shift: 3 is outside the allowed range"},
         {"simulate --wide-fraction 1.5 --out mock.fits", "--wide-fraction: 1.5 is outside the allowed range"},
+        // Unsigned options: Boost would wrap "-1" to 2^64 - 1.
+        {"run notes.fits --seed -1 --out out", "--seed -1: must be a non-negative integer"},
+        {"run notes.fits --config negative_seed.ini --out out", "--seed -1: must be a non-negative integer"},
+        {"run notes.fits --seed=-7 --out out", "--seed -7: must be a non-negative integer"},
+        {"simulate --seed -3 --out out/mock.fits", "--seed -3: must be a non-negative integer"},
+        // Numbers in messages as written ("10 pc", not "10.000000 pc").
+        {"run far.csv --radius 5,10 --out out", "can lie within 10 pc"},
+        {"run notes.fits --radius 5,20 --prior-outer-distance 15 --out out", "largest radius (20 pc)"},
+        {"run notes.fits --radius 5,10 --hosts-radius 7.5 --out out", "--hosts-radius: 7.5 pc is not one of"},
+        {"nonsense", "unknown command 'nonsense'"},
+        {"run notes.fits --config missing.ini --out out", "--config: cannot read missing.ini"},
     }};
     for (const auto& test : cases) {
         const Outcome outcome = runStarcensus(test.arguments, dir);
