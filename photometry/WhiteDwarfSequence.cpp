@@ -262,9 +262,10 @@ WhiteDwarfBoundary::WhiteDwarfBoundary(const DwarfLocus& locus, const WhiteDwarf
         coolingSequenceInColour(white_dwarfs, settings.log_g, WhiteDwarfAtmosphere::Hydrogen),
         coolingSequenceInColour(white_dwarfs, settings.log_g, WhiteDwarfAtmosphere::Helium)};
     const auto [locus_blue, locus_red] = locus.invertibleRange(LocusQuantity::BpRpMag);
-    const auto locusAbsG = [&](double bp_rp_mag) {
+    // Copies of the bindings: clang before 16 cannot capture structured bindings.
+    const auto locusAbsG = [&, blue = locus_blue, red = locus_red](double bp_rp_mag) {
         return locus.valueAtCode(LocusQuantity::AbsGMag,
-                                 locus.codeFromBpRp(std::clamp(bp_rp_mag, locus_blue, locus_red)));
+                                 locus.codeFromBpRp(std::clamp(bp_rp_mag, blue, red)));
     };
     double last_offset_mag = kNaN; // boundary minus locus at the reddest colour with a cooling model
     const auto steps = static_cast<std::size_t>(
