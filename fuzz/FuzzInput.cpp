@@ -1,0 +1,21 @@
+#include "fuzz/FuzzInput.h"
+
+#include <fstream>
+#include <unistd.h>
+
+namespace starcensus::fuzz {
+
+std::string writeFuzzInput(const std::uint8_t* data, std::size_t size, const std::string& suffix) {
+    static const std::filesystem::path directory = [] {
+        auto path =
+            std::filesystem::temp_directory_path() / ("starcensus-fuzz-" + std::to_string(::getpid()));
+        std::filesystem::create_directories(path);
+        return path;
+    }();
+    const auto path = directory / ("input" + suffix);
+    std::ofstream out(path, std::ios::binary | std::ios::trunc);
+    out.write(reinterpret_cast<const char*>(data), static_cast<std::streamsize>(size));
+    return path.string();
+}
+
+} // namespace starcensus::fuzz
