@@ -9,13 +9,18 @@
 
 #include <algorithm>
 #include <array>
+#include <csignal>
 #include <cstdio>
+#include <fcntl.h>
 #include <filesystem>
 #include <fstream>
+#include <map>
+#include <regex>
 #include <span>
 #include <sstream>
 #include <string>
 #include <sys/wait.h>
+#include <unistd.h>
 #include <vector>
 
 namespace {
@@ -533,4 +538,155 @@ TEST_CASE("a table without Gaia G runs: the Kirkpatrick et al. 2019 Y dwarfs fro
     CHECK(check.at("median_abs_subtype_difference").get<double>() <= 0.5);
     CHECK(radius.at("classes").at("Y").at("count").at("this_volume").at("median").get<double>() >= 17.0);
     CHECK(std::filesystem::is_regular_file(dir / "y" / "report.html"));
+}
+
+namespace {
+
+/// Every regular file under `directory` (relative path -> bytes).
+std::map<std::string, std::string> filesUnder(const std::filesystem::path& directory) {
+    std::map<std::string, std::string> files;
+    for (const auto& entry : std::filesystem::recursive_directory_iterator(directory)) {
+        if (entry.is_regular_file()) {
+            std::ifstream stream(entry.path(), std::ios::binary);
+            files[std::filesystem::relative(entry.path(), directory).string()] = {
+                (std::istreambuf_iterator<char>(stream)), std::istreambuf_iterator<char>()};
+        }
+    }
+    return files;
+}
+
+/// provenance.json without the fields that differ between runs by design: when it was written, how long
+/// each stage took, and the command's options as given (--threads, --out).
+std::string provenanceWithoutRunFields(const std::string& text) {
+    auto provenance = nlohmann::json::parse(text);
+    provenance.erase("created_utc");
+    provenance.erase("timings_s");
+    provenance.erase("command_options");
+    return provenance.dump(1);
+}
+
+/// An output with the fields that differ between runs by design masked: provenance.json's (and
+/// report.html's table of it) creation time, stage timings and options as given (--threads, --seed, --out),
+/// and the creation date cairo writes into every PDF figure.
+std::string withoutRunFields(const std::string& name, const std::string& bytes) {
+    if (name == "provenance.json") {
+        return provenanceWithoutRunFields(bytes);
+    }
+    static const std::regex pdf_date(R"(/CreationDate \(D:[0-9Z+'-]*\))");
+    static const std::regex html_row(
+        R"(<tr><td><code>(created_utc|timings_s|command_options)</code></td><td>[^\n]*</td></tr>)");
+    if (name.ends_with(".pdf")) {
+        return std::regex_replace(bytes, pdf_date, "/CreationDate ()");
+    }
+    if (name.ends_with(".html")) {
+        return std::regex_replace(bytes, html_row, "<tr><td><code>$1</code></td></tr>");
+    }
+    return bytes;
+}
+
+/// Starts the executable in `directory` (stdout and stderr to /dev/null); returns its process id.
+pid_t startStarcensus(const std::vector<std::string>& arguments, const std::filesystem::path& directory) {
+    std::vector<std::string> argv_text = {STARCENSUS_EXECUTABLE};
+    argv_text.insert(argv_text.end(), arguments.begin(), arguments.end());
+    std::vector<char*> argv;
+    for (auto& argument : argv_text) {
+        argv.push_back(argument.data());
+    }
+    argv.push_back(nullptr);
+    const pid_t child = ::fork();
+    if (child == 0) {
+        const int null_device = ::open("/dev/null", O_WRONLY);
+        if (::chdir(directory.c_str()) != 0 || null_device < 0) {
+            ::_exit(127);
+        }
+        ::dup2(null_device, STDOUT_FILENO);
+        ::dup2(null_device, STDERR_FILENO);
+        ::execv(argv[0], argv.data());
+        ::_exit(127);
+    }
+    return child;
+}
+
+} // namespace
+
+TEST_CASE("determinism: every output byte for byte the same with 1, 2 and 4 threads and when repeated") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-threads");
+    const auto& dir = scratch.path();
+    REQUIRE(runStarcensus("simulate --out mock.fits --truth truth.json --radius-max 12 --seed 5", dir)
+                .exit_code == 0);
+    // Each run writes to "out" (paths in the outputs are then the same) and is moved aside afterwards.
+    std::vector<std::map<std::string, std::string>> runs;
+    for (const char* threads : {"1", "2", "4", "4"}) {
+        REQUIRE(runStarcensus(
+                    std::string("run mock.fits --radius 5,10 --draws 100 --seed 9 --out out --threads ") +
+                        threads,
+                    dir)
+                    .exit_code == 0);
+        runs.push_back(filesUnder(dir / "out"));
+        std::filesystem::remove_all(dir / "out");
+    }
+    const auto& reference = runs.front();
+    REQUIRE(reference.count("provenance.json") == 1);
+    CHECK(reference.count("report.html") == 1);
+    CHECK(reference.size() > 10);
+    for (std::size_t run = 1; run < runs.size(); ++run) {
+        CAPTURE(run);
+        REQUIRE(runs[run].size() == reference.size());
+        for (const auto& [name, bytes] : reference) {
+            CAPTURE(name);
+            REQUIRE(runs[run].count(name) == 1);
+            CHECK(withoutRunFields(name, runs[run].at(name)) == withoutRunFields(name, bytes));
+        }
+    }
+}
+
+TEST_CASE("interruption: SIGINT, SIGTERM or SIGKILL at any point leaves only complete files under their "
+          "final names, and the previous run's outputs intact") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-interrupt");
+    const auto& dir = scratch.path();
+    REQUIRE(runStarcensus("simulate --out mock.fits --truth truth.json --radius-max 12 --seed 5", dir)
+                .exit_code == 0);
+    const std::string options = "run mock.fits --radius 5,10 --draws 100 --out out --seed ";
+    // The complete outputs of both seeds, each made in "out" (paths inside are then the same).
+    REQUIRE(runStarcensus(options + "2", dir).exit_code == 0);
+    const auto second = filesUnder(dir / "out");
+    std::filesystem::remove_all(dir / "out");
+    REQUIRE(runStarcensus(options + "1", dir).exit_code == 0);
+    const auto first = filesUnder(dir / "out");
+    REQUIRE(first.size() == second.size());
+    CHECK(first.at("fractions.json") != second.at("fractions.json"));
+
+    // A run with seed 2 over the seed-1 outputs, stopped at points from the start to past the end of the
+    // scan, the draws and the outputs (a complete run here takes ~0.3-1 s, longer under sanitizers).
+    int interrupted = 0;
+    for (const int signal : {SIGINT, SIGTERM, SIGKILL}) {
+        for (const int delay_ms : {5, 60, 150, 300, 600}) {
+            CAPTURE(signal);
+            CAPTURE(delay_ms);
+            const pid_t child = startStarcensus(
+                {"run", "mock.fits", "--radius", "5,10", "--draws", "100", "--out", "out", "--seed", "2"},
+                dir);
+            REQUIRE(child > 0);
+            ::usleep(static_cast<useconds_t>(delay_ms) * 1000);
+            ::kill(child, signal);
+            int status = 0;
+            REQUIRE(::waitpid(child, &status, 0) == child);
+            interrupted += WIFSIGNALED(status) ? 1 : 0;
+            const auto now = filesUnder(dir / "out");
+            for (const auto& [name, bytes] : first) {
+                CAPTURE(name);
+                REQUIRE(now.count(name) == 1); // nothing of the previous run lost
+                const std::string found = withoutRunFields(name, now.at(name));
+                const bool previous = found == withoutRunFields(name, bytes);
+                const bool complete_new = found == withoutRunFields(name, second.at(name));
+                CHECK((previous || complete_new));
+            }
+            for (const auto& [name, bytes] : now) {
+                // Only temporaries (".partial-", left by a signal that ends the process) are extra.
+                CHECK((first.count(name) == 1 || name.find(".partial-") != std::string::npos));
+            }
+        }
+    }
+    MESSAGE(interrupted << " of 15 runs ended by the signal before they finished");
+    CHECK(interrupted >= 6);
 }
