@@ -4,6 +4,8 @@
 #include "photometry/base/InputError.h"
 #include "photometry/base/Threads.h"
 
+#include <csetjmp>
+#include <csignal>
 #include <fcntl.h>
 #include <fitsio.h>
 #include <sys/mman.h>
@@ -503,6 +505,43 @@ class RowWindow {
     std::size_t length_ = 0;
 };
 
+/// A file truncated by another program while a window of it is mapped raises SIGBUS at the first touch of
+/// a page beyond its new end (mmap(2), "SIGBUS"). While a thread decodes a window (scanRows), the handler
+/// jumps back there and the scan throws InputError naming the file; a SIGBUS anywhere else gets the
+/// previous disposition (by default the end of the process) when the fault recurs.
+thread_local sigjmp_buf* t_bus_error_target = nullptr;
+struct sigaction g_previous_bus_action {};
+
+void onBusError(int signal, siginfo_t* info, void* context) {
+    if (t_bus_error_target != nullptr) {
+        siglongjmp(*t_bus_error_target, 1);
+    }
+    // Not a mapped window: restore what was there; returning re-executes the faulting access under it.
+    ::sigaction(SIGBUS, &g_previous_bus_action, nullptr);
+    if ((g_previous_bus_action.sa_flags & SA_SIGINFO) != 0 && g_previous_bus_action.sa_sigaction != nullptr) {
+        g_previous_bus_action.sa_sigaction(signal, info, context);
+    }
+}
+
+void installBusErrorHandler() {
+    static const bool installed = [] {
+        struct sigaction action {};
+        action.sa_sigaction = onBusError;
+        action.sa_flags = SA_SIGINFO;
+        sigemptyset(&action.sa_mask);
+        return ::sigaction(SIGBUS, &action, &g_previous_bus_action) == 0;
+    }();
+    (void)installed;
+}
+
+/// Clears the thread's jump target when a window's decode ends, however it ends.
+struct BusErrorTargetReset {
+    BusErrorTargetReset() = default;
+    BusErrorTargetReset(const BusErrorTargetReset&) = delete;
+    BusErrorTargetReset& operator=(const BusErrorTargetReset&) = delete;
+    ~BusErrorTargetReset() { t_bus_error_target = nullptr; }
+};
+
 /// The `count` raw rows starting at 0-based row `first`, through the thread's window; throws InputError
 /// on failure.
 using ReadRows = std::function<const unsigned char*(RowWindow& window, LONGLONG first, LONGLONG count)>;
@@ -841,6 +880,7 @@ std::int64_t decodeColumn(const MappedField& field, const unsigned char* raw, st
 
 /// What every thread scanning a file shares: the table layout and the decoding plan.
 struct TablePlan {
+    std::string where; // "path [HDU n NAME]", for errors
     std::uint32_t file_index = 0;
     std::size_t row_bytes = 0;
     std::vector<MappedField> fields;
@@ -850,6 +890,12 @@ struct TablePlan {
     std::size_t parallax_error = 0;
 };
 
+// GCC's -Wclobbered flags block_first across the sigsetjmp below: it changes only after the window's
+// decode, never between the jump point and a jump, so the value restored by the jump is the right one.
+#if defined(__GNUC__) && !defined(__clang__)
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wclobbered"
+#endif
 /// Scans rows [first, first + count) of the table into `result` (whose report holds the mapping),
 /// reading `rows_per_block` rows at a time through `read`.
 void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGLONG count,
@@ -863,9 +909,20 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
     std::vector<double> parallax_error(slice_rows);
     auto& null_counts = result.report.null_counts;
     const bool all_row_nulls = settings.null_counts_over_all_rows;
+    installBusErrorHandler();
     for (LONGLONG block_first = first; block_first < first + count; block_first += rows_per_block) {
         const auto rows = static_cast<std::size_t>(std::min(rows_per_block, first + count - block_first));
         const unsigned char* raw = read(window, block_first, static_cast<LONGLONG>(rows));
+        // A SIGBUS while the window is decoded lands here. The jump skips only what the decode makes:
+        // trivially destructible rows and counters (a fault inside a spectral-type parse would leak its
+        // strings, on the way to the error).
+        sigjmp_buf bus_error;
+        const BusErrorTargetReset reset_target; // made before the jump point, so never skipped by it
+        if (sigsetjmp(bus_error, 1) != 0) {
+            throw InputError(plan.where + ": " + rowsLabel(block_first, static_cast<LONGLONG>(rows)) +
+                             ": the file was truncated while it was read (SIGBUS on its memory map)");
+        }
+        t_bus_error_target = &bus_error;
         for (std::size_t slice_first = 0; slice_first < rows; slice_first += slice_rows) {
             const std::size_t slice = std::min(slice_rows, rows - slice_first);
             const unsigned char* slice_raw = raw + slice_first * row_bytes;
@@ -928,6 +985,10 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
         }
     }
 }
+
+#if defined(__GNUC__) && !defined(__clang__)
+#pragma GCC diagnostic pop
+#endif
 
 [[noreturn]] void throwTruncated(const std::string& where, LONGLONG first, LONGLONG count,
                                  const std::string& detail) {
@@ -1131,6 +1192,7 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
         descriptions, MappingRequest{settings.user_columns, settings.user_units, false}, file.where());
 
     TablePlan plan;
+    plan.where = file.where();
     plan.file_index = file_index;
     for (const auto& resolved : report.mapping.fields) {
         if (!resolved) {

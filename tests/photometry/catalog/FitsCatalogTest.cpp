@@ -8,6 +8,7 @@
 
 #include <doctest/doctest.h>
 
+#include <atomic>
 #include <chrono>
 #include <cmath>
 #include <filesystem>
@@ -586,4 +587,36 @@ TEST_CASE("spectral_type needs a character column and numeric fields refuse one"
     settings.user_columns = {{"g", "spt"}};
     CHECK(inputErrorOf([&] { scanCatalogs({path}, settings); }) ==
           path + " [HDU 1 GAIA]: column SPT (g) is not numeric (TFORM 6A)");
+}
+
+TEST_CASE("a file truncated by another program while its mapped windows are scanned: one InputError, no "
+          "SIGBUS") {
+    const ScratchDirectory directory("starcensus-reader-shrink");
+    const std::string path = directory.file("shrinking.fits");
+    writeFitsTable(path, mixedTypeTable(400000, 11));
+    ScanSettings settings = everything();
+    settings.min_parallax_mas = 1e9; // nothing kept: the scan only decodes and counts
+    settings.threads = 1;
+    settings.block_bytes = std::size_t{16} << 10; // hundreds of windows
+    starcensus::ProgressCounters progress;
+    settings.progress = &progress;
+    // As soon as the first window is done, cut the file in half: the windows beyond the new end raise
+    // SIGBUS at their first touch.
+    const auto half_bytes = std::filesystem::file_size(path) / 2;
+    std::atomic<bool> scan_over{false};
+    std::thread truncate([&] {
+        while (progress.items_done.load() == 0 && !scan_over.load()) {
+            std::this_thread::yield();
+        }
+        std::filesystem::resize_file(path, half_bytes);
+    });
+    const std::string error = inputErrorOf([&] { scanCatalogs({path}, settings); });
+    scan_over = true;
+    truncate.join();
+    CHECK(error.starts_with(path + " [HDU 1 MIXED]: cannot read rows "));
+    CHECK(error.ends_with(": the file was truncated while it was read (SIGBUS on its memory map)"));
+    // Scanned again, the short file is refused before any window is mapped.
+    const std::string again = inputErrorOf([&] { scanCatalogs({path}, settings); });
+    CHECK(again.starts_with(path + " [HDU 1 MIXED]: cannot read rows "));
+    CHECK(again.find("(truncated file?): the table needs ") != std::string::npos);
 }
