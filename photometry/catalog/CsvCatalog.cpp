@@ -95,8 +95,8 @@ class TextLines {
                 }
                 break;
             }
-            line += buffer_.data();
-            if (line.back() == '\n') {
+            line += buffer_.data(); // a NUL byte (not text) ends what gzgets's C string shows of a line
+            if (!line.empty() && line.back() == '\n') {
                 line.pop_back();
                 break;
             }

@@ -288,13 +288,17 @@ class VoTableStream {
         } else if (name == "VALUES" && in_field_) {
             fields_.back().null_text = attribute(attributes, "null");
         } else if (name == "DATA") {
-            saw_fields_ = true;
-            on_fields_(fields_);
+            deliverFields();
         } else if (name == "TABLEDATA") {
+            deliverFields(); // also without a DATA parent: the rows need the fields first
             data_ = Data::TableData;
         } else if (name == "BINARY" || name == "BINARY2") {
+            deliverFields();
             data_ = name == "BINARY" ? Data::Binary : Data::Binary2;
         } else if (name == "STREAM") {
+            if (data_ != Data::Binary && data_ != Data::Binary2) {
+                throw InputError(path_ + ": VOTable STREAM outside BINARY or BINARY2");
+            }
             const std::string encoding = attribute(attributes, "encoding");
             if (encoding != "base64" || !attribute(attributes, "href").empty()) {
                 throw InputError(path_ + ": VOTable STREAM with encoding '" + encoding +
@@ -304,7 +308,8 @@ class VoTableStream {
         } else if (name == "TR" && data_ == Data::TableData) {
             cells_.assign(fields_.size(), Cell{});
             column_ = 0;
-        } else if (name == "TD" && data_ == Data::TableData) {
+            in_row_ = true;
+        } else if (name == "TD" && in_row_) {
             in_cell_ = true;
             text_.clear();
         }
@@ -319,13 +324,14 @@ class VoTableStream {
             in_field_ = false;
         } else if (name == "TD" && in_cell_) {
             in_cell_ = false;
-            if (column_ >= fields_.size()) {
+            if (column_ >= cells_.size()) {
                 throw InputError(path_ + ": VOTable row " + std::to_string(rows_ + 1) +
                                  " has more cells than the " + std::to_string(fields_.size()) + " FIELDs");
             }
             cells_[column_] = cellFromText(fields_[column_], text_);
             ++column_;
-        } else if (name == "TR" && data_ == Data::TableData) {
+        } else if (name == "TR" && in_row_) {
+            in_row_ = false;
             if (column_ != fields_.size()) {
                 throw InputError(path_ + ": VOTable row " + std::to_string(rows_ + 1) + " has " +
                                  std::to_string(column_) + " cells, the table " +
@@ -341,10 +347,17 @@ class VoTableStream {
             }
         } else if (name == "TABLE") {
             done_ = true; // only the first table is read
-            if (!saw_fields_) {
-                saw_fields_ = !fields_.empty();
-                on_fields_(fields_);
+            if (!fields_.empty()) {
+                deliverFields(); // a table without rows
             }
+        }
+    }
+
+    /// Hands the fields to the callback once, before the first row.
+    void deliverFields() {
+        if (!saw_fields_) {
+            saw_fields_ = true;
+            on_fields_(fields_);
         }
     }
 
@@ -508,8 +521,8 @@ class VoTableStream {
     std::size_t column_ = 0;
     std::int64_t rows_ = 0;
     Data data_ = Data::None;
-    bool in_table_ = false, in_field_ = false, in_cell_ = false, in_stream_ = false, done_ = false,
-         saw_fields_ = false;
+    bool in_table_ = false, in_field_ = false, in_row_ = false, in_cell_ = false, in_stream_ = false,
+         done_ = false, saw_fields_ = false;
 };
 
 } // namespace
@@ -564,13 +577,15 @@ FileScanResult scanVoTableFile(const std::string& path, std::uint32_t file_index
                                   cell.kind == Cell::Kind::Text ? cell.text : std::to_string(cell.number));
                 continue;
             }
-            if (cell.kind == Cell::Kind::Text) {
+            const bool is_id = column->field == CatalogField::SourceId;
+            if (cell.kind == Cell::Kind::Text || (is_id && !cell.integer)) {
                 throw InputError(path + " row " + std::to_string(row.row_index + 1) + ": column " +
                                  column->column_name + " (" + std::string(fieldName(column->field)) + "): '" +
-                                 cell.text + "' is not a number");
+                                 (cell.kind == Cell::Kind::Text ? cell.text : std::to_string(cell.number)) +
+                                 "' is not " + (is_id ? "an integer" : "a number"));
             }
-            if (column->field == CatalogField::SourceId) {
-                row.source_id = cell.integer.value_or(static_cast<std::int64_t>(cell.number));
+            if (is_id) {
+                row.source_id = *cell.integer;
                 continue;
             }
             row.*rowMember(column->field) = canonicalValue(*column, cell.number);
