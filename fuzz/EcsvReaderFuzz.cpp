@@ -2,23 +2,13 @@
 // delimiters, nulls, numbers, column mapping) on arbitrary bytes after a fixed signature line, so every
 // input reaches the YAML parser. Any outcome but a result or an InputError is a failure.
 #include "fuzz/FuzzInput.h"
-#include "photometry/base/InputError.h"
-#include "photometry/catalog/CatalogScan.h"
 
 #include <string>
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
     std::string text = "# %ECSV 1.0\n";
     text.append(reinterpret_cast<const char*>(data), size);
-    const std::string path = starcensus::fuzz::writeFuzzInput(
-        reinterpret_cast<const std::uint8_t*>(text.data()), text.size(), ".ecsv");
-    starcensus::photometry::ScanSettings settings;
-    settings.threads = 1;
-    settings.null_counts_over_all_rows = true;
-    settings.min_parallax_mas = 10.0;
-    try {
-        starcensus::photometry::scanCatalogs({path}, settings);
-    } catch (const starcensus::InputError&) {
-    }
+    starcensus::fuzz::scanExpectingInputErrors(starcensus::fuzz::writeFuzzInput(
+        reinterpret_cast<const std::uint8_t*>(text.data()), text.size(), ".ecsv"));
     return 0;
 }

@@ -1,5 +1,8 @@
 #include "fuzz/FuzzInput.h"
 
+#include "photometry/base/InputError.h"
+#include "photometry/catalog/CatalogScan.h"
+
 #include <fstream>
 #include <unistd.h>
 
@@ -16,6 +19,18 @@ std::string writeFuzzInput(const std::uint8_t* data, std::size_t size, const std
     std::ofstream out(path, std::ios::binary | std::ios::trunc);
     out.write(reinterpret_cast<const char*>(data), static_cast<std::streamsize>(size));
     return path.string();
+}
+
+void scanExpectingInputErrors(const std::string& path, const std::map<std::string, std::string>& user_units) {
+    photometry::ScanSettings settings;
+    settings.threads = 1;
+    settings.null_counts_over_all_rows = true;
+    settings.min_parallax_mas = 10.0;
+    settings.user_units = user_units;
+    try {
+        photometry::scanCatalogs({path}, settings);
+    } catch (const InputError&) {
+    }
 }
 
 } // namespace starcensus::fuzz
