@@ -201,10 +201,7 @@ void Classifier::classifyWithColour(Classification& result) const {
         setDwarf(result, std::min(code_from_g, colour_code));
         return;
     }
-    const double evolved_offset_mag = colour > settings_.evolved_red_bp_rp_mag
-                                          ? settings_.evolved_offset_red_mag
-                                          : settings_.evolved_offset_mag;
-    if (result.locus_offset_mag < -evolved_offset_mag) {
+    if (result.locus_offset_mag < -evolvedOffsetMag(colour > settings_.evolved_red_bp_rp_mag)) {
         result.stellar_class = StellarClass::Evolved;
         result.spectral_code = colour_code; // the dwarf type of the same colour
         return;
@@ -224,12 +221,19 @@ void Classifier::classifyWithColour(Classification& result) const {
     if (colour > red_end) {
         result.flags |= bit(ClassificationFlag::OutsideLocus);
     }
-    if (result.locus_offset_mag < -settings_.binary_band_mag) {
-        result.flags |= bit(ClassificationFlag::AboveBinaryBand);
-    } else if (result.locus_offset_mag > settings_.subluminous_offset_mag) {
-        result.flags |= bit(ClassificationFlag::BelowLocus);
-    }
+    result.flags |= mainSequenceOffsetFlags(result.locus_offset_mag);
     setDwarf(result, code);
+}
+
+double Classifier::evolvedOffsetMag(bool redder_than_evolved_red_colour) const {
+    return redder_than_evolved_red_colour ? settings_.evolved_offset_red_mag : settings_.evolved_offset_mag;
+}
+
+std::uint16_t Classifier::mainSequenceOffsetFlags(double offset_mag) const {
+    if (offset_mag < -settings_.binary_band_mag) {
+        return bit(ClassificationFlag::AboveBinaryBand);
+    }
+    return offset_mag > settings_.subluminous_offset_mag ? bit(ClassificationFlag::BelowLocus) : 0;
 }
 
 bool Classifier::classifyWithJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const {
@@ -248,18 +252,12 @@ bool Classifier::classifyWithJohnsonColour(Classification& result, double abs_v_
         result.flags |= bit(ClassificationFlag::OutsideLocus); // bluer than O9V and not a white dwarf
         return true;
     }
-    const double evolved_offset_mag =
-        v_ks_mag > evolved_red_v_ks_mag_ ? settings_.evolved_offset_red_mag : settings_.evolved_offset_mag;
-    if (offset_mag < -evolved_offset_mag) {
+    if (offset_mag < -evolvedOffsetMag(v_ks_mag > evolved_red_v_ks_mag_)) {
         result.stellar_class = StellarClass::Evolved;
         result.spectral_code = colour_code; // the dwarf type of the same colour
         return true;
     }
-    if (offset_mag < -settings_.binary_band_mag) {
-        result.flags |= bit(ClassificationFlag::AboveBinaryBand);
-    } else if (offset_mag > settings_.subluminous_offset_mag) {
-        result.flags |= bit(ClassificationFlag::BelowLocus);
-    }
+    result.flags |= mainSequenceOffsetFlags(offset_mag);
     setDwarf(result, colour_code);
     return true;
 }

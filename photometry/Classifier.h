@@ -198,6 +198,11 @@ class Classifier {
     /// The infrared paths' verdict: the nearest point's code if within nir_max_distance (scaled units).
     bool acceptInfraredMatch(Classification& result, double distance_squared, double spectral_code) const;
     void setDwarf(Classification& result, double spectral_code) const;
+    /// How far above the locus (mag) an object of this colour must lie to be evolved: the BP-RP and the
+    /// V-Ks paths share the rule, redder than about M0V the larger threshold (ClassifierSettings).
+    double evolvedOffsetMag(bool redder_than_evolved_red_colour) const;
+    /// AboveBinaryBand or BelowLocus for a main-sequence object's offset from the locus (mag), or 0.
+    std::uint16_t mainSequenceOffsetFlags(double offset_mag) const;
 
     const DwarfLocus& locus_;
     const WhiteDwarfSequence& white_dwarfs_;
