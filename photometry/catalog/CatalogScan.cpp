@@ -9,6 +9,8 @@
 
 #include <fitsio.h>
 
+#include <algorithm>
+#include <cctype>
 #include <cmath>
 
 namespace starcensus::photometry {
@@ -32,6 +34,17 @@ ScanCounts& ScanCounts::operator+=(const ScanCounts& other) {
 }
 
 namespace detail {
+
+bool endsWithAnyIgnoringCase(std::string_view path, std::initializer_list<std::string_view> suffixes) {
+    return std::any_of(suffixes.begin(), suffixes.end(), [&](std::string_view suffix) {
+        return path.size() >= suffix.size() &&
+               std::equal(suffix.begin(), suffix.end(),
+                          path.end() - static_cast<std::ptrdiff_t>(suffix.size()), [](char a, char b) {
+                              return std::tolower(static_cast<unsigned char>(a)) ==
+                                     std::tolower(static_cast<unsigned char>(b));
+                          });
+    });
+}
 
 double CatalogRow::*rowMember(CatalogField field) {
     static constexpr std::array<double CatalogRow::*, kCatalogFieldCount> members = {

@@ -5,6 +5,7 @@
 
 #include <charconv>
 #include <cmath>
+#include <initializer_list>
 #include <optional>
 #include <string_view>
 #include <vector>
@@ -31,6 +32,9 @@ std::optional<T> parseCellNumber(std::string_view text) {
     }
     return value;
 }
+
+/// True when `path` ends in one of `suffixes`, compared without case (how readers claim their files).
+bool endsWithAnyIgnoringCase(std::string_view path, std::initializer_list<std::string_view> suffixes);
 
 /// The CatalogRow member of a floating-point field; nullptr for source_id and spectral_type.
 double CatalogRow::*rowMember(CatalogField field);

@@ -200,15 +200,7 @@ class CsvLines {
 } // namespace
 
 bool isCsvPath(const std::string& path) {
-    std::string lower = path;
-    std::transform(lower.begin(), lower.end(), lower.begin(),
-                   [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-    for (const char* suffix : {".csv", ".csv.gz", ".ecsv", ".ecsv.gz"}) {
-        if (lower.ends_with(suffix)) {
-            return true;
-        }
-    }
-    return false;
+    return detail::endsWithAnyIgnoringCase(path, {".csv", ".csv.gz", ".ecsv", ".ecsv.gz"});
 }
 
 namespace detail {

@@ -528,15 +528,8 @@ class VoTableStream {
 } // namespace
 
 bool isVoTablePath(const std::string& path) {
-    std::string lower = path;
-    std::transform(lower.begin(), lower.end(), lower.begin(),
-                   [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
-    for (const char* suffix : {".vot", ".votable", ".xml", ".vot.gz", ".votable.gz", ".xml.gz"}) {
-        if (lower.ends_with(suffix)) {
-            return true;
-        }
-    }
-    return false;
+    return detail::endsWithAnyIgnoringCase(path,
+                                           {".vot", ".votable", ".xml", ".vot.gz", ".votable.gz", ".xml.gz"});
 }
 
 namespace detail {
