@@ -143,6 +143,8 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
                                               const std::vector<PopulationDeviates>& population_by_radius) {
     ClassGroup everything{"all", {}};
     everything.categories.set();
+    const auto unclassified = unclassifiedCategories();
+    const ClassGroup classified_group{"classified", ~unclassified};
     std::vector<RadiusEstimate> estimates;
     const auto draws = static_cast<std::size_t>(tallies.draws);
     for (std::size_t r = 0; r < radii_pc.size(); ++r) {
@@ -154,8 +156,7 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
         const std::vector<double> totals = groupCountsByDraw(tallies, r, everything);
         std::vector<double> sorted_totals = totals;
         estimate.members = summarizeDraws(sorted_totals);
-        const std::vector<double> classified =
-            groupCountsByDraw(tallies, r, {"classified", ~unclassifiedCategories()});
+        const std::vector<double> classified = groupCountsByDraw(tallies, r, classified_group);
         std::vector<double> sorted_classified = classified;
         estimate.classified_members = summarizeDraws(sorted_classified);
         for (std::size_t reason = 0; reason < photometry::kUnclassifiedReasonCount; ++reason) {
@@ -174,7 +175,7 @@ std::vector<RadiusEstimate> estimateFractions(const DrawTallies& tallies, const 
                 fraction[d] = totals[d] > 0 ? count[d] / totals[d] : 0.0;
             }
             std::optional<TwoIntervals> of_classified;
-            if ((groups[g].categories & unclassifiedCategories()).none()) {
+            if ((groups[g].categories & unclassified).none()) {
                 std::vector<double> share(draws);
                 for (std::size_t d = 0; d < draws; ++d) {
                     share[d] = classified[d] > 0 ? count[d] / classified[d] : 0.0;

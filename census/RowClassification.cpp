@@ -63,9 +63,13 @@ photometry::Classification classifyRowPhotometry(const photometry::CatalogRow& r
     return result;
 }
 
-bool usesLiteratureType(const photometry::CatalogRow& row, const RowClassRules& rules) {
-    return rules.spectral_types == SpectralTypePolicy::Use &&
+bool readsLiteratureType(const photometry::CatalogRow& row, const RowClassRules& rules) {
+    return rules.spectral_types != SpectralTypePolicy::Ignore &&
            row.literature_status == photometry::LiteratureTypeStatus::Parsed;
+}
+
+bool usesLiteratureType(const photometry::CatalogRow& row, const RowClassRules& rules) {
+    return rules.spectral_types == SpectralTypePolicy::Use && readsLiteratureType(row, rules);
 }
 
 photometry::Classification classifyRow(const photometry::CatalogRow& row,

@@ -51,6 +51,10 @@ photometry::Classification applySpectralTypePolicy(photometry::Classification ph
                                                    const photometry::Classifier& classifier,
                                                    const RowClassRules& rules);
 
+/// True when the row has a parsed literature type the rules do not ignore: shown in sample.fits and
+/// compared with the photometric class (SpectralTypeAgreement.h).
+bool readsLiteratureType(const photometry::CatalogRow& row, const RowClassRules& rules);
+
 /// True when classifyRow() takes the row's class from its literature type.
 bool usesLiteratureType(const photometry::CatalogRow& row, const RowClassRules& rules);
 

@@ -22,15 +22,12 @@ std::vector<SpectralTypeAgreement> compareSpectralTypes(std::span<const photomet
                                                         const PreparedSample& sample,
                                                         const photometry::Classifier& classifier,
                                                         const RowClassRules& rules, double min_probability) {
-    if (rules.spectral_types == SpectralTypePolicy::Ignore) {
-        return {};
-    }
     std::vector<SpectralTypeAgreement> agreements(sample.radii().size());
     std::vector<std::vector<double>> differences(sample.radii().size());
     bool any = false;
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const photometry::CatalogRow& row = rows[s];
-        if (row.literature_status != photometry::LiteratureTypeStatus::Parsed) {
+        if (!readsLiteratureType(row, rules)) {
             continue;
         }
         any = true;

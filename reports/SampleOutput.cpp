@@ -203,10 +203,9 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
         block.values<std::string>(c++).push_back(reason ? std::string(photometry::reasonName(*reason)) : "");
         block.values<std::string>(c++).push_back(
             std::string(photometry::className(photometric.stellar_class)));
-        const bool literature = rules.spectral_types != census::SpectralTypePolicy::Ignore &&
-                                row.literature_status == photometry::LiteratureTypeStatus::Parsed;
         block.values<std::string>(c++).push_back(
-            literature ? std::string(photometry::className(row.literature_class)) : std::string());
+            census::readsLiteratureType(row, rules) ? std::string(photometry::className(row.literature_class))
+                                                    : std::string());
         for (std::size_t r = 0; r < radii; ++r) {
             block.values<float>(c++).push_back(sample.probabilityWithin(s, r));
         }
