@@ -22,7 +22,8 @@ DWARF_HEADER = """\
 # The masses are the source's "tentative" mean masses per subtype.
 # Columns (units): spectral_type; teff_k (K); log_l_lsun (log10 L/Lsun); radius_rsun (Rsun);
 #   abs_v_mag (M_V, mag); bp_rp_mag (G_BP-G_RP, mag); g_rp_mag (G-G_RP, mag); abs_g_mag (M_G, mag);
-#   abs_j_mag (M_J, mag); abs_ks_mag (M_Ks, mag); mass_msun (Msun); w1_w2_mag (WISE W1-W2, mag).
+#   abs_j_mag (M_J, mag); abs_ks_mag (M_Ks, mag); mass_msun (Msun); w1_w2_mag (WISE W1-W2, mag);
+#   b_v_mag (Johnson B-V, mag); j_h_mag (2MASS J-H, mag; MKO for Y dwarfs); ks_w1_mag (Ks-W1, mag).
 # `nan` = not given in the source (its `...`). Values the source marks uncertain with ':' are KEPT with
 #   the colon removed: {uncertain}.
 # Copied without change by data/make_reference_tables.py.
@@ -48,9 +49,11 @@ def number(token):
 
 
 def dwarf_table():
-    columns = ["SpT", "Teff", "logL", "R_Rsun", "Mv", "Bp-Rp", "G-Rp", "M_G", "M_J", "M_Ks", "Msun", "W1-W2"]
+    columns = ["SpT", "Teff", "logL", "R_Rsun", "Mv", "Bp-Rp", "G-Rp", "M_G", "M_J", "M_Ks", "Msun", "W1-W2", "B-V", "J-H",
+               "Ks-W1"]
     names = ["spectral_type", "teff_k", "log_l_lsun", "radius_rsun", "abs_v_mag", "bp_rp_mag", "g_rp_mag",
-             "abs_g_mag", "abs_j_mag", "abs_ks_mag", "mass_msun", "w1_w2_mag"]
+             "abs_g_mag", "abs_j_mag", "abs_ks_mag", "mass_msun", "w1_w2_mag",
+             "b_v_mag", "j_h_mag", "ks_w1_mag"]
     header = None
     rows, uncertain = [], []
     for line in (reference / "EEM_dwarf_UBVIJHK_colors_Teff.txt").read_text().splitlines():

@@ -45,6 +45,12 @@ double locusValue(const LocusPoint& point, LocusQuantity quantity) {
         return point.w1_w2_mag;
     case LocusQuantity::VKsMag:
         return point.abs_v_mag - point.abs_ks_mag;
+    case LocusQuantity::BVMag:
+        return point.b_v_mag;
+    case LocusQuantity::JHMag:
+        return point.j_h_mag;
+    case LocusQuantity::KsW1Mag:
+        return point.ks_w1_mag;
     }
     return kNaN;
 }
@@ -63,6 +69,9 @@ DwarfLocus DwarfLocus::load(const std::string& path) {
     const auto log_l = table.numbers("log_l_lsun");
     const auto radius = table.numbers("radius_rsun");
     const auto w1_w2 = table.numbers("w1_w2_mag");
+    const auto b_v = table.numbers("b_v_mag");
+    const auto j_h = table.numbers("j_h_mag");
+    const auto ks_w1 = table.numbers("ks_w1_mag");
     std::vector<LocusPoint> points;
     for (std::size_t row = 0; row < table.rowCount(); ++row) {
         const std::string& type = table.text(row, type_column);
@@ -71,7 +80,8 @@ DwarfLocus DwarfLocus::load(const std::string& path) {
             throw InputError(path + ": spectral_type '" + type + "' is not a dwarf spectral type");
         }
         points.push_back({type, *code, teff[row], abs_g[row], bp_rp[row], g_rp[row], abs_j[row], abs_ks[row],
-                          mass[row], abs_v[row], log_l[row], radius[row], w1_w2[row]});
+                          mass[row], abs_v[row], log_l[row], radius[row], w1_w2[row], b_v[row], j_h[row],
+                          ks_w1[row]});
     }
     return DwarfLocus(std::move(points));
 }
@@ -128,7 +138,10 @@ LocusPoint DwarfLocus::atCode(double spectral_code) const {
             at(LocusQuantity::AbsVMag),
             at(LocusQuantity::LogLLsun),
             at(LocusQuantity::RadiusRsun),
-            at(LocusQuantity::W1W2Mag)};
+            at(LocusQuantity::W1W2Mag),
+            at(LocusQuantity::BVMag),
+            at(LocusQuantity::JHMag),
+            at(LocusQuantity::KsW1Mag)};
 }
 
 double DwarfLocus::valueAtCode(LocusQuantity quantity, double spectral_code) const {

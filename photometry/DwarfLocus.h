@@ -27,6 +27,9 @@ struct LocusPoint {
     double log_l_lsun = std::numeric_limits<double>::quiet_NaN(); // log10 L/Lsun
     double radius_rsun = std::numeric_limits<double>::quiet_NaN();
     double w1_w2_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W1 - W2
+    double b_v_mag = std::numeric_limits<double>::quiet_NaN();   // Johnson B - V
+    double j_h_mag = std::numeric_limits<double>::quiet_NaN();   // 2MASS J - H (MKO for Y dwarfs)
+    double ks_w1_mag = std::numeric_limits<double>::quiet_NaN(); // 2MASS Ks - WISE W1
 };
 
 /// The quantities of a LocusPoint that can be interpolated or inverted. JKsMag is M_J - M_Ks, VKsMag
@@ -45,8 +48,11 @@ enum class LocusQuantity : std::uint8_t {
     RadiusRsun,
     W1W2Mag,
     VKsMag, // M_V - M_Ks (Johnson V, 2MASS Ks), computed like JKsMag
+    BVMag,
+    JHMag,
+    KsW1Mag,
 };
-inline constexpr std::size_t kLocusQuantityCount = 13;
+inline constexpr std::size_t kLocusQuantityCount = 16;
 
 /// The value of one quantity in a point (JKsMag is computed).
 double locusValue(const LocusPoint& point, LocusQuantity quantity);

@@ -32,6 +32,13 @@ TEST_CASE("the shipped dwarf locus reproduces the Pecaut & Mamajek anchors") {
     CHECK(sun_like.abs_j_mag == doctest::Approx(3.60));
     CHECK(sun_like.abs_ks_mag == doctest::Approx(3.236));
     CHECK(sun_like.spectral_type == "G2.0V");
+    // Same G2V row: B-V 0.650, J-H 0.293, Ks-W1 0.061; M4V: B-V 1.65, J-H 0.557, Ks-W1 0.180.
+    CHECK(locus.valueAtCode(LocusQuantity::BVMag, 42.0) == doctest::Approx(0.650));
+    CHECK(sun_like.j_h_mag == doctest::Approx(0.293));
+    CHECK(sun_like.ks_w1_mag == doctest::Approx(0.061));
+    CHECK(locus.valueAtCode(LocusQuantity::BVMag, 64.0) == doctest::Approx(1.65));
+    CHECK(locus.valueAtCode(LocusQuantity::JHMag, 64.0) == doctest::Approx(0.557));
+    CHECK(locus.valueAtCode(LocusQuantity::KsW1Mag, 64.0) == doctest::Approx(0.180));
     // The L6V-L8V M_G values the table marks uncertain (':') are kept: L7V 19.30.
     CHECK(locus.atCode(77.0).abs_g_mag == doctest::Approx(19.30));
 }
