@@ -46,11 +46,14 @@ void requireRegularFile(const std::string& path) {
     }
 }
 
+void requireHeadersSafeForCfitsio(const std::string& path);
+
 // An open FITS file; `where` grows from the path to "path [HDU n NAME]" once a table is chosen.
 class FitsFile {
   public:
     explicit FitsFile(const std::string& path) : where_(path) {
         requireRegularFile(path);
+        requireHeadersSafeForCfitsio(path);
         int status = 0;
         // The disk-file variant keeps '[' in names literal (no extended filename syntax); HDUs are chosen
         // with ScanSettings::hdu instead.
@@ -654,25 +657,61 @@ struct StreamedHeader {
     }
 };
 
-/// Reads one header from the stream up to its END record, appending its bytes to `image`; nothing when
-/// the stream ends first (`*clean_end`, if given, says whether it ended before the header's first byte:
-/// the normal end of a file).
-std::optional<StreamedHeader> readStreamedHeader(GzipFile& gzip, std::vector<unsigned char>& image,
-                                                 const std::string& where, bool* clean_end = nullptr) {
+/// Bytes of a FITS file in order: fills up to `bytes` and returns how many it got (fewer at the end).
+using ReadBytes = std::function<std::size_t(unsigned char* out, std::size_t bytes)>;
+
+/// Refuses, before cfitsio parses it, a card of the string-valued table keywords (TTYPEn, TFORMn, TUNITn,
+/// TDISPn, TDIMn, EXTNAME) whose value is not a quoted string, as FITS requires (FITS Standard 4.0,
+/// sections 4.2.1 and 7.3.2). Why: cfitsio 4.2.0 copies an unquoted TTYPEn value of 70 characters into a
+/// 70-byte column name (ffgtbp's strcpy) and the process ends with SIGABRT (fuzz/README.md).
+void requireQuotedStringValue(const unsigned char* card, const std::string& keyword, int hdu_index,
+                              const std::string& where) {
+    const auto indexed = [&](std::string_view stem) {
+        return keyword.size() > stem.size() && keyword.starts_with(stem) &&
+               allDigits(keyword.substr(stem.size()));
+    };
+    const bool string_valued = keyword == "EXTNAME" || indexed("TTYPE") || indexed("TFORM") ||
+                               indexed("TUNIT") || indexed("TDISP") || indexed("TDIM");
+    // cfitsio takes a value after '=' in column 9 even without the blank column 10 FITS requires.
+    if (!string_valued || card[8] != '=') {
+        return; // no value indicator: a commentary card, which cfitsio does not read as a value
+    }
+    const std::string_view value(reinterpret_cast<const char*>(card) + 9, 71);
+    const auto first = value.find_first_not_of(' ');
+    if (first != std::string_view::npos && value[first] != '\'') {
+        throw InputError(where + ": HDU " + std::to_string(hdu_index) + ": header card " + keyword +
+                         " has a value that is not a quoted string, which FITS requires (FITS Standard "
+                         "4.0, section 4.2.1); the file is damaged or was not written as FITS");
+    }
+}
+
+/// Reads one header up to its END record, appending its bytes to `image`; nothing when the bytes end
+/// first or the header does not start with SIMPLE or XTENSION (not FITS there; `*clean_end`, if given,
+/// says whether the bytes ended before the header's first byte: the normal end of a file).
+std::optional<StreamedHeader> readStreamedHeader(const ReadBytes& read, std::vector<unsigned char>& image,
+                                                 int hdu_index, const std::string& where,
+                                                 bool* clean_end = nullptr) {
     constexpr std::size_t kCard = 80;
     StreamedHeader header;
     for (bool ended = false, first = true; !ended; first = false) {
         const std::size_t at = image.size();
         image.resize(at + kFitsRecordBytes);
-        const std::size_t got = gzip.read(image.data() + at, kFitsRecordBytes, where);
+        const std::size_t got = read(image.data() + at, kFitsRecordBytes);
+        if (clean_end != nullptr) {
+            *clean_end = first && got == 0;
+        }
         if (got != kFitsRecordBytes) {
+            return std::nullopt;
+        }
+        if (first && cardKeyword(&image[at]) != "SIMPLE" && cardKeyword(&image[at]) != "XTENSION") {
             if (clean_end != nullptr) {
-                *clean_end = first && got == 0;
+                *clean_end = hdu_index > 0; // bytes after the last HDU, which FITS readers ignore
             }
             return std::nullopt;
         }
         for (std::size_t card = at; card < at + kFitsRecordBytes && !ended; card += kCard) {
             const std::string keyword = cardKeyword(&image[card]);
+            requireQuotedStringValue(&image[card], keyword, hdu_index, where);
             const auto number = [&] { return std::atoll(cardValue(&image[card]).c_str()); };
             if (keyword == "END") {
                 ended = true;
@@ -701,6 +740,42 @@ std::optional<StreamedHeader> readStreamedHeader(GzipFile& gzip, std::vector<uns
     return header;
 }
 
+ReadBytes readFrom(GzipFile& gzip, const std::string& where) {
+    return [&gzip, &where](unsigned char* out, std::size_t bytes) { return gzip.read(out, bytes, where); };
+}
+
+/// Checks every header of an uncompressed FITS file with requireQuotedStringValue before cfitsio opens
+/// it: headers are read with pread and data skipped, so the cost is the headers' size, not the file's.
+/// Stops quietly where the bytes are not FITS (cfitsio then says what is wrong).
+void requireHeadersSafeForCfitsio(const std::string& path) {
+    const int descriptor = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (descriptor < 0) {
+        return; // cfitsio reports the reason
+    }
+    off_t offset = 0;
+    const ReadBytes read = [&](unsigned char* out, std::size_t bytes) {
+        const ssize_t got = ::pread(descriptor, out, bytes, offset);
+        offset += std::max<ssize_t>(got, 0);
+        return static_cast<std::size_t>(std::max<ssize_t>(got, 0));
+    };
+    std::vector<unsigned char> image;
+    try {
+        for (int index = 0;; ++index) {
+            image.clear();
+            const std::optional<StreamedHeader> header = readStreamedHeader(read, image, index, path);
+            const std::size_t padded = header ? header->paddedDataBytes() : 0;
+            if (!header || padded > static_cast<std::size_t>(std::numeric_limits<off_t>::max() - offset)) {
+                break;
+            }
+            offset += static_cast<off_t>(padded);
+        }
+    } catch (...) {
+        ::close(descriptor);
+        throw;
+    }
+    ::close(descriptor);
+}
+
 /// Reads a gzip-compressed FITS file up to the end of the header of the table `hdu` selects (the rules
 /// of ScanSettings::hdu), keeping every byte before it; the stream is left at the table's first data
 /// byte. Returns nothing when the stream ends first (no such table, not FITS): the caller then lets
@@ -709,7 +784,8 @@ std::optional<std::vector<unsigned char>> readHeadersUpToTable(GzipFile& gzip, c
                                                                const std::string& where) {
     std::vector<unsigned char> image;
     for (int index = 0;; ++index) {
-        const std::optional<StreamedHeader> header = readStreamedHeader(gzip, image, where);
+        const std::optional<StreamedHeader> header =
+            readStreamedHeader(readFrom(gzip, where), image, index, where);
         if (!header) {
             return std::nullopt;
         }
@@ -740,7 +816,8 @@ std::optional<std::vector<HduSummary>> listGzipHdus(const std::string& path) {
     for (int index = 0;; ++index) {
         header_bytes.clear();
         bool clean_end = false;
-        const std::optional<StreamedHeader> header = readStreamedHeader(gzip, header_bytes, path, &clean_end);
+        const std::optional<StreamedHeader> header =
+            readStreamedHeader(readFrom(gzip, path), header_bytes, index, path, &clean_end);
         if (!header) {
             return index > 0 && clean_end ? std::optional(hdus) : std::nullopt;
         }

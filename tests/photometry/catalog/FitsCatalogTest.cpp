@@ -12,6 +12,7 @@
 #include <chrono>
 #include <cmath>
 #include <filesystem>
+#include <fstream>
 #include <thread>
 
 using namespace starcensus::photometry;
@@ -431,6 +432,32 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
     CHECK(scanError(ambiguous) == ambiguous +
                                       " [HDU 1]: field g is ambiguous: columns gmag (name gmag), G_MAG (name "
                                       "G_MAG) all match; choose one with --column g=COLUMN");
+
+    // A TTYPE value of 70 unquoted characters, as fuzz/known-crashes/cfitsio_unquoted_ttype.fits has:
+    // cfitsio 4.2.0 would overflow its 70-byte column name (SIGABRT), so the header check refuses it
+    // first, in the plain file and in its gzip copy (FITS Standard 4.0, section 4.2.1: quoted strings).
+    const std::string unquoted = directory.file("unquoted.fits");
+    writeFitsTable(unquoted, {"",
+                              {valueColumn("parallax", "1D", "mas", {1.0}),
+                               valueColumn("parallax_error", "1D", "mas", {1.0})}});
+    {
+        std::fstream file(unquoted, std::ios::in | std::ios::out | std::ios::binary);
+        std::string header(2 * 2880, ' ');
+        file.read(header.data(), static_cast<std::streamsize>(header.size()));
+        const auto card = header.find("TTYPE2  = ");
+        REQUIRE(card != std::string::npos);
+        file.seekp(static_cast<std::streamoff>(card + 9));
+        file << std::string(71, 'x');
+    }
+    const std::string unquoted_gz = directory.file("unquoted.fits.gz");
+    gzipFile(unquoted, unquoted_gz);
+    for (const std::string& path : {unquoted, unquoted_gz}) {
+        CHECK(scanError(path) == path +
+                                     ": HDU 1: header card TTYPE2 has a value that is not a quoted string, "
+                                     "which FITS requires (FITS Standard 4.0, section 4.2.1); the file is "
+                                     "damaged or was not written as FITS");
+        CHECK(inputErrorOf([&] { listHdus(path); }).starts_with(path + ": HDU 1: header card TTYPE2"));
+    }
 
     // The first failing file in input order is the one reported.
     CHECK(inputErrorOf([&] { scanCatalogs({no_parallax, missing}, settings); }).starts_with(no_parallax));
