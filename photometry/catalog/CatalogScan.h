@@ -36,7 +36,8 @@ struct ScanSettings {
                                                     // and thread (8 MiB), decoded in ~16 KiB slices
     unsigned threads = 0; // scanning threads; 0 = std::thread::hardware_concurrency(). Files are scanned
                           // in parallel; with fewer files than threads, uncompressed FITS files are also
-                          // split into row ranges scanned in parallel
+                          // split into row ranges scanned in parallel. Each CSV, ECSV or VOTable
+                          // file also has its own inflate thread (InflatedBlocks.h)
     bool keep_candidates = true;            // false: only count and report (used by inspect)
     bool null_counts_over_all_rows = false; // true: FileScanReport::null_counts over every row (inspect);
                                             // false: over the candidates only, which spares the scan a

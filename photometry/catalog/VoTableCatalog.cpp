@@ -1,9 +1,9 @@
 #include "photometry/catalog/VoTableCatalog.h"
 
 #include "photometry/base/InputError.h"
+#include "photometry/catalog/InflatedBlocks.h"
 
 #include <expat.h>
-#include <zlib.h>
 
 #include <algorithm>
 #include <array>
@@ -181,7 +181,8 @@ Cell cellFromBinary(const VoField& field, const unsigned char* bytes, std::size_
     return cell;
 }
 
-/// Lines up expat on a plain or gzip file and calls back with the first TABLE's fields and each row.
+/// Lines up expat on a plain or gzip file (inflated ahead in a thread of its own) and calls back with the
+/// first TABLE's fields and each row.
 class VoTableStream {
   public:
     using FieldsCallback = std::function<void(const std::vector<VoField>&)>;
@@ -191,28 +192,23 @@ class VoTableStream {
         : path_(std::move(path)), on_fields_(std::move(on_fields)), on_row_(std::move(on_row)) {}
 
     void run() {
-        gzFile file = gzopen(path_.c_str(), "rb");
-        if (file == nullptr) {
-            throw InputError(path_ + ": no such file or not readable");
-        }
+        detail::InflatedBlocks blocks(path_);
         XML_Parser parser = XML_ParserCreate(nullptr);
         XML_SetUserData(parser, this);
         XML_SetElementHandler(parser, &VoTableStream::start, &VoTableStream::end);
         XML_SetCharacterDataHandler(parser, &VoTableStream::characters);
         parser_ = parser;
-        std::array<char, 1u << 16> buffer{};
         bool finished = false;
         std::string failure;
         while (!finished && failure.empty() && !error_) {
-            const int read = gzread(file, buffer.data(), static_cast<unsigned>(buffer.size()));
-            int status = Z_OK;
-            const char* message = gzerror(file, &status);
-            if (read < 0 || (status != Z_OK && status != Z_STREAM_END)) {
-                failure = std::string("damaged or truncated compressed data (zlib: ") + message + ")";
+            const std::string_view block = blocks.next();
+            finished = block.empty();
+            if (finished && blocks.failed()) {
+                failure = "damaged or truncated compressed data (" + blocks.failure() + ")";
                 break;
             }
-            finished = read == 0;
-            if (XML_Parse(parser, buffer.data(), read, finished ? XML_TRUE : XML_FALSE) == XML_STATUS_ERROR &&
+            if (XML_Parse(parser, block.data(), static_cast<int>(block.size()),
+                          finished ? XML_TRUE : XML_FALSE) == XML_STATUS_ERROR &&
                 !error_) {
                 failure = std::string("not a well-formed VOTable (") +
                           XML_ErrorString(XML_GetErrorCode(parser)) + " at line " +
@@ -220,7 +216,6 @@ class VoTableStream {
             }
         }
         XML_ParserFree(parser);
-        gzclose(file);
         if (error_) {
             std::rethrow_exception(error_);
         }

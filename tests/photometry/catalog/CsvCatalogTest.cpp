@@ -134,3 +134,39 @@ TEST_CASE("CSV spectral types are parsed at read time; refused strings are count
     // The numeric fields are read as before.
     CHECK(rows[4].parallax_mas == 100.0);
 }
+
+TEST_CASE("CSV lines across inflated blocks: plain and gzip give every row, a NUL byte is refused") {
+    // Rows of 100 to 4,100 bytes and one of 2.5 MiB, so that lines straddle the 1 MiB blocks the inflate
+    // thread hands over (InflatedBlocks.h) and one spans three of them; every 7th row is a candidate.
+    const ScratchDirectory directory("starcensus-reader");
+    const std::string plain = directory.file("long.csv");
+    std::string text = "source_id,parallax,parallax_error,phot_g_mean_mag,note\n";
+    constexpr int kRows = 3000;
+    for (int i = 0; i < kRows; ++i) {
+        const std::size_t padding =
+            i == 1400 ? std::size_t{5} << 19 : static_cast<std::size_t>(100 + (i * 37) % 4000);
+        text += std::to_string(i) + "," + (i % 7 == 0 ? std::to_string(100 + i) : "1") + ",0.5," +
+                std::to_string(10 + i % 5) + "," + std::string(padding, 'x') + "\n";
+    }
+    writeText(plain, text);
+    const std::string compressed = directory.file("long.csv.gz");
+    gzipFile(plain, compressed);
+    ScanSettings settings;
+    settings.min_parallax_mas = 40.0; // 25 pc
+    for (const auto& path : {plain, compressed}) {
+        const CatalogScan scan = scanCatalogs({path}, settings);
+        CHECK(scan.files[0].rows == kRows);
+        REQUIRE(scan.candidates.size() == (kRows + 6) / 7);
+        for (std::size_t k = 0; k < scan.candidates.size(); ++k) {
+            const CatalogRow& row = scan.candidates[k];
+            const auto i = static_cast<std::int64_t>(7 * k);
+            CHECK(row.source_id == i);
+            CHECK(row.row_index == i);
+            CHECK(row.parallax_mas == static_cast<double>(100 + i));
+            CHECK(row.g_mag == static_cast<double>(10 + i % 5));
+        }
+    }
+    const std::string binary = directory.file("nul.csv");
+    writeText(binary, std::string("parallax,parallax_error\n1,0.1\n2,0.") + '\0' + "1\n");
+    CHECK(scanError(binary, settings) == binary + " line 3: a NUL byte (binary data, not text)");
+}
