@@ -7,6 +7,7 @@
 #include "photometry/base/InputError.h"
 #include "photometry/base/InputPaths.h"
 #include "photometry/base/OptionChecks.h"
+#include "photometry/base/ProcessGroup.h"
 #include "photometry/base/Progress.h"
 #include "reports/DrawsOutput.h"
 #include "reports/FractionsOutput.h"
@@ -125,6 +126,7 @@ nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vecto
             {"version", STARCENSUS_VERSION},
             {"created_utc", created},
             {"seed", settings.census.draws.seed},
+            {"scan_processes", settings.processes == nullptr ? 1 : settings.processes->size()},
             {"inputs", std::move(input_files)},
             {"merges", std::move(merges)},
             {"command_options", settings.options},
@@ -163,8 +165,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     merge_settings.file_epochs_yr = fileEpochsByIndex(census.file_epochs, paths);
     // Checksums of the inputs for provenance.json: reading a large catalogue again costs about as much as
     // the scan, so it runs beside the census instead of after it.
-    std::future<nlohmann::json> input_files = std::async(
-        std::launch::async, [&paths, &settings] { return inputFilesJson(paths, settings.checksum); });
+    const bool root = settings.processes == nullptr || settings.processes->rank() == 0;
+    std::future<nlohmann::json> input_files =
+        std::async(root ? std::launch::async : std::launch::deferred,
+                   [&paths, &settings] { return inputFilesJson(paths, settings.checksum); });
     photometry::ScanSettings scan_settings = settings.scan;
     scan_settings.min_parallax_mas =
         1000.0 / census.radii_pc.back() + census.membership.parallax_zero_point_mas;
@@ -172,8 +176,13 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     scan_settings.progress = &scan_progress;
     photometry::CatalogScan scan = [&] {
         const TerminalProgress display("reading catalogs", "rows", scan_progress, settings.show_progress);
-        return photometry::scanCatalogs(paths, scan_settings);
+        return settings.processes == nullptr
+                   ? photometry::scanCatalogs(paths, scan_settings)
+                   : photometry::scanCatalogsAcross(*settings.processes, paths, scan_settings);
     }();
+    if (!root) {
+        return result; // everything after the scan happens on rank 0
+    }
     result.timings.scan_s = secondsSince(start);
     progress.end();
     for (const auto& file : scan.files) {

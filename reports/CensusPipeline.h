@@ -35,6 +35,9 @@ struct PipelineSettings {
     nlohmann::json options;                   // every option value of the command (optionValuesJson)
     bool show_progress = false;               // one line per stage on `log` (set when stderr is a terminal)
     ChecksumAlgorithm checksum = ChecksumAlgorithm::Xxh128; // input fingerprints in provenance.json
+    // The processes the scan is spread over (mpirun; photometry/base/ProcessGroup.h); nullptr: this one.
+    // Ranks other than 0 return from runCensusPipeline after sending their share, with an empty result.
+    ProcessGroup* processes = nullptr;
 };
 
 struct PipelineTimings {

@@ -192,12 +192,48 @@ void appendPart(FileScanResult& whole, FileScanResult&& part) {
 
 } // namespace detail
 
+namespace detail {
+
+unsigned scanThreads(const ScanSettings& settings) {
+    // A cfitsio built without --enable-reentrant must not be used from two threads.
+    return fits_is_reentrant() == 0 ? 1 : resolveThreadCount(settings.threads);
+}
+
+FileScanResult scanFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+                        unsigned threads, RowShare share) {
+    if (isCsvPath(path) || isVoTablePath(path)) {
+        if (share.part > 0) { // read whole by part 0 (RowShare)
+            FileScanResult empty;
+            empty.report.path = path;
+            return empty;
+        }
+        return isCsvPath(path) ? scanCsvFile(path, file_index, settings)
+                               : scanVoTableFile(path, file_index, settings);
+    }
+    return scanFitsFile(path, file_index, settings, threads, share);
+}
+
+CatalogScan assembleScan(std::vector<FileScanResult>&& files) {
+    CatalogScan scan;
+    for (FileScanResult& file : files) {
+        scan.totals += file.report.counts;
+        std::vector<CatalogRow>& rows = file.candidates;
+        if (scan.candidates.empty()) {
+            scan.candidates = std::move(rows); // no copy for the first (often only) file
+        } else {
+            scan.candidates.insert(scan.candidates.end(), rows.begin(), rows.end());
+            std::vector<CatalogRow>().swap(rows);
+        }
+        scan.files.push_back(std::move(file.report));
+    }
+    return scan;
+}
+
+} // namespace detail
+
 CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings) {
     std::vector<detail::FileScanResult> results(paths.size());
-    unsigned threads = resolveThreadCount(settings.threads);
-    if (fits_is_reentrant() == 0) {
-        threads = 1; // a cfitsio built without --enable-reentrant must not be used from two threads
-    }
+    const unsigned threads = detail::scanThreads(settings);
     const unsigned file_threads =
         std::max(1U, std::min<unsigned>(threads, static_cast<unsigned>(paths.size())));
     const unsigned threads_per_file = std::max(1U, threads / file_threads);
@@ -206,29 +242,13 @@ CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettin
     }
     // Files are claimed in order; the error of the first failing file in `paths` is the one thrown.
     forEachIndex(paths.size(), file_threads, [&](std::size_t index) {
-        const auto file_index = static_cast<std::uint32_t>(index);
-        results[index] = isCsvPath(paths[index]) ? detail::scanCsvFile(paths[index], file_index, settings)
-                         : isVoTablePath(paths[index])
-                             ? detail::scanVoTableFile(paths[index], file_index, settings)
-                             : detail::scanFitsFile(paths[index], file_index, settings, threads_per_file);
+        results[index] =
+            detail::scanFile(paths[index], static_cast<std::uint32_t>(index), settings, threads_per_file, {});
         if (settings.progress != nullptr) {
             ++settings.progress->parts_done;
         }
     });
-
-    CatalogScan scan;
-    for (std::size_t index = 0; index < paths.size(); ++index) {
-        scan.totals += results[index].report.counts;
-        std::vector<CatalogRow>& rows = results[index].candidates;
-        if (scan.candidates.empty()) {
-            scan.candidates = std::move(rows); // no copy for the first (often only) file
-        } else {
-            scan.candidates.insert(scan.candidates.end(), rows.begin(), rows.end());
-            std::vector<CatalogRow>().swap(rows);
-        }
-        scan.files.push_back(std::move(results[index].report));
-    }
-    return scan;
+    return detail::assembleScan(std::move(results));
 }
 
 } // namespace starcensus::photometry

@@ -20,6 +20,10 @@
 #include <string>
 #include <vector>
 
+namespace starcensus {
+class ProcessGroup; // photometry/base/ProcessGroup.h
+} // namespace starcensus
+
 namespace starcensus::photometry {
 
 /// Settings of one scan. Defaults are stated with their units.
@@ -101,5 +105,13 @@ struct CatalogScan {
 /// Throws InputError (one line naming the file, HDU and column) for unreadable input; when several
 /// files fail, the error of the first in `paths` is thrown.
 CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings);
+
+/// scanCatalogs spread over the processes of `group` (each calls it with the same paths and settings):
+/// whole files, and uncompressed FITS tables larger than an even share of all the bytes in row ranges,
+/// are dealt out by size; each rank scans its share (settings.threads threads) and sends it to rank 0,
+/// which returns exactly what scanCatalogs gives (files in order, then rows), or throws its error (the
+/// first failing file's). The other ranks return an empty scan. With one process: scanCatalogs.
+CatalogScan scanCatalogsAcross(ProcessGroup& group, const std::vector<std::string>& paths,
+                               const ScanSettings& settings);
 
 } // namespace starcensus::photometry

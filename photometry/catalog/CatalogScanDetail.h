@@ -7,6 +7,7 @@
 #include <cmath>
 #include <initializer_list>
 #include <optional>
+#include <string>
 #include <string_view>
 #include <vector>
 
@@ -15,6 +16,15 @@ namespace starcensus::photometry::detail {
 struct FileScanResult {
     FileScanReport report;
     std::vector<CatalogRow> candidates;
+    std::string where; // the file (and HDU) as whole-file warnings name it
+};
+
+/// The rows of a file one scan reads: part `part` of `parts` equal row ranges, in row order. Only an
+/// uncompressed FITS table is read in parts; of any other file, part 0 reads every row and the others
+/// none, so that appending the parts (appendPart) always gives the whole file.
+struct RowShare {
+    unsigned part = 0;
+    unsigned parts = 1;
 };
 
 /// A number as the text readers (CSV, ECSV, VOTable TABLEDATA) accept it: the whole text, an explicit
@@ -109,6 +119,17 @@ class ScanAccumulator {
     bool keep_candidates_;
     bool null_counts_over_all_rows_;
 };
+
+/// The scanning threads settings.threads asks for (1 with a cfitsio that is not reentrant).
+unsigned scanThreads(const ScanSettings& settings);
+
+/// Scans the rows `share` selects of one file with the reader its name claims (CSV/ECSV, VOTable, else
+/// FITS); rows get `file_index`.
+FileScanResult scanFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+                        unsigned threads, RowShare share);
+
+/// The scan of whole files, in the order given: candidates concatenated, counts summed.
+CatalogScan assembleScan(std::vector<FileScanResult>&& files);
 
 /// Adds a part of a file scanned separately (the rows after those already in `whole`): counts, null
 /// counts, parallax range and candidates.

@@ -1246,7 +1246,7 @@ TableProfile profileFitsTable(const std::string& path, const std::string& hdu) {
 }
 
 FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
-                            unsigned threads) {
+                            unsigned threads, RowShare share) {
     OpenedFits opened(path, settings.hdu);
     const Storage storage = opened.storage;
     std::optional<GzipFile>& gzip = opened.gzip;
@@ -1305,11 +1305,15 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
     LONGLONG header_start = 0;
     fits_get_hduaddrll(file.get(), &header_start, &data_start, &data_end, &status);
     file.check(status, "cannot locate the table data");
+    // Rows [first_row, end_row) of an uncompressed table; a compressed one is read whole by part 0.
+    const bool plain = !gzip && storage == Storage::Plain;
+    const LONGLONG first_row = plain ? rows * share.part / share.parts : 0;
+    const LONGLONG end_row = plain ? rows * (share.part + 1) / share.parts : share.part == 0 ? rows : 0;
     if (settings.progress != nullptr) {
-        settings.progress->items_total.fetch_add(rows, std::memory_order_relaxed);
+        settings.progress->items_total.fetch_add(end_row - first_row, std::memory_order_relaxed);
     }
 
-    if (rows > 0 && plan.row_bytes > 0) {
+    if (end_row > first_row && plan.row_bytes > 0) {
         const auto rows_per_block =
             static_cast<LONGLONG>(std::max<std::size_t>(1, settings.block_bytes / plan.row_bytes));
         const std::string& where = file.where();
@@ -1344,15 +1348,16 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
                                   static_cast<std::size_t>(count * row_bytes), where);
             };
             // Row ranges of at least 16 blocks each, one per thread, merged in row order.
+            const LONGLONG share_rows = end_row - first_row;
             const auto parts = static_cast<unsigned>(
-                std::clamp<LONGLONG>(rows / (16 * rows_per_block), 1, static_cast<LONGLONG>(threads)));
+                std::clamp<LONGLONG>(share_rows / (16 * rows_per_block), 1, static_cast<LONGLONG>(threads)));
             if (parts <= 1) {
-                scanRows(plan, read, 0, rows, rows_per_block, settings, result);
+                scanRows(plan, read, first_row, share_rows, rows_per_block, settings, result);
             } else {
                 std::vector<FileScanResult> partial(parts);
                 forEachIndex(parts, parts, [&](std::size_t part) {
-                    const LONGLONG begin = rows * static_cast<LONGLONG>(part) / parts;
-                    const LONGLONG end = rows * static_cast<LONGLONG>(part + 1) / parts;
+                    const LONGLONG begin = first_row + share_rows * static_cast<LONGLONG>(part) / parts;
+                    const LONGLONG end = first_row + share_rows * static_cast<LONGLONG>(part + 1) / parts;
                     partial[part].report.mapping = report.mapping;
                     scanRows(plan, read, begin, end - begin, rows_per_block, settings, partial[part]);
                 });
@@ -1372,7 +1377,10 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
             scanRows(plan, read, 0, rows, rows_per_block, settings, result);
         }
     }
-    ScanAccumulator(result, settings).finish(file.where());
+    result.where = file.where();
+    if (share.parts == 1) {
+        ScanAccumulator(result, settings).finish(result.where);
+    }
     return result;
 }
 

@@ -35,9 +35,10 @@ namespace detail {
 /// Profiles every column of the table `hdu` selects (see ColumnProfile.h and ScanSettings::hdu), rows read
 /// in order in blocks (gzip files as a stream) and decoded as the scan decodes them.
 TableProfile profileFitsTable(const std::string& path, const std::string& hdu);
-/// Scans one FITS file (see CatalogScan.h) with up to `threads` threads; rows get `file_index`.
+/// Scans one FITS file (see CatalogScan.h), or the rows of it `share` selects, with up to `threads`
+/// threads; rows get `file_index`. The whole-file warnings are added only when `share` is the whole file.
 FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
-                            unsigned threads);
+                            unsigned threads, RowShare share = {});
 } // namespace detail
 
 } // namespace starcensus::photometry

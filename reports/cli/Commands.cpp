@@ -272,7 +272,7 @@ int demoCommand(const std::vector<std::string>& arguments) {
     return 0;
 }
 
-int runCommand(const std::vector<std::string>& arguments) {
+int runCommand(const std::vector<std::string>& arguments, ProcessGroup& processes) {
     CommonOptions common;
     census::CensusSettings census_settings;
     census::LuminosityRunSettings luminosity_settings;
@@ -321,8 +321,12 @@ int runCommand(const std::vector<std::string>& arguments) {
     settings.hosts = hosts;
     settings.checksum = reports::checksumAlgorithmNamed(checksum_name);
     settings.options = reports::optionValuesJson(values);
-    settings.show_progress = stderrIsTerminal();
+    settings.show_progress = stderrIsTerminal() && processes.rank() == 0;
+    settings.processes = &processes;
     const auto result = reports::runCensusPipeline(settings, std::cerr);
+    if (processes.rank() != 0) {
+        return 0; // its share of the scan went to rank 0
+    }
     std::cout << reports::summarizeRun(result) << "outputs in " << output_directory << "/\n";
     if (!no_report) {
         writeReportFor(output_directory);
