@@ -59,8 +59,12 @@ def main():
     with tempfile.TemporaryDirectory(prefix="starcensus-mpi-") as scratch:
         work = Path(scratch)
 
+        # Open MPI's shared-memory transport copies large messages with process_vm_readv (CMA), which
+        # containers without ptrace rights refuse; plain copies work everywhere.
+        environment = dict(os.environ, OMPI_MCA_btl_vader_single_copy_mechanism="none")
+
         def run(command):
-            return subprocess.run(command, cwd=work, capture_output=True, text=True)
+            return subprocess.run(command, cwd=work, capture_output=True, text=True, env=environment)
 
         for name, radius, seed in [("big.fits", "40", "3"), ("small.fits", "15", "4"), ("third.fits", "12", "6")]:
             result = run([starcensus, "simulate", "--out", name, "--truth", name + ".json", "--radius-max", radius,
