@@ -1,7 +1,5 @@
 #include "photometry/base/ProcessGroup.h"
 
-#include <cstdlib>
-
 namespace starcensus {
 
 namespace {
@@ -10,8 +8,16 @@ class SingleProcess final : public ProcessGroup {
   public:
     int rank() const override { return 0; }
     int size() const override { return 1; }
-    std::vector<std::string> gatherToRoot(const std::string& bytes) override { return {bytes}; }
-    [[noreturn]] void abortAll(int status) override { std::exit(status); }
+    std::vector<std::string> gatherToRoot(const std::string& bytes) override {
+        gathered_ = true;
+        return {bytes};
+    }
+    void gatherFailure(int, const std::string&) override { gathered_ = true; } // nobody waits
+
+    bool gathered() const override { return gathered_; }
+
+  private:
+    bool gathered_ = false;
 };
 
 } // namespace

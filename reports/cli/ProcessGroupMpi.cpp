@@ -7,6 +7,7 @@
 #include <mpi.h>
 
 #include <algorithm>
+#include <array>
 #include <cstdint>
 #include <cstdlib>
 
@@ -34,13 +35,29 @@ class MpiProcessGroup final : public ProcessGroup {
 
     int rank() const override { return rank_; }
     int size() const override { return size_; }
+    bool gathered() const override { return gathered_; }
 
-    // Sizes first (64-bit), then each rank's bytes in messages of at most 1 GiB (MPI counts are int).
     std::vector<std::string> gatherToRoot(const std::string& bytes) override {
+        return gather(bytes, kShare, 0);
+    }
+    void gatherFailure(int exit_status, const std::string& printed) override {
+        gather(printed, kFailure, exit_status);
+    }
+
+  private:
+    static constexpr std::uint64_t kShare = 0;
+    static constexpr std::uint64_t kFailure = 1;
+
+    // (size, kind, exit status) of every rank first, then each rank's bytes in messages of at most 1 GiB
+    // (MPI counts are int). Rank 0 receives everything before it reports a failure, so that every send
+    // completes.
+    std::vector<std::string> gather(const std::string& bytes, std::uint64_t kind, int exit_status) {
         constexpr std::size_t kChunk = std::size_t{1} << 30;
-        auto size = static_cast<std::uint64_t>(bytes.size());
-        std::vector<std::uint64_t> sizes(rank_ == 0 ? static_cast<std::size_t>(size_) : 0);
-        MPI_Gather(&size, 1, MPI_UINT64_T, sizes.data(), 1, MPI_UINT64_T, 0, MPI_COMM_WORLD);
+        gathered_ = true;
+        const std::array<std::uint64_t, 3> header = {bytes.size(), kind,
+                                                     static_cast<std::uint64_t>(exit_status)};
+        std::vector<std::uint64_t> headers(rank_ == 0 ? 3 * static_cast<std::size_t>(size_) : 0);
+        MPI_Gather(header.data(), 3, MPI_UINT64_T, headers.data(), 3, MPI_UINT64_T, 0, MPI_COMM_WORLD);
         if (rank_ != 0) {
             for (std::size_t at = 0; at < bytes.size(); at += kChunk) {
                 MPI_Send(bytes.data() + at, static_cast<int>(std::min(kChunk, bytes.size() - at)), MPI_CHAR,
@@ -52,23 +69,23 @@ class MpiProcessGroup final : public ProcessGroup {
         received[0] = bytes;
         for (int source = 1; source < size_; ++source) {
             std::string& into = received[static_cast<std::size_t>(source)];
-            into.resize(sizes[static_cast<std::size_t>(source)]);
+            into.resize(headers[3 * static_cast<std::size_t>(source)]);
             for (std::size_t at = 0; at < into.size(); at += kChunk) {
                 MPI_Recv(into.data() + at, static_cast<int>(std::min(kChunk, into.size() - at)), MPI_CHAR,
                          source, 0, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
             }
         }
+        for (std::size_t source = 0; source < received.size(); ++source) {
+            if (headers[3 * source + 1] == kFailure) {
+                throw ProcessGroupFailure(static_cast<int>(headers[3 * source + 2]), received[source]);
+            }
+        }
         return received;
     }
 
-    [[noreturn]] void abortAll(int status) override {
-        MPI_Abort(MPI_COMM_WORLD, status);
-        std::exit(status); // MPI_Abort does not return; this satisfies [[noreturn]]
-    }
-
-  private:
     int rank_ = 0;
     int size_ = 1;
+    bool gathered_ = false;
 };
 
 } // namespace

@@ -7,12 +7,10 @@
 
 #include "photometry/base/InputError.h"
 
-#include <chrono>
 #include <iostream>
 #include <memory>
 #include <sstream>
 #include <string>
-#include <thread>
 #include <vector>
 
 namespace {
@@ -64,28 +62,39 @@ int runArguments(const std::vector<std::string>& arguments, starcensus::ProcessG
 } // namespace
 
 int main(int argc, char** argv) {
-    // Under mpirun every rank runs this; only rank 0 prints an error line (the ranks see the same
-    // options and files, so they fail alike), and a failed rank ends the whole job so that no rank waits
-    // for it. A rank other than 0 first gives rank 0 time to print and end the job itself, and prints its
-    // own error only if it is still running then (its failure was its own).
+    // Under mpirun every rank runs this and only rank 0 prints an error. A `run` rank that fails before
+    // the scan's gather takes part in it with its error, so that no rank waits for it; rank 0 then
+    // prints the lowest failed rank's error (the ranks see the same options and files, so usually its
+    // own) and exits with its status, the other ranks with 0.
     std::unique_ptr<starcensus::ProcessGroup> processes;
     std::ostringstream errors;
-    const int status = starcensus::cli::exitStatusOf(
+    bool spread_run = false;
+    int status = starcensus::cli::exitStatusOf(
         [&] {
             processes = starcensus::joinProcessGroup(argc, argv);
-            return runArguments(std::vector<std::string>(argv + 1, argv + argc), *processes);
+            const std::vector<std::string> arguments(argv + 1, argv + argc);
+            spread_run = processes->size() > 1 && !arguments.empty() && arguments[0] == "run";
+            try {
+                return runArguments(arguments, *processes);
+            } catch (const starcensus::ProcessGroupFailure& failure) {
+                errors << failure.what(); // another rank's error, as it printed it
+                return failure.status;
+            }
         },
         errors);
-    if (processes == nullptr || processes->size() == 1) {
-        std::cerr << errors.str();
-        return status;
-    }
-    if (status != 0) {
-        if (processes->rank() != 0) {
-            std::this_thread::sleep_for(std::chrono::seconds(2));
+    if (spread_run && status != 0 && !processes->gathered()) {
+        const std::string printed = errors.str();
+        errors.str("");
+        try {
+            processes->gatherFailure(status, printed);
+        } catch (const starcensus::ProcessGroupFailure& failure) {
+            errors << failure.what();
+            status = failure.status;
         }
-        std::cerr << errors.str() << std::flush;
-        processes->abortAll(status);
     }
-    return 0;
+    const bool root = processes == nullptr || processes->rank() == 0;
+    if (root) {
+        std::cerr << errors.str();
+    }
+    return root ? status : 0;
 }
