@@ -105,6 +105,16 @@ def main():
                   spread.stderr.startswith("starcensus: error: "),
                   f"{bad}: one error line, the single process's ({spread.stderr!r})")
             check(not (work / "bad").exists(), f"{bad}: nothing written")
+        # A rank whose options alone are bad (mpirun's MPMD form gives ranks different arguments): the
+        # others still finish the gather, rank 0 prints that rank's line; first the workers, then rank 0.
+        good = ["run", "big.fits", "small.fits", "--out", "bad"]
+        bad = ["run", "big.fits", "small.fits", "--radius", "abc", "--out", "bad"]
+        expected = run([starcensus, *bad]).stderr
+        for first, rest in ((good, bad), (bad, good)):
+            mixed = run([*mpirun[:-2], "-n", "1", starcensus, *first, ":", "-n", "2", starcensus, *rest])
+            check(mixed.returncode == 2 and mixed.stderr == expected,
+                  f"one rank with bad options ({first is bad}): exit 2 and its one line ({mixed.stderr!r})")
+            check(not (work / "bad").exists(), "one rank with bad options: nothing written")
     if failures:
         sys.exit(f"{len(failures)} check(s) failed")
     print("mpi identity: all checks passed")
