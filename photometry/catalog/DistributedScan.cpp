@@ -258,14 +258,14 @@ CatalogScan scanCatalogsAcross(ProcessGroup& group, const std::vector<std::strin
         }
     }
     outcomes.clear();
-    const std::vector<std::string> received = group.gatherToRoot(packer.bytes());
+    std::vector<std::string> received = group.gatherToRoot(packer.bytes());
     std::string().swap(packer.bytes());
     if (group.rank() != 0) {
         return {};
     }
 
     std::vector<PartOutcome> by_unit(units.size());
-    for (const std::string& bytes : received) {
+    for (std::string& bytes : received) {
         Unpacker in(bytes);
         while (!in.done()) {
             PartOutcome& outcome = by_unit.at(in.value<std::uint64_t>());
@@ -276,6 +276,7 @@ CatalogScan scanCatalogsAcross(ProcessGroup& group, const std::vector<std::strin
                 outcome.message = in.text();
             }
         }
+        std::string().swap(bytes); // rank 0 then holds the rows and at most one rank's bytes at a time
     }
     // Units are planned file by file, parts in row order: put each file back together.
     std::vector<detail::FileScanResult> files(paths.size());
