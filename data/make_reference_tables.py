@@ -2,7 +2,8 @@
 """Regenerates the shipped reference tables in data/ from the published files in ../shared/reference/.
 
 Run from the repository root:  /usr/bin/python3 data/make_reference_tables.py ../shared/reference
-Only copies and reformats numbers (no fitting, no smoothing); the citations go into each file header.
+Only copies and reformats numbers, or evaluates published polynomials (no fitting, no smoothing); the
+citations go into each file header.
 """
 import pathlib
 import sys
@@ -90,6 +91,70 @@ def white_dwarf_table(atm, kind):
     (data / f"white_dwarf_montreal_{atm.lower()}.txt").write_text(text)
 
 
+WISE_HEADER = """\
+# WISE absolute magnitudes M_W1, M_W2 of ultracool dwarfs against spectral type, M6V-Y4V, with the
+#   intrinsic scatter of each relation (mag). Used by photometry/BandMatch beyond M6V (earlier types take
+#   M_Ks - (Ks-W1) and W1-W2 of the Pecaut & Mamajek locus).
+# M6V-T9V: the polynomial fits of absolute magnitude against type of Dupuy & Liu 2012, ApJS 201, 19:
+#   M = sum c_i x^i with x = the paper's numeric type (M6 = 6, L0 = 10, T0 = 20, T9 = 29), valid M6-T9; their rms is the
+#   scatter column. Coefficients as transcribed in SPLAT (Burgasser et al. 2017), public repository
+#   aburgasser/splat, splat/empirical.py, commit 07af68e11c54 (read there, not in the paper), highest
+#   power first:
+#   W1 {w1}, rms 0.39;
+#   W2 {w2}, rms 0.35.
+#   Evaluated here at whole and half subtypes.
+# Y0V-Y4V: M_W2 FROM MEMORY (a recollection of the trend of Kirkpatrick et al. 2019, ApJS 240, 19 and
+#   2021, ApJS 253, 7, not read from either paper; scatter 0.5 mag, from memory). M_W1 = M_W2 + the
+#   locus W1-W2 of data/dwarf_locus_pecaut_mamajek.txt at that type (which its source took from the
+#   Kirkpatrick et al. 2019 polynomial), so the W1-W2 colour of the two tables agrees there.
+#   Kirkpatrick et al. 2019's Y dwarfs are the sample these recalled relations describe: a test on them is
+#   not independent (tests/photometry/BandMatchTest.cpp says so).
+# Columns (units): spectral_type; abs_w1_mag (M_W1, mag); abs_w2_mag (M_W2, mag); scatter_w1_mag,
+#   scatter_w2_mag (intrinsic scatter, mag); source (DL12 = Dupuy & Liu 2012; memory = from memory).
+# Written by data/make_reference_tables.py.
+"""
+
+# Dupuy & Liu 2012 via SPLAT (see WISE_HEADER): highest power first.
+DUPUY_LIU_W1 = [1.58040e-5, -3.33944e-4, -4.38105e-3, 3.55395e-1, 7.14765]
+DUPUY_LIU_W2 = [1.78555e-5, -8.81973e-4, 1.14325e-2, 1.92354e-1, 7.46564]
+# From memory (see WISE_HEADER): M_W2 of Y0V, Y0.5V, Y1V, Y1.5V, Y2V, Y4V.
+Y_DWARF_ABS_W2 = [("Y0V", 15.0), ("Y0.5V", 15.4), ("Y1V", 15.8), ("Y1.5V", 16.1), ("Y2V", 16.4), ("Y4V", 17.2)]
+
+
+def polynomial(coefficients, x):
+    value = 0.0
+    for c in coefficients:
+        value = value * x + c
+    return value
+
+
+def wise_table():
+    locus_w1_w2 = {}
+    for line in (data / "dwarf_locus_pecaut_mamajek.txt").read_text().splitlines():
+        if line.startswith("#spectral_type"):
+            names = line[1:].split()
+        elif not line.startswith("#"):
+            tokens = line.split()
+            locus_w1_w2[tokens[0]] = float(tokens[names.index("w1_w2_mag")])
+    rows = []
+    for half_subtypes in range(2 * 6, 2 * 29 + 1):  # M6 (x = 6) to T9 (x = 29)
+        x = half_subtypes / 2.0
+        letter = "M" if x < 10 else "L" if x < 20 else "T"
+        subtype = x - (0 if x < 10 else 10 if x < 20 else 20)
+        label = f"{letter}{subtype:g}V"
+        rows.append([label, f"{polynomial(DUPUY_LIU_W1, x):.3f}", f"{polynomial(DUPUY_LIU_W2, x):.3f}", "0.39",
+                     "0.35", "DL12"])
+    for label, abs_w2 in Y_DWARF_ABS_W2:
+        rows.append([label, f"{abs_w2 + locus_w1_w2[label]:.3f}", f"{abs_w2:.3f}", "0.5", "0.5", "memory"])
+    names = ["spectral_type", "abs_w1_mag", "abs_w2_mag", "scatter_w1_mag", "scatter_w2_mag", "source"]
+    text = WISE_HEADER.format(w1=DUPUY_LIU_W1, w2=DUPUY_LIU_W2)
+    widths = [max(len(r[i]) for r in rows + [names]) for i in range(len(names))]
+    for r in [names] + rows:
+        text += ("#" if r is names else " ") + "  ".join(v.ljust(w) for v, w in zip(r, widths)).rstrip() + "\n"
+    (data / "ultracool_wise_absolute_magnitudes.txt").write_text(text)
+
+
 dwarf_table()
 white_dwarf_table("DA", "hydrogen (DA)")
 white_dwarf_table("DB", "helium (DB)")
+wise_table()
