@@ -24,14 +24,24 @@ PhotometricInput photometricInput(const CatalogRow& row) {
     input.v_mag = row.v_mag;
     input.w1_mag = row.w1_mag;
     input.w2_mag = row.w2_mag;
+    input.b_mag = row.b_mag;
+    input.h_mag = row.h_mag;
+    input.b_error_mag = row.b_error_mag;
+    input.v_error_mag = row.v_error_mag;
+    input.j_error_mag = row.j_error_mag;
+    input.h_error_mag = row.h_error_mag;
+    input.ks_error_mag = row.ks_error_mag;
+    input.w1_error_mag = row.w1_error_mag;
+    input.w2_error_mag = row.w2_error_mag;
     input.parallax_mas = row.parallax_mas;
     input.parallax_error_mas = row.parallax_error_mas;
     return input;
 }
 
 bool hasClassifiableBands(const PhotometricInput& input) {
-    return !std::isnan(input.g_mag) || !std::isnan(input.j_mag) || !std::isnan(input.w1_mag - input.w2_mag) ||
-           !std::isnan(input.v_mag - input.ks_mag);
+    const int other_bands = std::isnan(input.b_mag) + std::isnan(input.v_mag) + std::isnan(input.h_mag) +
+                            std::isnan(input.ks_mag) + std::isnan(input.w1_mag) + std::isnan(input.w2_mag);
+    return !std::isnan(input.g_mag) || !std::isnan(input.j_mag) || other_bands <= 6 - 2;
 }
 
 AbsoluteMagnitude absoluteMagnitude(double apparent_mag, double parallax_mas, double parallax_error_mas) {
@@ -53,8 +63,8 @@ Category censusCategory(const Classification& result) {
 }
 
 Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_dwarfs,
-                       ClassifierSettings settings)
-    : locus_(locus), white_dwarfs_(white_dwarfs), settings_(settings),
+                       const BandMatcher& band_matcher, ClassifierSettings settings)
+    : locus_(locus), white_dwarfs_(white_dwarfs), band_matcher_(band_matcher), settings_(settings),
       white_dwarf_boundary_(locus, white_dwarfs, settings.white_dwarf_boundary),
       locus_bp_rp_range_mag_(locus.invertibleRange(LocusQuantity::BpRpMag)),
       locus_abs_g_range_mag_(locus.invertibleRange(LocusQuantity::AbsGMag)),
@@ -83,7 +93,8 @@ Classifier::Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_
 }
 
 const Classifier& Classifier::shipped() {
-    static const Classifier classifier(DwarfLocus::shipped(), WhiteDwarfSequence::shipped());
+    static const Classifier classifier(DwarfLocus::shipped(), WhiteDwarfSequence::shipped(),
+                                       BandMatcher::shipped());
     return classifier;
 }
 
@@ -103,11 +114,25 @@ Classification Classifier::classify(const PhotometricInput& input) const {
     if (!hasClassifiableBands(input)) {
         flags |= bit(ClassificationFlag::NoUsableBand);
     }
-    const double abs_j = input.j_mag - modulus;
-    Classification result =
-        classifyAbsolute(input.g_mag - modulus, input.bp_mag - input.rp_mag, input.g_mag - input.rp_mag,
-                         abs_j, input.j_mag - input.ks_mag, input.w1_mag - input.w2_mag,
-                         input.v_mag - modulus, input.v_mag - input.ks_mag);
+    AbsolutePhotometry photometry;
+    photometry.abs_g_mag = input.g_mag - modulus;
+    photometry.bp_rp_mag = input.bp_mag - input.rp_mag;
+    photometry.g_rp_mag = input.g_mag - input.rp_mag;
+    photometry.w1_w2_mag = input.w1_mag - input.w2_mag;
+    BandMatchInput& bands = photometry.bands;
+    const auto set = [&](MatchBand band, double apparent_mag, double error_mag) {
+        bands[band] = apparent_mag - modulus;
+        bands.error_mag[static_cast<std::size_t>(band)] = error_mag;
+    };
+    set(MatchBand::B, input.b_mag, input.b_error_mag);
+    set(MatchBand::V, input.v_mag, input.v_error_mag);
+    set(MatchBand::J, input.j_mag, input.j_error_mag);
+    set(MatchBand::H, input.h_mag, input.h_error_mag);
+    set(MatchBand::Ks, input.ks_mag, input.ks_error_mag);
+    set(MatchBand::W1, input.w1_mag, input.w1_error_mag);
+    set(MatchBand::W2, input.w2_mag, input.w2_error_mag);
+    bands.modulus_error_mag = std::isnan(modulus_error) ? 0.0 : modulus_error;
+    Classification result = classifyAbsolute(photometry);
     result.abs_g_error_mag = std::isnan(result.abs_g_mag) ? kNaN : modulus_error;
     result.flags |= flags;
     return result;
@@ -116,8 +141,20 @@ Classification Classifier::classify(const PhotometricInput& input) const {
 Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag,
                                             double abs_j_mag, double j_ks_mag, double w1_w2_mag,
                                             double abs_v_mag, double v_ks_mag) const {
-    Classification result =
-        classOf(abs_g_mag, bp_rp_mag, g_rp_mag, abs_j_mag, j_ks_mag, w1_w2_mag, abs_v_mag, v_ks_mag);
+    AbsolutePhotometry photometry;
+    photometry.abs_g_mag = abs_g_mag;
+    photometry.bp_rp_mag = bp_rp_mag;
+    photometry.g_rp_mag = g_rp_mag;
+    photometry.w1_w2_mag = w1_w2_mag;
+    photometry.bands[MatchBand::J] = abs_j_mag;
+    photometry.bands[MatchBand::V] = abs_v_mag;
+    const double abs_ks_from_j = abs_j_mag - j_ks_mag;
+    photometry.bands[MatchBand::Ks] = std::isnan(abs_ks_from_j) ? abs_v_mag - v_ks_mag : abs_ks_from_j;
+    return classifyAbsolute(photometry);
+}
+
+Classification Classifier::classifyAbsolute(const AbsolutePhotometry& photometry) const {
+    Classification result = classOf(photometry);
     if (result.stellar_class == StellarClass::WhiteDwarf && !std::isnan(result.bp_rp_mag)) {
         // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
         // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
@@ -128,7 +165,8 @@ Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, 
         if (!parameters.inside_grid) {
             result.flags |= bit(ClassificationFlag::OutsideLocus);
         }
-    } else if (result.stellar_class != StellarClass::Evolved && !std::isnan(result.spectral_code)) {
+    } else if (result.stellar_class != StellarClass::Evolved && !std::isnan(result.spectral_code) &&
+               !hasFlag(result.flags, ClassificationFlag::BandMatch)) {
         result.teff_k = locus_.valueAtCode(LocusQuantity::TeffK, result.spectral_code);
         result.mass_msun = locus_.valueAtCode(LocusQuantity::MassMsun, result.spectral_code);
     }
@@ -136,40 +174,115 @@ Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, 
 }
 
 Classification Classifier::classifyClassOnly(double abs_g_mag, double bp_rp_mag) const {
-    return classOf(abs_g_mag, bp_rp_mag, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN);
+    AbsolutePhotometry photometry;
+    photometry.abs_g_mag = abs_g_mag;
+    photometry.bp_rp_mag = bp_rp_mag;
+    return classOf(photometry);
 }
 
-Classification Classifier::classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
-                                   double j_ks_mag, double w1_w2_mag, double abs_v_mag,
-                                   double v_ks_mag) const {
+Classification Classifier::classOf(const AbsolutePhotometry& photometry) const {
     Classification result;
+    const double abs_g_mag = photometry.abs_g_mag;
+    const double bp_rp_mag = photometry.bp_rp_mag;
+    const double abs_j_mag = photometry.bands[MatchBand::J];
+    const double j_ks_mag = abs_j_mag - photometry.bands[MatchBand::Ks];
     result.abs_g_mag = abs_g_mag;
     result.bp_rp_mag = bp_rp_mag;
-    result.g_rp_mag = g_rp_mag;
+    result.g_rp_mag = photometry.g_rp_mag;
     result.j_ks_mag = j_ks_mag;
-    // Without BP-RP, Johnson V-Ks is the optical colour when there is one (step 6).
-    const bool johnson = std::isnan(bp_rp_mag) && classifyWithJohnsonColour(result, abs_v_mag, v_ks_mag);
     if (std::isnan(abs_g_mag)) {
         result.flags |= bit(ClassificationFlag::NoAbsoluteMagnitude);
-        if (!johnson) {
-            // Without G or V-Ks nothing else can name the object: M_J alone is used as the last resort.
-            classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag, true);
-            return result;
-        }
-    } else if (!johnson) {
-        if (std::isnan(bp_rp_mag)) {
-            classifyWithoutColour(result, abs_j_mag);
-        } else {
-            classifyWithColour(result);
-        }
+    }
+    if (usesBandMatch(photometry)) {
+        classifyWithBandMatch(result, photometry.bands);
+        return result;
+    }
+    if (std::isnan(abs_g_mag)) {
+        return result; // without G and without bands for a match (one band of B, V, H, Ks, W1, W2 at most)
+    }
+    if (std::isnan(bp_rp_mag)) {
+        classifyWithoutColour(result, abs_j_mag);
+    } else {
+        classifyWithColour(result);
     }
     const bool late = result.spectral_code >= 70.0 || abs_g_mag > settings_.late_type_abs_g_mag ||
                       (std::isnan(bp_rp_mag) && result.stellar_class == StellarClass::Unclassified);
     if (late && result.stellar_class != StellarClass::WhiteDwarf &&
         result.stellar_class != StellarClass::Evolved) {
-        classifyNearInfrared(result, abs_j_mag, j_ks_mag, w1_w2_mag, false);
+        classifyNearInfrared(result, abs_j_mag, j_ks_mag, photometry.w1_w2_mag);
     }
     return result;
+}
+
+bool Classifier::usesBandMatch(const AbsolutePhotometry& photometry) {
+    const BandMatchInput& bands = photometry.bands;
+    const bool johnson = !std::isnan(bands[MatchBand::B]) || !std::isnan(bands[MatchBand::V]);
+    return std::isnan(photometry.bp_rp_mag) && (std::isnan(photometry.abs_g_mag) || johnson) &&
+           (bands.bandCount() >= 2 || !std::isnan(bands[MatchBand::J]));
+}
+
+void Classifier::classifyWithBandMatch(Classification& result, const BandMatchInput& bands) const {
+    const double abs_v_mag = bands[MatchBand::V];
+    if (decideFromJohnsonColour(result, abs_v_mag, abs_v_mag - bands[MatchBand::Ks])) {
+        return;
+    }
+    const auto acceptable = [&](const BandMatchResult& match, int band_count) {
+        return match.chi_squared <= settings_.max_match_chi_squared_per_band * band_count;
+    };
+    const int band_count = bands.bandCount();
+    BandMatchResult match = band_matcher_.match(bands);
+    if (!acceptable(match, band_count) && band_count >= 3) {
+        // Bands may disagree with the rest for reasons no relation describes: an upper limit quoted as a
+        // magnitude, a variable, or a wrong cross-match that brings a whole survey's bands from another
+        // source. Try the match without each band, and without each survey (Johnson B V; 2MASS J H Ks;
+        // WISE W1 W2), keeping at least two bands; the acceptable one with the smallest chi^2 per band wins.
+        static constexpr std::array<std::uint8_t, 3> kSurveys = {(1u << 0) | (1u << 1),
+                                                                 (1u << 2) | (1u << 3) | (1u << 4),
+                                                                 (1u << 5) | (1u << 6)}; // MatchBand bits
+        std::vector<std::uint8_t> left_out;
+        for (std::size_t b = 0; b < kMatchBandCount; ++b) {
+            left_out.push_back(static_cast<std::uint8_t>(1u << b));
+        }
+        left_out.insert(left_out.end(), kSurveys.begin(), kSurveys.end());
+        double best_reduced_chi_squared = std::numeric_limits<double>::infinity();
+        for (const std::uint8_t mask : left_out) {
+            BandMatchInput without = bands;
+            for (std::size_t b = 0; b < kMatchBandCount; ++b) {
+                if ((mask >> b) & 1u) {
+                    without.abs_mag[b] = kNaN;
+                }
+            }
+            const int remaining = without.bandCount();
+            if (remaining == band_count || remaining < 2) {
+                continue;
+            }
+            const BandMatchResult candidate = band_matcher_.match(without);
+            if (acceptable(candidate, remaining) &&
+                candidate.chi_squared / remaining < best_reduced_chi_squared) {
+                best_reduced_chi_squared = candidate.chi_squared / remaining;
+                match = candidate;
+                result.flags |= bit(ClassificationFlag::BandLeftOut);
+            }
+        }
+    }
+    if (!acceptable(match, band_count) && !hasFlag(result.flags, ClassificationFlag::BandLeftOut)) {
+        result.flags |= bit(ClassificationFlag::OutsideLocus);
+        return;
+    }
+    result.flags |= bit(ClassificationFlag::BandMatch);
+    const bool johnson = !std::isnan(bands[MatchBand::B]) || !std::isnan(abs_v_mag);
+    result.flags |= johnson ? bit(ClassificationFlag::JohnsonColour) : bit(ClassificationFlag::NearInfrared);
+    result.match_chi_squared = match.chi_squared;
+    result.code_low = match.code_low;
+    result.code_high = match.code_high;
+    if (const double locus_abs_v = locus_.valueAtCode(LocusQuantity::AbsVMag, match.spectral_code);
+        !std::isnan(abs_v_mag - locus_abs_v)) {
+        result.flags |= mainSequenceOffsetFlags(abs_v_mag - locus_abs_v);
+    }
+    setDwarf(result, match.spectral_code);
+    // Teff and mass from the unrounded minimum: half-subtype steps would hide errors of a few hundredths.
+    result.teff_k = locus_.valueAtCode(LocusQuantity::TeffK, match.grid_code);
+    result.mass_msun = locus_.valueAtCode(LocusQuantity::MassMsun, match.grid_code);
 }
 
 void Classifier::setDwarf(Classification& result, double spectral_code) const {
@@ -236,30 +349,29 @@ std::uint16_t Classifier::mainSequenceOffsetFlags(double offset_mag) const {
     return offset_mag > settings_.subluminous_offset_mag ? bit(ClassificationFlag::BelowLocus) : 0;
 }
 
-bool Classifier::classifyWithJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const {
+bool Classifier::decideFromJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const {
     const auto [blue_end, red_end] = locus_v_ks_range_mag_;
     if (std::isnan(abs_v_mag) || !(v_ks_mag <= red_end)) {
-        return false; // redder than the locus's last V-Ks (L4V): left to the near infrared
+        return false; // no V-Ks, or redder than the locus's last V-Ks (L4V): a dwarf, for the match to type
     }
     const double colour_code = locus_.codeAtValue(LocusQuantity::VKsMag, std::max(v_ks_mag, blue_end));
     const double offset_mag = abs_v_mag - locus_.valueAtCode(LocusQuantity::AbsVMag, colour_code);
-    result.flags |= bit(ClassificationFlag::JohnsonColour);
     if (offset_mag > settings_.white_dwarf_v_offset_mag) {
+        result.flags |= bit(ClassificationFlag::JohnsonColour);
         result.stellar_class = StellarClass::WhiteDwarf;
         return true;
     }
     if (v_ks_mag < blue_end) {
-        result.flags |= bit(ClassificationFlag::OutsideLocus); // bluer than O9V and not a white dwarf
-        return true;
+        result.flags |= bit(ClassificationFlag::JohnsonColour) | bit(ClassificationFlag::OutsideLocus);
+        return true; // bluer than O9V and not a white dwarf
     }
     if (offset_mag < -evolvedOffsetMag(v_ks_mag > evolved_red_v_ks_mag_)) {
+        result.flags |= bit(ClassificationFlag::JohnsonColour);
         result.stellar_class = StellarClass::Evolved;
         result.spectral_code = colour_code; // the dwarf type of the same colour
         return true;
     }
-    result.flags |= mainSequenceOffsetFlags(offset_mag);
-    setDwarf(result, colour_code);
-    return true;
+    return false;
 }
 
 void Classifier::classifyWithoutColour(Classification& result, double abs_j_mag) const {
@@ -294,10 +406,11 @@ void Classifier::classifyWithoutColour(Classification& result, double abs_j_mag)
     setDwarf(result, code);
 }
 
-bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
-                                      double w1_w2_mag, bool magnitude_only) const {
+void Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
+                                      double w1_w2_mag) const {
     if (std::isnan(abs_j_mag) || std::isnan(j_ks_mag)) {
-        return classifyMidInfrared(result, abs_j_mag, w1_w2_mag, magnitude_only);
+        classifyMidInfrared(result, abs_j_mag, w1_w2_mag);
+        return;
     }
     // Nearest locus point in the scaled (J-Ks, M_J) plane; equal distances go to the earlier subtype.
     // Walking outward from the object's M_J, a point whose M_J difference alone is farther than the best
@@ -329,25 +442,17 @@ bool Classifier::classifyNearInfrared(Classification& result, double abs_j_mag, 
     for (auto brighter = split; brighter != near_infrared_locus_.begin() && consider(*(brighter - 1));) {
         --brighter;
     }
-    if (acceptInfraredMatch(result, best_distance_squared, best_code)) {
-        return true;
-    }
-    // Without G, an object outside the J-Ks locus still gets the mid-infrared (or M_J-only) match.
-    return magnitude_only && classifyMidInfrared(result, abs_j_mag, w1_w2_mag, true);
+    acceptInfraredMatch(result, best_distance_squared, best_code);
 }
 
-bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
-                                     bool magnitude_only) const {
-    // Objects without J-Ks, typically late T and Y dwarfs that 2MASS did not see: the nearest locus point
-    // in the scaled (W1-W2, M_J) plane, in W1-W2 alone without J (the colour rises steadily from the late
-    // M dwarfs to Y4, Pecaut & Mamajek table), or, when asked, in M_J alone without W1-W2 (M_J too rises
-    // steadily through the T and Y dwarfs). W1-W2 scaled by mir_colour_scale_mag; the J-Ks path's M_J scale
-    // and distance limit.
-    const bool with_colour = !std::isnan(w1_w2_mag);
-    const bool with_j = !std::isnan(abs_j_mag);
-    if (!with_colour && !(magnitude_only && with_j)) {
-        return false;
+void Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag) const {
+    // Late objects with G but without J-Ks: the nearest locus point in the scaled (W1-W2, M_J) plane, or in
+    // W1-W2 alone without J (the colour rises steadily from the late M dwarfs to Y4, Pecaut & Mamajek
+    // table). W1-W2 scaled by mir_colour_scale_mag; the J-Ks path's M_J scale and distance limit.
+    if (std::isnan(w1_w2_mag)) {
+        return;
     }
+    const bool with_j = !std::isnan(abs_j_mag);
     const double y = abs_j_mag / settings_.nir_magnitude_scale_mag;
     const double x = w1_w2_mag / settings_.mir_colour_scale_mag;
     double best_distance_squared = std::numeric_limits<double>::infinity();
@@ -356,7 +461,7 @@ bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, d
         if (with_j && std::isnan(point.scaled_abs_j)) {
             continue;
         }
-        const double dx = with_colour ? point.scaled_w1_w2 - x : 0.0;
+        const double dx = point.scaled_w1_w2 - x;
         const double dy = with_j ? point.scaled_abs_j - y : 0.0;
         const double distance_squared = dx * dx + dy * dy;
         if (distance_squared < best_distance_squared) { // ties go to the earlier subtype (points ascend)
@@ -364,18 +469,17 @@ bool Classifier::classifyMidInfrared(Classification& result, double abs_j_mag, d
             best_code = point.spectral_code;
         }
     }
-    return acceptInfraredMatch(result, best_distance_squared, best_code);
+    acceptInfraredMatch(result, best_distance_squared, best_code);
 }
 
-bool Classifier::acceptInfraredMatch(Classification& result, double distance_squared,
+void Classifier::acceptInfraredMatch(Classification& result, double distance_squared,
                                      double spectral_code) const {
     if (!(distance_squared <= settings_.nir_max_distance * settings_.nir_max_distance)) {
-        return false;
+        return;
     }
     result.flags |= bit(ClassificationFlag::NearInfrared);
     result.flags &= static_cast<std::uint16_t>(~bit(ClassificationFlag::OutsideLocus));
     setDwarf(result, spectral_code);
-    return true;
 }
 
 } // namespace starcensus::photometry

@@ -6,7 +6,7 @@
 // tabulates it once for the Monte Carlo, where a lookup costs a few nanoseconds.
 //
 // Regions, in the order they are decided (thresholds in ClassifierSettings):
-//  1. No M_G (no G, or no valid distance) and no near infrared: unclassified, NoAbsoluteMagnitude.
+//  1. No M_G (no G, or no valid distance) and no bands for step 6: unclassified, NoAbsoluteMagnitude.
 //  2. White dwarf: BP-RP <= white_dwarf_max_bp_rp_mag and M_G fainter than WhiteDwarfBoundary
 //     (midway between the locus and the log g 7.0 DA/DB cooling sequences).
 //  3. Spectral code: from BP-RP on the locus; where BP-RP saturates (redder than
@@ -20,14 +20,21 @@
 //     of the code's letter.
 //  5. Late objects (code L0 or later, M_G fainter than late_type_abs_g_mag, or no optical colour) with
 //     M_J and J-Ks: the nearest point of the M/L/T/Y locus in (J-Ks, M_J), flagged NearInfrared.
-//  6. Without BP-RP but with Johnson V and 2MASS Ks (bright stars that saturate Gaia, compilations
-//     without Gaia colours): the same regions in (V-Ks, M_V) against the locus's V-Ks and M_V, flagged
-//     JohnsonColour: code from V-Ks, evolved / binary band / below the locus by the M_V offset (the red
-//     evolved threshold at the locus V-Ks of evolved_red_bp_rp_mag), and a white dwarf more than
-//     white_dwarf_v_offset_mag below the locus. Late codes then take step 5.
-//  7. Without BP-RP: the code from M_G alone (flag NoColour, lower confidence); if G-RP is present and
-//     more than g_rp_tolerance_mag bluer than the locus G-RP at that code, unclassified, OutsideLocus.
+//  6. Without BP-RP and either without G or with Johnson B or V (bright stars that saturate Gaia,
+//     compilations without Gaia colours, infrared-only brown dwarfs), when two of B, V, J, H, Ks, W1, W2
+//     (or J alone) are present: with V and Ks, the white-dwarf and evolved decisions of (V-Ks, M_V) against
+//     the locus's V-Ks and M_V (a white dwarf more than white_dwarf_v_offset_mag below the locus, evolved
+//     by the M_V offset, the red evolved threshold at the locus V-Ks of evolved_red_bp_rp_mag, bluer than
+//     the locus: unclassified). Otherwise the dwarf code is the best match over every band present
+//     (photometry/BandMatch.h; flag BandMatch, with JohnsonColour when B or V took part and NearInfrared
+//     when only J, H, Ks, W1, W2 did); binary band / below the locus by the M_V offset at that code. A
+//     match whose chi^2 exceeds max_match_chi_squared_per_band per band, also after leaving out one band or
+//     one survey's bands (flag BandLeftOut), is unclassified (OutsideLocus).
+//  7. Without BP-RP, with G and without Johnson bands: the code from M_G alone (flag NoColour, lower
+//     confidence); if G-RP is present and more than g_rp_tolerance_mag bluer than the locus G-RP at that
+//     code, unclassified, OutsideLocus.
 //     Fainter than the locus's faintest M_G (L8V) and red in G-RP or G-J: T dwarf (OutsideLocus).
+#include "photometry/BandMatch.h"
 #include "photometry/DwarfLocus.h"
 #include "photometry/StellarClass.h"
 #include "photometry/WhiteDwarfSequence.h"
@@ -51,7 +58,9 @@ enum class ClassificationFlag : std::uint16_t {
     LowParallaxSnr = 1u << 6,      // parallax / error below min_parallax_snr
     NoUsableBand = 1u << 7,        // none of G, J, W1-W2: nothing the classifier can place
     LiteratureType = 1u << 8,      // class and code from the catalogue's spectral type (census, not here)
-    JohnsonColour = 1u << 9,       // class and code from M_V and V-Ks (no BP-RP)
+    JohnsonColour = 1u << 9,       // class or code from Johnson B/V with other bands (no BP-RP)
+    BandMatch = 1u << 10,          // code from the best match over B, V, J, H, Ks, W1, W2 (no BP-RP)
+    BandLeftOut = 1u << 11,        // the match left out the one band that disagreed with the rest
 };
 constexpr std::uint16_t flagBit(ClassificationFlag flag) {
     return static_cast<std::uint16_t>(flag);
@@ -104,6 +113,9 @@ struct ClassifierSettings {
     /// table; log g 7.0-9.0, 1500-150000 K) lies 8.1 mag or more below it in V-Ks (measured over the
     /// table's V and 2MASS Ks); hot subdwarfs (~6-7 mag below, from memory) stay above.
     double white_dwarf_v_offset_mag = 7.5;
+    /// Best matches (step 6) worse than this chi^2 per band present are unclassified: an average miss of
+    /// 3 sigma per band (common practice, no source).
+    double max_match_chi_squared_per_band = 9.0;
     /// Parallax signal-to-noise below which LowParallaxSnr is set.
     double min_parallax_snr = 5.0;
     WhiteDwarfBoundarySettings white_dwarf_boundary;
@@ -119,6 +131,16 @@ struct PhotometricInput {
     double v_mag = std::numeric_limits<double>::quiet_NaN();  // Johnson V
     double w1_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W1
     double w2_mag = std::numeric_limits<double>::quiet_NaN(); // WISE W2
+    double b_mag = std::numeric_limits<double>::quiet_NaN();  // Johnson B
+    double h_mag = std::numeric_limits<double>::quiet_NaN();  // 2MASS H
+    /// Errors of the bands of the best match (step 6), mag; NaN = not quoted.
+    double b_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double v_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double j_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double h_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double ks_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double w1_error_mag = std::numeric_limits<double>::quiet_NaN();
+    double w2_error_mag = std::numeric_limits<double>::quiet_NaN();
     /// Used when not NaN; otherwise the distance modulus comes from the parallax.
     double distance_modulus_mag = std::numeric_limits<double>::quiet_NaN();
     double parallax_mas = std::numeric_limits<double>::quiet_NaN();
@@ -128,8 +150,8 @@ struct PhotometricInput {
 /// The photometry and parallax of a catalogue row (distance from the parallax).
 PhotometricInput photometricInput(const CatalogRow& row);
 
-/// True when the input has a band the classifier can place: G, J, W1 with W2, or V with Ks. Without one the
-/// classification is flagged NoUsableBand (the census's "no photometry").
+/// True when the input has a band the classifier can place: G, J, or two of B, V, H, Ks, W1, W2. Without one
+/// the classification is flagged NoUsableBand (the census's "no photometry").
 bool hasClassifiableBands(const PhotometricInput& input);
 
 struct AbsoluteMagnitude {
@@ -152,7 +174,21 @@ struct Classification {
     double bp_rp_mag = std::numeric_limits<double>::quiet_NaN();
     double g_rp_mag = std::numeric_limits<double>::quiet_NaN();
     double j_ks_mag = std::numeric_limits<double>::quiet_NaN();
+    /// The best match's chi^2 and its code interval (chi^2 <= minimum + 1) where it named the code (flag
+    /// BandMatch); NaN otherwise.
+    double match_chi_squared = std::numeric_limits<double>::quiet_NaN();
+    double code_low = std::numeric_limits<double>::quiet_NaN();
+    double code_high = std::numeric_limits<double>::quiet_NaN();
     std::uint16_t flags = 0;
+};
+
+/// Absolute photometry of one object for Classifier::classifyAbsolute(); NaN = missing.
+struct AbsolutePhotometry {
+    double abs_g_mag = std::numeric_limits<double>::quiet_NaN();
+    double bp_rp_mag = std::numeric_limits<double>::quiet_NaN();
+    double g_rp_mag = std::numeric_limits<double>::quiet_NaN();
+    double w1_w2_mag = std::numeric_limits<double>::quiet_NaN(); // the mid-infrared path's colour
+    BandMatchInput bands; // absolute B, V, J, H, Ks, W1, W2, their errors, the modulus error
 };
 
 /// The census category of a classification: its class and code, or for an unclassified object the
@@ -162,7 +198,7 @@ Category censusCategory(const Classification& result);
 class Classifier {
   public:
     Classifier(const DwarfLocus& locus, const WhiteDwarfSequence& white_dwarfs,
-               ClassifierSettings settings = {});
+               const BandMatcher& band_matcher, ClassifierSettings settings = {});
     /// On the shipped tables with default settings, built once.
     static const Classifier& shipped();
 
@@ -171,7 +207,10 @@ class Classifier {
 
     /// From apparent magnitudes and a distance (modulus or parallax).
     Classification classify(const PhotometricInput& input) const;
-    /// From absolute M_G, colours, near and mid infrared, Johnson M_V and V-Ks (any may be NaN).
+    /// From absolute magnitudes and colours (any may be NaN).
+    Classification classifyAbsolute(const AbsolutePhotometry& photometry) const;
+    /// The same from absolute M_G, colours, near and mid infrared, Johnson M_V and V-Ks: M_Ks is
+    /// M_J - (J-Ks), or without it M_V - (V-Ks); errors unknown.
     Classification classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag = kNaN,
                                     double abs_j_mag = kNaN, double j_ks_mag = kNaN, double w1_w2_mag = kNaN,
                                     double abs_v_mag = kNaN, double v_ks_mag = kNaN) const;
@@ -182,21 +221,22 @@ class Classifier {
   private:
     static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
     /// Class, subtype code and flags; Teff and mass are added by classifyAbsolute().
-    Classification classOf(double abs_g_mag, double bp_rp_mag, double g_rp_mag, double abs_j_mag,
-                           double j_ks_mag, double w1_w2_mag, double abs_v_mag, double v_ks_mag) const;
-    /// Step 6 (Johnson V-Ks, M_V); false when either is NaN or V-Ks lies outside the locus's range.
-    bool classifyWithJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const;
+    Classification classOf(const AbsolutePhotometry& photometry) const;
+    /// Step 6 applies: no BP-RP, G absent or a Johnson band present, and bands for a match.
+    static bool usesBandMatch(const AbsolutePhotometry& photometry);
+    /// Step 6.
+    void classifyWithBandMatch(Classification& result, const BandMatchInput& bands) const;
+    /// Step 6's white-dwarf and evolved decisions from (V-Ks, M_V); true when one was made (or the colour is
+    /// bluer than the locus), false for a dwarf or when V or Ks is missing or V-Ks is redder than the locus.
+    bool decideFromJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const;
     void classifyWithColour(Classification& result) const;
     void classifyWithoutColour(Classification& result, double abs_j_mag) const;
-    /// The J-Ks path, or without J-Ks the mid-infrared one. magnitude_only (objects without G, which nothing
-    /// else can name) also tries the mid-infrared path when the J-Ks match fails, and lets it fall back to
-    /// M_J alone.
-    bool classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag, double w1_w2_mag,
-                              bool magnitude_only) const;
-    bool classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag,
-                             bool magnitude_only) const;
+    /// Step 5: the J-Ks path, or without J-Ks the mid-infrared one.
+    void classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
+                              double w1_w2_mag) const;
+    void classifyMidInfrared(Classification& result, double abs_j_mag, double w1_w2_mag) const;
     /// The infrared paths' verdict: the nearest point's code if within nir_max_distance (scaled units).
-    bool acceptInfraredMatch(Classification& result, double distance_squared, double spectral_code) const;
+    void acceptInfraredMatch(Classification& result, double distance_squared, double spectral_code) const;
     void setDwarf(Classification& result, double spectral_code) const;
     /// How far above the locus (mag) an object of this colour must lie to be evolved: the BP-RP and the
     /// V-Ks paths share the rule, redder than about M0V the larger threshold (ClassifierSettings).
@@ -206,6 +246,7 @@ class Classifier {
 
     const DwarfLocus& locus_;
     const WhiteDwarfSequence& white_dwarfs_;
+    const BandMatcher& band_matcher_;
     ClassifierSettings settings_;
     WhiteDwarfBoundary white_dwarf_boundary_;
     std::array<double, 2> locus_bp_rp_range_mag_;

@@ -392,13 +392,15 @@ TEST_CASE("the classifier gives white dwarfs a Teff and a mass") {
     CHECK(sirius_b.mass_msun < 1.2);
 }
 
-TEST_CASE("Y dwarfs classify as Y from WISE W1-W2 and M_J (MKO) without 2MASS") {
+TEST_CASE("Y dwarfs classify as Y from WISE W1, W2 and M_J (MKO) without 2MASS") {
     // The 23 Y dwarfs of the Kirkpatrick et al. 2019 (ApJS 240, 19) compilation: parallaxes, MKO J where
-    // measured ("-" where not), WISE W1 and W2 (W1 is mostly an upper limit: the fainter W1 gives a redder
-    // W1-W2, on the Y side of the locus either way). No Gaia or 2MASS photometry, so only the
-    // mid-infrared path can classify them. Measured: 17 Y, 5 T, 1 unclassified (74%): the T ones are Y0
-    // dwarfs with M_J 19.4-19.9 and W1-W2 <= 3.6, on the T9.5V side of the locus's T9.5V/Y0V boundary
-    // (M_J 19.75/20.15). The target of 80% needs published M_W2 relations (open issue, the real sky).
+    // measured ("-" where not), WISE W1 and W2 (W1 is mostly an upper limit, given here as the magnitude a
+    // catalogue would hold). No Gaia or 2MASS photometry: the best match over J, W1, W2 (BandMatch.h). The
+    // issue asks for >= 80% Y. Not an independent check: the Y-dwarf relations are the locus's M_J and
+    // W1-W2 (which its source took from Kirkpatrick et al. 2019) and M_W2 recalled from Kirkpatrick et al.
+    // 2019/2021 (from memory), fitted to samples that include these objects. The independent side is in
+    // the Best et al. 2021 test below: its T8-T9.5 dwarfs must stay T. Measured: 19 Y, 4 T (Y0 dwarfs with
+    // M_W2 14.5-14.6 and M_J 19.7-20.1, on the T9.5 side of the relations; one overluminous >=Y1).
     const Classifier& classifier = Classifier::shipped();
     int rows = 0, y_dwarfs = 0;
     std::map<std::string, int> assigned;
@@ -421,32 +423,56 @@ TEST_CASE("Y dwarfs classify as Y from WISE W1-W2 and M_J (MKO) without 2MASS") 
     }
     MESSAGE("Kirkpatrick et al. 2019 Y dwarfs: " << counts.str());
     CHECK(rows == 23);
-    CHECK(y_dwarfs >= 17);
-    CHECK(assigned["T"] + y_dwarfs >= 22); // the rest at least T
+    CHECK(y_dwarfs >= 0.8 * rows);
+    CHECK(assigned["T"] + y_dwarfs == rows); // the rest T
 }
 
 TEST_CASE("ultracool dwarfs of Best et al. 2021 classify from the bands each row has") {
     // Best, Liu, Magnier & Dupuy 2021 (AJ 161, 42) ultracool-dwarf compilation (columns copied to
-    // tests/reference/): parallaxes, Gaia DR2 G (40 rows), 2MASS J/Ks, WISE W1/W2, and literature types.
-    // The reference type is the optical one for M and L dwarfs and the near-infrared one otherwise (the
-    // usual standards of each range; common practice, no source). The issue asks for letter agreement
+    // tests/reference/; the two copies hold the same 356 rows in the same order): parallaxes, Gaia DR2 G
+    // (40 rows), 2MASS J/H/Ks, MKO J/K, WISE W1/W2 with their errors, and literature types. 2MASS J and Ks
+    // where the sheet has them, otherwise MKO J and K, as the census's j and ks fields would hold whichever
+    // a catalogue lists (late-T MKO and 2MASS J differ by a few tenths, inside the relations' scatter; from
+    // memory). The reference type is the optical one for M and L dwarfs and the near-infrared one otherwise
+    // (the usual standards of each range; common practice, no source). The issue asks for letter agreement
     // >= 0.9, median |subtype difference| <= 1.5 and every member of the 25 pc volume-limited sample
-    // (Best20b_vollim_sample = Y) classified.
+    // (Best20b_vollim_sample = Y) classified. Rows without G (most) take the best match (BandMatch.h).
     const Classifier& classifier = Classifier::shipped();
+    const auto rows = referenceRows("ultracool_best2021_photometry.csv",
+                                    "name,spt_opt,spt_ir,plx_formula,plxerr_formula,G_DR2,J_2MASS,"
+                                    "Ks_2MASS,W1,W2,Best20b_vollim_sample");
+    const auto photometry = referenceRows(
+        "ultracool_best2021_inspect.csv",
+        "name,spt_opt,spt_ir,g_P1,gerr_P1,G_BP_DR2,G_BPerr_DR2,G_DR2,Gerr_DR2,G_RP_DR2,G_RPerr_DR2,J_2MASS,"
+        "Jerr_2MASS,ref_J_2MASS,H_2MASS,Herr_2MASS,Ks_2MASS,Kserr_2MASS,J_MKO,Jerr_MKO,K_MKO,Kerr_MKO,W1,"
+        "W1err,W2,W2err,plx_formula,plxerr_formula,ref_plx_formula,plx_DR2,plxerr_DR2,RUWE_DR2,"
+        "MJ_2MASS_formula,dist_J_2MASS_formula");
+    REQUIRE(rows.size() == photometry.size());
     int compared = 0, agreeing = 0, unclassified = 0, members = 0, members_classified = 0;
+    int late_t = 0, late_t_as_y = 0;
     std::vector<double> subtype_differences;
     std::map<std::string, int> confusion;
-    for (const auto& fields : referenceRows("ultracool_best2021_photometry.csv",
-                                            "name,spt_opt,spt_ir,plx_formula,plxerr_formula,G_DR2,J_2MASS,"
-                                            "Ks_2MASS,W1,W2,Best20b_vollim_sample")) {
+    for (std::size_t i = 0; i < rows.size(); ++i) {
+        const auto& fields = rows[i];
+        const auto& bands = photometry[i];
+        REQUIRE(bands[0] == fields[0]);
+        const auto number = [&](std::size_t column) { return referenceNumber(bands[column]); };
         PhotometricInput input;
         input.parallax_mas = referenceNumber(fields[3]);
         input.parallax_error_mas = referenceNumber(fields[4]);
         input.g_mag = referenceNumber(fields[5]);
-        input.j_mag = referenceNumber(fields[6]);
-        input.ks_mag = referenceNumber(fields[7]);
-        input.w1_mag = referenceNumber(fields[8]);
-        input.w2_mag = referenceNumber(fields[9]);
+        const bool two_mass_j = !std::isnan(number(11));
+        input.j_mag = two_mass_j ? number(11) : number(18);
+        input.j_error_mag = two_mass_j ? number(12) : number(19);
+        input.h_mag = number(14);
+        input.h_error_mag = number(15);
+        const bool two_mass_ks = !std::isnan(number(16));
+        input.ks_mag = two_mass_ks ? number(16) : number(20);
+        input.ks_error_mag = two_mass_ks ? number(17) : number(21);
+        input.w1_mag = number(22);
+        input.w1_error_mag = number(23);
+        input.w2_mag = number(24);
+        input.w2_error_mag = number(25);
         if (!(input.parallax_mas >= 5.0 * input.parallax_error_mas)) {
             continue; // the census leaves these unclassified by design (parallax S/N < 5)
         }
@@ -473,6 +499,10 @@ TEST_CASE("ultracool dwarfs of Best et al. 2021 classify from the bands each row
         ++confusion[std::string(className(reference.stellar_class)) + "->" +
                     std::string(className(c.stellar_class))];
         subtype_differences.push_back(std::abs(c.spectral_code - *reference.spectral_code));
+        if (*reference.spectral_code >= 88.0 && *reference.spectral_code < 90.0) {
+            ++late_t;
+            late_t_as_y += c.stellar_class == StellarClass::Y ? 1 : 0;
+        }
     }
     std::sort(subtype_differences.begin(), subtype_differences.end());
     const double median_difference = subtype_differences[subtype_differences.size() / 2];
@@ -484,11 +514,14 @@ TEST_CASE("ultracool dwarfs of Best et al. 2021 classify from the bands each row
     MESSAGE("Best et al. 2021: " << compared << " compared, letter agreement " << agreement
                                  << ", median |subtype difference| " << median_difference << ", "
                                  << unclassified << " unclassified; volume-limited members classified "
-                                 << members_classified << " of " << members << "; " << table.str());
-    CHECK(agreement >= 0.88);
+                                 << members_classified << " of " << members << "; T8-T9.5 classified Y "
+                                 << late_t_as_y << " of " << late_t << "; " << table.str());
+    CHECK(agreement >= 0.9);
     CHECK(median_difference <= 1.5);
-    // Measured: 139 of 140. The one left, CFBDS J102841.01+565401.9 (T8), has neither 2MASS nor WISE
-    // photometry in the table, only MKO bands, which the census does not read yet.
     CHECK(members == 140);
-    CHECK(members_classified == 139);
+    CHECK(members_classified == members);
+    // The independent side of the Y-dwarf relations (see the Kirkpatrick et al. 2019 test): late T dwarfs
+    // of this sheet that are not Y stay T; a tenth is allowed for the T9.5/Y0 boundary (chosen here).
+    CHECK(late_t > 80);
+    CHECK(late_t_as_y <= 0.1 * late_t);
 }
