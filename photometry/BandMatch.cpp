@@ -77,12 +77,9 @@ BandMatcher::BandMatcher(const DwarfLocus& locus, const UltracoolWiseRelations& 
             abs_mag[index(MatchBand::W2)] = wise_w2.at(code);
         }
         relation_abs_mag_.push_back(abs_mag);
-        const double colour_scatter = code < kFirstMCode   ? settings_.colour_scatter_star_mag
-                                      : code < kFirstLCode ? settings_.colour_scatter_m_mag
-                                                           : settings_.colour_scatter_ultracool_mag;
+        colour_regime_.push_back(code < kFirstMCode ? 0 : code < kFirstLCode ? 1 : 2);
         const double luminosity_scatter =
             code < kFirstYCode ? settings_.luminosity_scatter_mag : settings_.luminosity_scatter_y_mag;
-        colour_variance_mag2_.push_back(colour_scatter * colour_scatter);
         luminosity_variance_mag2_.push_back(luminosity_scatter * luminosity_scatter);
     }
 }
@@ -110,14 +107,22 @@ double BandMatcher::relationAbsMag(MatchBand band, double spectral_code) const {
 
 BandMatchResult BandMatcher::match(const BandMatchInput& input) const {
     BandMatchResult result;
-    std::array<double, kMatchBandCount> band_variance{};
+    // 1 / (sigma_b^2 + sigma_colour^2) per colour regime (O-K, M, L-Y) and band.
+    const std::array<double, 3> colour_scatter = {settings_.colour_scatter_star_mag,
+                                                  settings_.colour_scatter_m_mag,
+                                                  settings_.colour_scatter_ultracool_mag};
+    std::array<std::array<double, kMatchBandCount>, 3> inverse_variance{};
+    std::array<std::size_t, kMatchBandCount> present_bands{};
     int present = 0;
     for (std::size_t b = 0; b < kMatchBandCount; ++b) {
         if (!std::isnan(input.abs_mag[b])) {
-            ++present;
+            present_bands[static_cast<std::size_t>(present++)] = b;
             const double error =
                 std::isnan(input.error_mag[b]) ? settings_.missing_error_mag : input.error_mag[b];
-            band_variance[b] = error * error;
+            for (std::size_t regime = 0; regime < colour_scatter.size(); ++regime) {
+                inverse_variance[regime][b] =
+                    1.0 / (error * error + colour_scatter[regime] * colour_scatter[regime]);
+            }
         }
     }
     if (present == 0) {
@@ -131,17 +136,18 @@ BandMatchResult BandMatcher::match(const BandMatchInput& input) const {
         // r^T C^-1 r = sum r_b^2/d_b - s (sum r_b/d_b)^2 / (1 + s sum 1/d_b).
         double weighted_square = 0.0, weighted_sum = 0.0, weight = 0.0;
         int covered = 0;
-        for (std::size_t b = 0; b < kMatchBandCount; ++b) {
+        for (int k = 0; k < present; ++k) {
+            const std::size_t b = present_bands[static_cast<std::size_t>(k)];
             const double relation = relation_abs_mag_[i][b];
-            if (std::isnan(input.abs_mag[b]) || std::isnan(relation)) {
+            if (std::isnan(relation)) {
                 continue;
             }
             ++covered;
             const double residual = input.abs_mag[b] - relation;
-            const double inverse_variance = 1.0 / (band_variance[b] + colour_variance_mag2_[i]);
-            weighted_square += residual * residual * inverse_variance;
-            weighted_sum += residual * inverse_variance;
-            weight += inverse_variance;
+            const double inverse = inverse_variance[colour_regime_[i]][b];
+            weighted_square += residual * residual * inverse;
+            weighted_sum += residual * inverse;
+            weight += inverse;
         }
         if (covered < std::min(present, 2)) {
             continue; // a colour (two bands) at least, so that no code wins by what it leaves unmodelled

@@ -111,8 +111,8 @@ class BandMatcher {
     BandMatchSettings settings_;
     double first_code_ = 0.0;
     std::vector<std::array<double, kMatchBandCount>> relation_abs_mag_; // per grid code (0.1-subtype steps)
-    std::vector<double> colour_variance_mag2_;                          // per grid code
-    std::vector<double> luminosity_variance_mag2_;                      // per grid code
+    std::vector<std::uint8_t> colour_regime_;      // per grid code: 0 O-K, 1 M, 2 L-Y (BandMatchSettings)
+    std::vector<double> luminosity_variance_mag2_; // per grid code
 };
 
 } // namespace starcensus::photometry
