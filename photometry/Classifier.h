@@ -56,7 +56,7 @@ enum class ClassificationFlag : std::uint16_t {
     BelowLocus = 1u << 4,          // fainter than the locus by more than subluminous_offset_mag
     NearInfrared = 1u << 5,        // class and code from M_J and J-Ks
     LowParallaxSnr = 1u << 6,      // parallax / error below min_parallax_snr
-    NoUsableBand = 1u << 7,        // none of G, J, W1-W2: nothing the classifier can place
+    NoUsableBand = 1u << 7,        // none of G, J, or two of B V H Ks W1 W2: nothing to place
     LiteratureType = 1u << 8,      // class and code from the catalogue's spectral type (census, not here)
     JohnsonColour = 1u << 9,       // class or code from Johnson B/V with other bands (no BP-RP)
     BandMatch = 1u << 10,          // code from the best match over B, V, J, H, Ks, W1, W2 (no BP-RP)

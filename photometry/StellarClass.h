@@ -40,7 +40,7 @@ std::optional<StellarClass> classFromName(std::string_view name);
 /// Why an object has no class. Each reason is a census category of its own, so the counts keep it.
 enum class UnclassifiedReason : std::uint8_t {
     OutsideLoci,    // photometry present, but on no locus or sequence the classifier knows
-    NoPhotometry,   // none of G, J, W1-W2: no band the classifier can place
+    NoPhotometry,   // none of G, J, or two of B, V, H, Ks, W1, W2: no band the classifier can place
     LowParallaxSnr, // parallax / error below the classification threshold (--min-parallax-snr)
 };
 inline constexpr std::size_t kUnclassifiedReasonCount = 3;
