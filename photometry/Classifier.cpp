@@ -230,22 +230,18 @@ void Classifier::classifyWithBandMatch(Classification& result, const BandMatchIn
         return match.chi_squared <= settings_.max_match_chi_squared_per_band * band_count;
     };
     const int band_count = bands.bandCount();
+    BandMatchInput used = bands; // the bands of the match adopted
     BandMatchResult match = band_matcher_.match(bands);
     if (!acceptable(match, band_count) && band_count >= 3) {
         // Bands may disagree with the rest for reasons no relation describes: an upper limit quoted as a
         // magnitude, a variable, or a wrong cross-match that brings a whole survey's bands from another
         // source. Try the match without each band, and without each survey (Johnson B V; 2MASS J H Ks;
         // WISE W1 W2), keeping at least two bands; the acceptable one with the smallest chi^2 per band wins.
-        static constexpr std::array<std::uint8_t, 3> kSurveys = {(1u << 0) | (1u << 1),
-                                                                 (1u << 2) | (1u << 3) | (1u << 4),
-                                                                 (1u << 5) | (1u << 6)}; // MatchBand bits
-        std::vector<std::uint8_t> left_out;
-        for (std::size_t b = 0; b < kMatchBandCount; ++b) {
-            left_out.push_back(static_cast<std::uint8_t>(1u << b));
-        }
-        left_out.insert(left_out.end(), kSurveys.begin(), kSurveys.end());
+        // Masks of MatchBand bits: each band alone, then the three surveys.
+        static constexpr std::array<std::uint8_t, kMatchBandCount + 3> kLeftOut = {
+            1u << 0, 1u << 1, 1u << 2, 1u << 3, 1u << 4, 1u << 5, 1u << 6, 0b0000011, 0b0011100, 0b1100000};
         double best_reduced_chi_squared = std::numeric_limits<double>::infinity();
-        for (const std::uint8_t mask : left_out) {
+        for (const std::uint8_t mask : kLeftOut) {
             BandMatchInput without = bands;
             for (std::size_t b = 0; b < kMatchBandCount; ++b) {
                 if ((mask >> b) & 1u) {
@@ -261,23 +257,25 @@ void Classifier::classifyWithBandMatch(Classification& result, const BandMatchIn
                 candidate.chi_squared / remaining < best_reduced_chi_squared) {
                 best_reduced_chi_squared = candidate.chi_squared / remaining;
                 match = candidate;
+                used = without;
                 result.flags |= bit(ClassificationFlag::BandLeftOut);
             }
         }
     }
-    if (!acceptable(match, band_count) && !hasFlag(result.flags, ClassificationFlag::BandLeftOut)) {
+    if (!acceptable(match, used.bandCount())) {
         result.flags |= bit(ClassificationFlag::OutsideLocus);
         return;
     }
     result.flags |= bit(ClassificationFlag::BandMatch);
-    const bool johnson = !std::isnan(bands[MatchBand::B]) || !std::isnan(abs_v_mag);
+    const double used_abs_v_mag = used[MatchBand::V];
+    const bool johnson = !std::isnan(used[MatchBand::B]) || !std::isnan(used_abs_v_mag);
     result.flags |= johnson ? bit(ClassificationFlag::JohnsonColour) : bit(ClassificationFlag::NearInfrared);
     result.match_chi_squared = match.chi_squared;
     result.code_low = match.code_low;
     result.code_high = match.code_high;
     if (const double locus_abs_v = locus_.valueAtCode(LocusQuantity::AbsVMag, match.spectral_code);
-        !std::isnan(abs_v_mag - locus_abs_v)) {
-        result.flags |= mainSequenceOffsetFlags(abs_v_mag - locus_abs_v);
+        !std::isnan(used_abs_v_mag - locus_abs_v)) {
+        result.flags |= mainSequenceOffsetFlags(used_abs_v_mag - locus_abs_v);
     }
     setDwarf(result, match.spectral_code);
     // Teff and mass from the unrounded minimum: half-subtype steps would hide errors of a few hundredths.
