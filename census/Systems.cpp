@@ -40,8 +40,18 @@ bool usable(const CatalogRow& row) {
            std::isfinite(row.pmra_mas_per_yr) && std::isfinite(row.pmdec_mas_per_yr);
 }
 
+/// What the pair tests read of a row, copied once so the search walks its targets in memory order
+/// instead of fetching a whole CatalogRow per neighbour.
+struct PairInputs {
+    double parallax_mas;
+    double parallax_error_mas;        // as catalogued (NaN or <= 0 when unknown)
+    double scaled_parallax_error_mas; // errorOrZero(parallax_error_mas) * errorScale
+    double pmra_mas_per_yr;
+    double pmdec_mas_per_yr;
+};
+
 /// Error-weighted mean parallax of two rows (mas); the plain mean without errors.
-double pairParallaxMas(const CatalogRow& a, const CatalogRow& b) {
+double pairParallaxMas(const PairInputs& a, const PairInputs& b) {
     const bool weighted = a.parallax_error_mas > 0.0 && b.parallax_error_mas > 0.0;
     if (!weighted) {
         return 0.5 * (a.parallax_mas + b.parallax_mas);
@@ -60,8 +70,14 @@ double errorScale(const CatalogRow& row, const SystemSettings& s) {
     return s.inflate_errors_by_ruwe && row.ruwe > 1.0 ? row.ruwe : 1.0;
 }
 
+PairInputs pairInputs(const CatalogRow& row, const SystemSettings& s) {
+    return {row.parallax_mas, row.parallax_error_mas,
+            errorOrZero(row.parallax_error_mas) * errorScale(row, s), row.pmra_mas_per_yr,
+            row.pmdec_mas_per_yr};
+}
+
 /// The tests of Systems.h on one pair at angle separation_rad; nullopt if it fails one.
-std::optional<SystemPair> candidatePair(const CatalogRow& a, const CatalogRow& b, double separation_rad,
+std::optional<SystemPair> candidatePair(const PairInputs& a, const PairInputs& b, double separation_rad,
                                         const SystemSettings& s) {
     const double parallax_mas = pairParallaxMas(a, b);
     const double distance_pc = 1000.0 / parallax_mas;
@@ -72,8 +88,7 @@ std::optional<SystemPair> candidatePair(const CatalogRow& a, const CatalogRow& b
     const double close_factor =
         separation_rad * kArcsecPerRadian < s.close_pair_arcsec ? s.close_pair_error_factor : 1.0;
     const double parallax_error_mas =
-        close_factor * std::hypot(errorOrZero(a.parallax_error_mas) * errorScale(a, s),
-                                  errorOrZero(b.parallax_error_mas) * errorScale(b, s));
+        close_factor * std::hypot(a.scaled_parallax_error_mas, b.scaled_parallax_error_mas);
     // A radial separation r s at distance d changes the parallax by plx^2 r s / 1000 (mas; s in pc).
     const double depth_mas =
         parallax_mas * parallax_mas * s.radial_to_projected_ratio * projected_pc / 1000.0;
@@ -122,8 +137,9 @@ int chanceCell(const SystemPair& pair) {
 /// Candidate pairs (query row i, target row j) with the target positions `targets`: each unordered pair
 /// once, searched from its member with the larger parallax (ties: the lower index), whose search radius
 /// covers the pair (the pair's mean parallax is not larger). The HEALPix grid is sized for the median
-/// search radius.
-std::vector<SystemPair> searchPairs(std::span<const CatalogRow> rows,
+/// search radius, and coarser where that would give more pixels than 4 per target (which pixels are
+/// visited changes no result: the query is inclusive and every neighbour's angle is tested).
+std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
                                     const std::vector<std::uint32_t>& usable_rows,
                                     const std::vector<UnitVector>& positions,
                                     const std::vector<UnitVector>& targets, const SystemSettings& s) {
@@ -132,7 +148,7 @@ std::vector<SystemPair> searchPairs(std::span<const CatalogRow> rows,
     }
     const double cap_rad = s.max_search_angle_deg * kRadiansPerDegree;
     auto radiusOf = [&](std::uint32_t row) {
-        return std::min(cap_rad, s.max_projected_separation_pc * rows[row].parallax_mas / 1000.0);
+        return std::min(cap_rad, s.max_projected_separation_pc * inputs[row].parallax_mas / 1000.0);
     };
     std::vector<double> radii;
     radii.reserve(usable_rows.size());
@@ -141,33 +157,55 @@ std::vector<SystemPair> searchPairs(std::span<const CatalogRow> rows,
     }
     std::nth_element(radii.begin(), radii.begin() + static_cast<std::ptrdiff_t>(radii.size() / 2),
                      radii.end());
-    const auto grid = detail::neighbourGrid(radii[radii.size() / 2]);
-    std::vector<std::pair<std::int64_t, std::uint32_t>> by_pixel;
-    by_pixel.reserve(usable_rows.size());
-    for (const std::uint32_t row : usable_rows) {
-        const UnitVector& u = targets[row];
-        by_pixel.emplace_back(grid.vec2pix(vec3(u.x, u.y, u.z)), row);
+    auto grid = detail::neighbourGrid(radii[radii.size() / 2]);
+    constexpr std::int64_t kMaxPixelsPerTarget = 4;
+    while (grid.Order() > 0 &&
+           grid.Npix() > kMaxPixelsPerTarget * static_cast<std::int64_t>(usable_rows.size())) {
+        grid = T_Healpix_Base<std::int64_t>(grid.Order() - 1, RING);
     }
-    std::sort(by_pixel.begin(), by_pixel.end());
+    // The targets in pixel order (rows ascending within a pixel), each with what the pair tests read, and
+    // where each pixel's targets start: the inner loop walks memory in order.
+    struct Target {
+        UnitVector position;
+        PairInputs pair_inputs;
+        std::uint32_t row;
+    };
+    std::vector<std::int64_t> pixel_of(usable_rows.size());
+    std::vector<std::uint32_t> first_target(static_cast<std::size_t>(grid.Npix()) + 1, 0);
+    for (std::size_t k = 0; k < usable_rows.size(); ++k) {
+        const UnitVector& u = targets[usable_rows[k]];
+        pixel_of[k] = grid.vec2pix(vec3(u.x, u.y, u.z));
+        ++first_target[static_cast<std::size_t>(pixel_of[k]) + 1];
+    }
+    std::partial_sum(first_target.begin(), first_target.end(), first_target.begin());
+    std::vector<Target> by_pixel(usable_rows.size());
+    {
+        std::vector<std::uint32_t> next(first_target.begin(), first_target.end() - 1);
+        for (std::size_t k = 0; k < usable_rows.size(); ++k) {
+            const std::uint32_t row = usable_rows[k];
+            by_pixel[next[static_cast<std::size_t>(pixel_of[k])]++] = {targets[row], inputs[row], row};
+        }
+    }
     const unsigned workers = resolveThreadCount(s.threads);
     std::vector<std::vector<SystemPair>> found(workers);
     forEachIndex(usable_rows.size(), s.threads, [&](std::size_t k, unsigned worker) {
         const std::uint32_t i = usable_rows[k];
-        const CatalogRow& a = rows[i];
+        const PairInputs& a = inputs[i];
         const double radius_rad = radiusOf(i);
         rangeset<std::int64_t> pixels;
         grid.query_disc_inclusive(detail::toPointing(positions[i]), radius_rad, pixels);
         for (std::size_t r = 0; r < pixels.nranges(); ++r) {
-            auto it = std::lower_bound(by_pixel.begin(), by_pixel.end(),
-                                       std::pair<std::int64_t, std::uint32_t>{pixels.ivbegin(r), 0});
-            for (; it != by_pixel.end() && it->first < pixels.ivend(r); ++it) {
-                const std::uint32_t j = it->second;
-                const CatalogRow& b = rows[j];
+            const Target* end = by_pixel.data() + first_target[static_cast<std::size_t>(pixels.ivend(r))];
+            for (const Target* t =
+                     by_pixel.data() + first_target[static_cast<std::size_t>(pixels.ivbegin(r))];
+                 t != end; ++t) {
+                const std::uint32_t j = t->row;
+                const PairInputs& b = t->pair_inputs;
                 if (j == i || b.parallax_mas > a.parallax_mas ||
                     (b.parallax_mas == a.parallax_mas && j < i)) {
                     continue;
                 }
-                const double separation_rad = detail::separationRadians(positions[i], targets[j]);
+                const double separation_rad = detail::separationRadians(positions[i], t->position);
                 if (separation_rad > radius_rad) {
                     continue;
                 }
@@ -252,15 +290,19 @@ SystemCatalog findSystems(std::span<const CatalogRow> rows, std::span<const doub
             positions[i] = detail::unitVectorOf(rows[i].ra_deg, rows[i].dec_deg);
         }
     }
+    std::vector<PairInputs> pair_inputs(n);
+    for (std::uint32_t i = 0; i < n; ++i) {
+        pair_inputs[i] = pairInputs(rows[i], s);
+    }
     SystemCatalog result;
-    result.pairs = searchPairs(rows, usable_rows, positions, positions, s);
+    result.pairs = searchPairs(pair_inputs, usable_rows, positions, positions, s);
 
     // Shifted skies: +1, -1, +2, -2, ... times sky_shift_deg.
     std::array<double, kChanceCells> shifted_counts{};
     for (int k = 0; k < s.sky_shifts; ++k) {
         const double shift_deg = s.sky_shift_deg * (k / 2 + 1) * (k % 2 == 0 ? 1.0 : -1.0);
         for (const SystemPair& pair :
-             searchPairs(rows, usable_rows, positions, shiftedSky(rows, shift_deg), s)) {
+             searchPairs(pair_inputs, usable_rows, positions, shiftedSky(rows, shift_deg), s)) {
             shifted_counts[static_cast<std::size_t>(chanceCell(pair))] += 1.0;
         }
     }
@@ -334,8 +376,9 @@ SystemCatalog findSystems(std::span<const CatalogRow> rows, std::span<const doub
                 result.flags[member] |= SystemFlagLiteratureMultiple;
             }
             const double angle_rad = angleFromPrimary(member);
-            const double separation_au =
-                angle_rad * 1000.0 / pairParallaxMas(rows[system.primary], rows[member]) * kAuPerPc;
+            const double separation_au = angle_rad * 1000.0 /
+                                         pairParallaxMas(pair_inputs[system.primary], pair_inputs[member]) *
+                                         kAuPerPc;
             if (separation_au > system.widest_separation_au) {
                 system.widest_separation_au = separation_au;
                 system.widest_separation_arcsec = angle_rad * kArcsecPerRadian;
