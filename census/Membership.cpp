@@ -188,11 +188,14 @@ bool insideByHardCut(double parallax_mas, double radius_pc, const MembershipSett
 
 std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
                                         const std::vector<double>& radii_pc,
-                                        const MembershipSettings& settings) {
+                                        const MembershipSettings& settings,
+                                        std::span<const std::uint32_t> only) {
     std::vector<std::int64_t> counts;
+    const std::size_t n = only.empty() ? rows.size() : only.size();
     for (const double radius : radii_pc) {
         std::int64_t inside = 0;
-        for (const auto& row : rows) {
+        for (std::size_t k = 0; k < n; ++k) {
+            const photometry::CatalogRow& row = only.empty() ? rows[k] : rows[only[k]];
             inside += insideByHardCut(row.parallax_mas, radius, settings) ? 1 : 0;
         }
         counts.push_back(inside);

@@ -72,9 +72,11 @@ double membershipProbability(double parallax_mas, double parallax_error_mas, dou
 /// The classic hard cut: corrected parallax > 1000 / radius_pc.
 bool insideByHardCut(double parallax_mas, double radius_pc, const MembershipSettings& settings);
 
-/// Rows inside each radius by the hard cut: the "hard_cut_members" of fractions.json.
+/// Rows inside each radius by the hard cut: the "hard_cut_members" of fractions.json. With `only`, the rows
+/// at those indices alone.
 std::vector<std::int64_t> hardCutCounts(std::span<const photometry::CatalogRow> rows,
                                         const std::vector<double>& radii_pc,
-                                        const MembershipSettings& settings);
+                                        const MembershipSettings& settings,
+                                        std::span<const std::uint32_t> only = {});
 
 } // namespace starcensus::census

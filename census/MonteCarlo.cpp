@@ -61,8 +61,15 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
                                const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier,
                                const photometry::ClassGrid* grid)
+    : PreparedSample(rows, {}, std::move(radii_pc), membership, rules, threads, classifier, grid) {}
+
+PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
+                               std::span<const std::uint32_t> order, std::vector<double> radii_pc,
+                               const MembershipSettings& membership, const RowClassRules& rules,
+                               unsigned threads, const photometry::Classifier* classifier,
+                               const photometry::ClassGrid* grid)
     : radii_pc_(std::move(radii_pc)) {
-    const std::size_t n = rows.size();
+    const std::size_t n = order.empty() ? rows.size() : order.size();
     g_mag_.resize(n);
     g_error_mag_.resize(n);
     colour_mag_.resize(n);
@@ -76,7 +83,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std
     }
     forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
         for (std::size_t s = begin; s < end; ++s) {
-            const photometry::CatalogRow& row = rows[s];
+            const photometry::CatalogRow& row = order.empty() ? rows[s] : rows[order[s]];
             const bool classifiable =
                 row.parallax_mas >= rules.min_parallax_snr_to_classify * row.parallax_error_mas;
             if (classifier != nullptr && usesLiteratureType(row, rules)) {
@@ -138,8 +145,8 @@ double PreparedSample::expectedCount(std::size_t r) const {
 class SampleDrawer {
   public:
     SampleDrawer(const PreparedSample& sample, const photometry::ClassGrid& classes,
-                 const DrawSettings& settings)
-        : sample_(sample), classes_(classes), settings_(settings) {}
+                 const DrawSettings& settings, std::size_t begin, std::size_t end)
+        : sample_(sample), classes_(classes), settings_(settings), begin_(begin), end_(end) {}
 
     DrawTallies run() const {
         const unsigned threads = resolveThreadCount(settings_.threads);
@@ -154,12 +161,14 @@ class SampleDrawer {
         DrawTallies tallies;
         tallies.draws = settings_.draws;
         tallies.radii = radii;
-        tallies.star_classes.assign(sample_.size() * photometry::kClassCount, 0);
+        const std::size_t stars = end_ - begin_;
+        tallies.star_classes.assign(stars * photometry::kClassCount, 0);
         if (settings_.progress != nullptr) {
-            settings_.progress->items_total = static_cast<std::int64_t>(sample_.size()) * settings_.draws;
+            settings_.progress->items_total = static_cast<std::int64_t>(stars) * settings_.draws;
         }
-        forEachBlock(sample_.size(), threads, [&](std::size_t begin, std::size_t end, unsigned t) {
-            drawBlock(begin, end, per_thread[t], certain_per_thread[t], tallies.star_classes);
+        forEachBlock(stars, threads, [&](std::size_t begin, std::size_t end, unsigned t) {
+            drawBlock(begin_ + begin, begin_ + end, per_thread[t], certain_per_thread[t],
+                      tallies.star_classes);
             if (settings_.progress != nullptr) {
                 settings_.progress->items_done.fetch_add(
                     static_cast<std::int64_t>(end - begin) * settings_.draws, std::memory_order_relaxed);
@@ -215,7 +224,8 @@ class SampleDrawer {
                 classes_seen[static_cast<std::size_t>(photometry::classOfCategory(*category))] =
                     static_cast<std::uint32_t>(draws);
                 std::copy(classes_seen.begin(), classes_seen.end(),
-                          star_classes.begin() + static_cast<std::ptrdiff_t>(s * photometry::kClassCount));
+                          star_classes.begin() +
+                              static_cast<std::ptrdiff_t>((s - begin_) * photometry::kClassCount));
                 continue;
             }
             for (int d = 0; d < settings_.draws; ++d) {
@@ -249,7 +259,8 @@ class SampleDrawer {
                 }
             }
             std::copy(classes_seen.begin(), classes_seen.end(),
-                      star_classes.begin() + static_cast<std::ptrdiff_t>(s * photometry::kClassCount));
+                      star_classes.begin() +
+                          static_cast<std::ptrdiff_t>((s - begin_) * photometry::kClassCount));
         }
     }
 
@@ -296,12 +307,24 @@ class SampleDrawer {
     const PreparedSample& sample_;
     const photometry::ClassGrid& classes_;
     const DrawSettings& settings_;
+    std::size_t begin_, end_; // the stars drawn
     detail::FastNormal normal_;
 };
 
 DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
                        const DrawSettings& settings) {
-    return SampleDrawer(sample, classes, settings).run();
+    return drawSample(sample, classes, settings, 0, sample.size());
+}
+
+DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
+                       const DrawSettings& settings, std::size_t begin, std::size_t end) {
+    return SampleDrawer(sample, classes, settings, begin, end).run();
+}
+
+void appendTallies(DrawTallies& into, const DrawTallies& more) {
+    std::transform(into.counts.begin(), into.counts.end(), more.counts.begin(), into.counts.begin(),
+                   std::plus<>());
+    into.star_classes.insert(into.star_classes.end(), more.star_classes.begin(), more.star_classes.end());
 }
 
 } // namespace starcensus::census

@@ -53,6 +53,13 @@ class PreparedSample {
                    const MembershipSettings& membership, const RowClassRules& rules, unsigned threads,
                    const photometry::Classifier* classifier = nullptr,
                    const photometry::ClassGrid* grid = nullptr);
+    /// The same for the rows rows[order[0]], rows[order[1]], ... (star s is rows[order[s]]), without a
+    /// copy of them.
+    PreparedSample(std::span<const photometry::CatalogRow> rows, std::span<const std::uint32_t> order,
+                   std::vector<double> radii_pc, const MembershipSettings& membership,
+                   const RowClassRules& rules, unsigned threads,
+                   const photometry::Classifier* classifier = nullptr,
+                   const photometry::ClassGrid* grid = nullptr);
 
     std::size_t size() const { return g_mag_.size(); }
     const std::vector<double>& radii() const { return radii_pc_; }
@@ -101,5 +108,14 @@ struct DrawTallies {
 
 DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
                        const DrawSettings& settings);
+
+/// The tallies of the sample's stars [begin, end) alone (star_classes holds those stars). Each star draws
+/// from its own stream, so the stars [0, end) drawn this way give what drawSample gives on a sample of
+/// those rows alone.
+DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
+                       const DrawSettings& settings, std::size_t begin, std::size_t end);
+
+/// Adds the tallies of further stars (`more`: same draws and radii, the stars after those of `into`).
+void appendTallies(DrawTallies& into, const DrawTallies& more);
 
 } // namespace starcensus::census

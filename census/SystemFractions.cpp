@@ -9,27 +9,26 @@ namespace starcensus::census {
 
 namespace {
 
-/// The primaries (rows that are a system's primary or single), in the three blocks of SystemFractions.h,
-/// and where the blocks end.
+/// The primaries (rows that are a system's primary or single) as row indices, in the three blocks of
+/// SystemFractions.h, and where the blocks end.
 struct OrderedPrimaries {
-    std::vector<photometry::CatalogRow> rows;
+    std::vector<std::uint32_t> rows;
     std::size_t resolved_end = 0; // rows[0, resolved_end): primaries with a resolved companion
     std::size_t flagged_end = 0;  // rows[resolved_end, flagged_end): the others with a flagged member
 };
 
-OrderedPrimaries orderPrimaries(std::span<const photometry::CatalogRow> rows, const SystemCatalog& catalog) {
+OrderedPrimaries orderPrimaries(const SystemCatalog& catalog) {
     constexpr std::uint8_t kUnresolvedFlags =
         SystemFlagHighRuwe | SystemFlagAboveBinaryBand | SystemFlagLiteratureMultiple;
-    std::vector<const photometry::CatalogRow*> blocks[3];
+    std::vector<std::uint32_t> blocks[3];
     for (const StellarSystem& system : catalog.systems) {
         const int block = system.members.size() > 1 ? 0 : (system.flags & kUnresolvedFlags) != 0 ? 1 : 2;
-        blocks[block].push_back(&rows[system.primary]);
+        blocks[block].push_back(system.primary);
     }
     OrderedPrimaries ordered;
+    ordered.rows.reserve(catalog.systems.size());
     for (const auto& block : blocks) {
-        for (const photometry::CatalogRow* row : block) {
-            ordered.rows.push_back(*row);
-        }
+        ordered.rows.insert(ordered.rows.end(), block.begin(), block.end());
         if (&block == &blocks[0]) {
             ordered.resolved_end = ordered.rows.size();
         } else if (&block == &blocks[1]) {
@@ -116,19 +115,21 @@ SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
         primaryRankingMasses(inputs.rows, *inputs.classifier, inputs.rules, &above_binary_band);
     analysis.catalog = findSystems(inputs.rows, masses, above_binary_band, inputs.systems);
 
-    const OrderedPrimaries ordered = orderPrimaries(inputs.rows, analysis.catalog);
-    const std::span<const photometry::CatalogRow> all(ordered.rows);
+    const OrderedPrimaries ordered = orderPrimaries(analysis.catalog);
     const auto grid = photometry::ClassGrid::fromClassifier(*inputs.classifier);
     DrawSettings draws = inputs.draws;
     draws.progress = nullptr;
-    const auto tallies = [&](std::span<const photometry::CatalogRow> subset) {
-        const PreparedSample sample(subset, inputs.radii_pc, inputs.membership, inputs.rules, draws.threads,
-                                    inputs.classifier);
-        return std::pair{drawSample(sample, grid, draws), sample};
-    };
-    const auto [primary_tallies, primary_sample] = tallies(all);
-    const DrawTallies resolved = tallies(all.first(ordered.resolved_end)).first;
-    const DrawTallies with_unresolved = tallies(all.first(ordered.flagged_end)).first;
+    const PreparedSample primary_sample(inputs.rows, ordered.rows, inputs.radii_pc, inputs.membership,
+                                        inputs.rules, draws.threads, inputs.classifier);
+    // The three blocks are prefixes of one sample: each block is drawn once and the tallies of the
+    // longer prefixes are sums (every star has its own stream, MonteCarlo.h).
+    const DrawTallies resolved = drawSample(primary_sample, grid, draws, 0, ordered.resolved_end);
+    DrawTallies with_unresolved = resolved;
+    appendTallies(with_unresolved,
+                  drawSample(primary_sample, grid, draws, ordered.resolved_end, ordered.flagged_end));
+    DrawTallies primary_tallies = with_unresolved;
+    appendTallies(primary_tallies,
+                  drawSample(primary_sample, grid, draws, ordered.flagged_end, primary_sample.size()));
 
     const FractionSettings fraction_settings{.seed = inputs.draws.seed};
     std::vector<PopulationDeviates> population =
@@ -137,9 +138,10 @@ SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
     for (std::size_t r = 0; r < inputs.radii_pc.size(); ++r) {
         expected.push_back(primary_sample.expectedCount(r));
     }
-    const std::vector<RadiusEstimate> fractions = estimateFractions(
-        primary_tallies, inputs.radii_pc, hardCutCounts(all, inputs.radii_pc, inputs.membership), expected,
-        inputs.groups, population);
+    const std::vector<RadiusEstimate> fractions =
+        estimateFractions(primary_tallies, inputs.radii_pc,
+                          hardCutCounts(inputs.rows, inputs.radii_pc, inputs.membership, ordered.rows),
+                          expected, inputs.groups, population);
     analysis.primary_priors = estimatePriors(inputs.radii_pc, inputs.groups, std::move(population));
     const ClassGroup every = everyCategory();
     for (std::size_t r = 0; r < inputs.radii_pc.size(); ++r) {
