@@ -8,6 +8,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <limits>
 #include <numeric>
 #include <optional>
 #include <stdexcept>
@@ -147,13 +148,13 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
         return {};
     }
     const double cap_rad = s.max_search_angle_deg * kRadiansPerDegree;
-    auto radiusOf = [&](std::uint32_t row) {
-        return std::min(cap_rad, s.max_projected_separation_pc * inputs[row].parallax_mas / 1000.0);
+    auto searchRadius = [&](double parallax_mas) {
+        return std::min(cap_rad, s.max_projected_separation_pc * parallax_mas / 1000.0);
     };
     std::vector<double> radii;
     radii.reserve(usable_rows.size());
     for (const std::uint32_t row : usable_rows) {
-        radii.push_back(radiusOf(row));
+        radii.push_back(searchRadius(inputs[row].parallax_mas));
     }
     std::nth_element(radii.begin(), radii.begin() + static_cast<std::ptrdiff_t>(radii.size() / 2),
                      radii.end());
@@ -163,19 +164,29 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
            grid.Npix() > kMaxPixelsPerTarget * static_cast<std::int64_t>(usable_rows.size())) {
         grid = T_Healpix_Base<std::int64_t>(grid.Order() - 1, RING);
     }
-    // The targets in pixel order (rows ascending within a pixel), each with what the pair tests read, and
-    // where each pixel's targets start: the inner loop walks memory in order.
+    // The targets in pixel order, within a pixel by decreasing parallax (then ascending row), each with
+    // what the pair tests read; where each pixel's targets start, and the largest scaled parallax error
+    // among them: the inner loop walks memory in order and stops at the pixel's last parallax that can
+    // still pass the parallax test.
     struct Target {
         UnitVector position;
         PairInputs pair_inputs;
         std::uint32_t row;
     };
+    const auto npix = static_cast<std::size_t>(grid.Npix());
     std::vector<std::int64_t> pixel_of(usable_rows.size());
-    std::vector<std::uint32_t> first_target(static_cast<std::size_t>(grid.Npix()) + 1, 0);
+    std::vector<std::uint32_t> first_target(npix + 1, 0);
+    std::vector<double> largest_error_mas(npix, 0.0);
     for (std::size_t k = 0; k < usable_rows.size(); ++k) {
-        const UnitVector& u = targets[usable_rows[k]];
+        const std::uint32_t row = usable_rows[k];
+        const UnitVector& u = targets[row];
         pixel_of[k] = grid.vec2pix(vec3(u.x, u.y, u.z));
-        ++first_target[static_cast<std::size_t>(pixel_of[k]) + 1];
+        const auto pixel = static_cast<std::size_t>(pixel_of[k]);
+        ++first_target[pixel + 1];
+        // A NaN error fails no parallax test in candidatePair: it widens the pixel's reach to everything.
+        const double error_mas = inputs[row].scaled_parallax_error_mas;
+        largest_error_mas[pixel] = std::isnan(error_mas) ? std::numeric_limits<double>::infinity()
+                                                         : std::max(largest_error_mas[pixel], error_mas);
     }
     std::partial_sum(first_target.begin(), first_target.end(), first_target.begin());
     std::vector<Target> by_pixel(usable_rows.size());
@@ -186,33 +197,81 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
             by_pixel[next[static_cast<std::size_t>(pixel_of[k])]++] = {targets[row], inputs[row], row};
         }
     }
+    const auto nearerFirst = [](const Target& x, const Target& y) {
+        return x.pair_inputs.parallax_mas > y.pair_inputs.parallax_mas ||
+               (x.pair_inputs.parallax_mas == y.pair_inputs.parallax_mas && x.row < y.row);
+    };
+    for (std::size_t pixel = 0; pixel < npix; ++pixel) {
+        std::sort(by_pixel.begin() + first_target[pixel], by_pixel.begin() + first_target[pixel + 1],
+                  nearerFirst);
+    }
+    // The parallax test of candidatePair passes only if |dplx| <= k f hypot(err_a, err_b) + plx^2 q s / 1000
+    // with f the close-pair factor (or 1), s <= the largest projected separation and plx, the pair's mean,
+    // at most a's (the larger). A margin covers rounding; a NaN bound prunes nothing.
+    const double error_factor = s.parallax_consistency_sigma * std::max(1.0, s.close_pair_error_factor);
+    const double depth_factor = s.radial_to_projected_ratio * s.max_projected_separation_pc / 1000.0;
+    constexpr double kRelativeMargin = 1e-9;
+    // The parallaxes alone as well, for the search of where a pixel's usable targets start and stop.
+    std::vector<double> parallax_by_pixel(by_pixel.size());
+    std::transform(by_pixel.begin(), by_pixel.end(), parallax_by_pixel.begin(),
+                   [](const Target& t) { return t.pair_inputs.parallax_mas; });
+    // Queries in the pixel order of their positions, with their own inputs: neighbouring queries read the
+    // same targets, which stay in cache (the pairs are sorted at the end, so the order changes nothing).
+    std::vector<std::pair<std::int64_t, std::uint32_t>> query_order;
+    query_order.reserve(usable_rows.size());
+    for (const std::uint32_t row : usable_rows) {
+        const UnitVector& u = positions[row];
+        query_order.emplace_back(grid.vec2pix(vec3(u.x, u.y, u.z)), row);
+    }
+    std::sort(query_order.begin(), query_order.end());
+    std::vector<Target> queries;
+    queries.reserve(query_order.size());
+    for (const auto& [pixel, row] : query_order) {
+        queries.push_back({positions[row], inputs[row], row});
+    }
     const unsigned workers = resolveThreadCount(s.threads);
     std::vector<std::vector<SystemPair>> found(workers);
-    forEachIndex(usable_rows.size(), s.threads, [&](std::size_t k, unsigned worker) {
-        const std::uint32_t i = usable_rows[k];
-        const PairInputs& a = inputs[i];
-        const double radius_rad = radiusOf(i);
+    forEachIndex(queries.size(), s.threads, [&](std::size_t k, unsigned worker) {
+        const std::uint32_t i = queries[k].row;
+        const PairInputs& a = queries[k].pair_inputs;
+        const UnitVector& position = queries[k].position;
+        const double radius_rad = searchRadius(a.parallax_mas);
         rangeset<std::int64_t> pixels;
-        grid.query_disc_inclusive(detail::toPointing(positions[i]), radius_rad, pixels);
+        grid.query_disc_inclusive(detail::toPointing(position), radius_rad, pixels);
+        const double depth_mas = a.parallax_mas * a.parallax_mas * depth_factor;
         for (std::size_t r = 0; r < pixels.nranges(); ++r) {
-            const Target* end = by_pixel.data() + first_target[static_cast<std::size_t>(pixels.ivend(r))];
-            for (const Target* t =
-                     by_pixel.data() + first_target[static_cast<std::size_t>(pixels.ivbegin(r))];
-                 t != end; ++t) {
-                const std::uint32_t j = t->row;
-                const PairInputs& b = t->pair_inputs;
-                if (j == i || b.parallax_mas > a.parallax_mas ||
-                    (b.parallax_mas == a.parallax_mas && j < i)) {
-                    continue;
+            for (auto pixel = static_cast<std::size_t>(pixels.ivbegin(r));
+                 pixel < static_cast<std::size_t>(pixels.ivend(r)); ++pixel) {
+                const double error_squared_mas2 = a.scaled_parallax_error_mas * a.scaled_parallax_error_mas +
+                                                  largest_error_mas[pixel] * largest_error_mas[pixel];
+                const double reach_mas =
+                    (error_factor * std::sqrt(error_squared_mas2) + depth_mas) * (1.0 + kRelativeMargin);
+                const double lowest_parallax_mas = a.parallax_mas - reach_mas;
+                const double* const parallaxes = parallax_by_pixel.data();
+                const double* const pixel_end = parallaxes + first_target[pixel + 1];
+                const double* first = std::partition_point(parallaxes + first_target[pixel], pixel_end,
+                                                           [&](double x) { return x > a.parallax_mas; });
+                const double* last = first;
+                while (last != pixel_end && !(*last < lowest_parallax_mas)) {
+                    ++last;
                 }
-                const double separation_rad = detail::separationRadians(positions[i], t->position);
-                if (separation_rad > radius_rad) {
-                    continue;
-                }
-                if (auto pair = candidatePair(a, b, separation_rad, s)) {
-                    pair->a = std::min(i, j);
-                    pair->b = std::max(i, j);
-                    found[worker].push_back(*pair);
+                for (const Target *t = by_pixel.data() + (first - parallaxes),
+                                  *end = by_pixel.data() + (last - parallaxes);
+                     t != end; ++t) {
+                    const std::uint32_t j = t->row;
+                    const PairInputs& b = t->pair_inputs;
+                    if (j == i || (b.parallax_mas == a.parallax_mas && j < i)) {
+                        continue;
+                    }
+                    const double separation_rad = detail::separationRadians(position, t->position);
+                    if (separation_rad > radius_rad) {
+                        continue;
+                    }
+                    if (auto pair = candidatePair(a, b, separation_rad, s)) {
+                        pair->a = std::min(i, j);
+                        pair->b = std::max(i, j);
+                        found[worker].push_back(*pair);
+                    }
                 }
             }
         }
