@@ -138,7 +138,9 @@ nlohmann::json provenanceJson(const PipelineSettings& settings, const std::vecto
               {"draws", timings.draws_s},
               {"outputs", timings.outputs_s},
               {"hosts", timings.hosts_s},
-              {"luminosity", timings.luminosity_s}}},
+              {"luminosity", timings.luminosity_s},
+              {"systems", timings.systems_s},
+              {"tables", timings.tables_s}}},
             {"outputs", outputs}};
 }
 
@@ -262,6 +264,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     });
     // Systems: the companion search and the Monte Carlo of the system primaries (SystemFractions.h).
     std::shared_future<census::SystemAnalysis> systems = std::async(std::launch::async, [&] {
+                                                             const auto systems_start = Clock::now();
                                                              census::SystemCensusInputs inputs;
                                                              inputs.rows = rows;
                                                              inputs.classifier = &classifier;
@@ -272,7 +275,10 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                                                              inputs.groups = census.groups;
                                                              inputs.systems = census.systems;
                                                              inputs.systems.threads = census.draws.threads;
-                                                             return census::analyseSystems(inputs);
+                                                             auto analysis = census::analyseSystems(inputs);
+                                                             result.timings.systems_s =
+                                                                 secondsSince(systems_start);
+                                                             return analysis;
                                                          }).share();
     // sample.fits and the draws tables need only the draws and the systems: they are written beside the
     // analyses.
@@ -280,11 +286,13 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     std::filesystem::create_directories(directory);
     std::future<void> draw_tables = std::async(std::launch::async, [&] {
         const census::SystemCatalog& system_catalog = systems.get().catalog;
+        const auto tables_start = Clock::now();
         writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, class_rules,
                          system_catalog);
         writeSystemsTable(directory / "systems.fits", rows, system_catalog, classifier, class_rules);
         writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
         writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
+        result.timings.tables_s = secondsSince(tables_start);
     });
     const auto luminosity_start = Clock::now();
     const census::LuminosityAnalysis luminosity =

@@ -45,9 +45,11 @@ struct PipelineTimings {
     double merge_s = 0.0;
     double posteriors_s = 0.0;
     double draws_s = 0.0;
-    double outputs_s = 0.0;    // the stage of the outputs, which holds the two below (run beside the rest)
+    double outputs_s = 0.0;    // the stage of the outputs, which holds the four below (run beside the rest)
     double hosts_s = 0.0;      // host re-measurements
     double luminosity_s = 0.0; // luminosity function, mass-function fits, corrected counts
+    double systems_s = 0.0;    // companion search and the Monte Carlo of the system primaries
+    double tables_s = 0.0;     // writing sample.fits, systems.fits and the draws tables
 };
 
 struct PipelineResult {

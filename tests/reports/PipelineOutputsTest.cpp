@@ -132,9 +132,15 @@ TEST_CASE(
                                              " candidate rows into " +
                                              std::to_string(result.scan_totals.candidates) +
                                              " objects: 0 by source_id, 0 by position") != std::string::npos);
-    // hosts and luminosity run inside the outputs stage, side by side.
+    // hosts, luminosity, systems and the tables run inside the outputs stage, side by side.
     CHECK(provenance["timings_s"]["luminosity"].get<double>() > 0.0);
-    CHECK(provenance["timings_s"]["hosts"].get<double>() <= provenance["timings_s"]["outputs"].get<double>());
+    for (const char* stage : {"hosts", "systems", "tables"}) {
+        CAPTURE(stage);
+        CHECK(provenance["timings_s"][stage].get<double>() <=
+              provenance["timings_s"]["outputs"].get<double>());
+    }
+    CHECK(provenance["timings_s"]["systems"].get<double>() > 0.0);
+    CHECK(provenance["timings_s"]["tables"].get<double>() > 0.0);
     std::ifstream priors_file(settings.output_directory / "priors.json");
     CHECK(nlohmann::json::parse(priors_file)["schema"] == "starcensus.priors/1");
 }
