@@ -231,17 +231,21 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
     }
     const unsigned workers = resolveThreadCount(s.threads);
     std::vector<std::vector<SystemPair>> found(workers);
+    std::vector<rangeset<std::int64_t>> pixel_sets(workers); // reused: each query clears its set
     forEachIndex(queries.size(), s.threads, [&](std::size_t k, unsigned worker) {
         const std::uint32_t i = queries[k].row;
         const PairInputs& a = queries[k].pair_inputs;
         const UnitVector& position = queries[k].position;
         const double radius_rad = searchRadius(a.parallax_mas);
-        rangeset<std::int64_t> pixels;
+        rangeset<std::int64_t>& pixels = pixel_sets[worker];
         grid.query_disc_inclusive(detail::toPointing(position), radius_rad, pixels);
         const double depth_mas = a.parallax_mas * a.parallax_mas * depth_factor;
         for (std::size_t r = 0; r < pixels.nranges(); ++r) {
             for (auto pixel = static_cast<std::size_t>(pixels.ivbegin(r));
                  pixel < static_cast<std::size_t>(pixels.ivend(r)); ++pixel) {
+                if (first_target[pixel] == first_target[pixel + 1]) {
+                    continue;
+                }
                 const double error_squared_mas2 = a.scaled_parallax_error_mas * a.scaled_parallax_error_mas +
                                                   largest_error_mas[pixel] * largest_error_mas[pixel];
                 const double reach_mas =
