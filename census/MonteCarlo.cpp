@@ -9,6 +9,7 @@
 #include <limits>
 #include <numeric>
 #include <optional>
+#include <stdexcept>
 
 namespace starcensus::census {
 
@@ -55,6 +56,53 @@ bool misnamedByGrid(const photometry::CatalogRow& row, const photometry::Classif
     return infrared || photometry::classOfCategory(cell) != exact.stellar_class;
 }
 
+/// What the certainty test reads of one star.
+struct StarDrawInputs {
+    const float* quantiles; // [kQuantiles] distance modulus (mag)
+    const float* within;    // [radii] membership probabilities
+    std::size_t radii;
+    const photometry::Category* tabulated; // [kQuantiles], or nullptr
+    photometry::Category fixed;            // or the drawn marker
+    float g_mag, g_error_mag, colour_mag, colour_error_mag;
+};
+
+/// The category every draw of a star must give, when no draw can change it: membership certain at
+/// every radius (probability exactly 0 or 1) and the star's whole range of outcomes (the extreme
+/// distance quantiles, normal deviates up to FastNormal's largest, `largest_deviate`) inside cells of one
+/// category.
+std::optional<photometry::Category>
+certainCategory(const StarDrawInputs& star, const photometry::ClassGrid& grid, float largest_deviate) {
+    constexpr int kQuantiles = PreparedSample::kQuantiles;
+    for (std::size_t r = 0; r < star.radii; ++r) {
+        if (star.within[r] > 0.0f && star.within[r] < 1.0f) {
+            return std::nullopt;
+        }
+    }
+    if (star.fixed != PreparedSample::kDrawnCategory) {
+        return star.fixed;
+    }
+    if (star.tabulated != nullptr) {
+        const bool same = std::all_of(star.tabulated, star.tabulated + kQuantiles,
+                                      [&](photometry::Category c) { return c == star.tabulated[0]; });
+        return same ? std::optional(star.tabulated[0]) : std::nullopt;
+    }
+    if (!std::isfinite(star.g_mag)) {
+        return kUnclassified;
+    }
+    // Float rounding in the loop can move a value by a few ulps past these bounds: widen them.
+    constexpr float kMarginMag = 1e-3f;
+    const auto [nearest, farthest] = std::minmax_element(star.quantiles, star.quantiles + kQuantiles);
+    const float g_reach = star.g_error_mag * largest_deviate + kMarginMag;
+    const float magnitude_low = star.g_mag - g_reach - *farthest;
+    const float magnitude_high = star.g_mag + g_reach - *nearest;
+    if (!std::isfinite(star.colour_mag)) {
+        return grid.uniformMagnitudeOnlyCategory(magnitude_low, magnitude_high);
+    }
+    const float colour_reach = star.colour_error_mag * largest_deviate + kMarginMag;
+    return grid.uniformCategory(star.colour_mag - colour_reach, star.colour_mag + colour_reach, magnitude_low,
+                                magnitude_high);
+}
+
 } // namespace
 
 PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
@@ -68,20 +116,26 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier,
                                const photometry::ClassGrid* grid)
-    : radii_pc_(std::move(radii_pc)) {
+    : radii_pc_(std::move(radii_pc)), grid_(grid) {
     const std::size_t n = order.empty() ? rows.size() : order.size();
+    const std::size_t radii = radii_pc_.size();
     g_mag_.resize(n);
     g_error_mag_.resize(n);
     colour_mag_.resize(n);
     colour_error_mag_.resize(n);
-    probability_within_.resize(n * radii_pc_.size());
-    modulus_quantiles_.resize(n * kQuantiles);
+    probability_within_.resize(n * radii);
     fixed_categories_.assign(n, kDrawnCategory);
-    if (classifier != nullptr) {
-        quantile_categories_.resize(n * kQuantiles);
-        quantile_classified_.resize(n);
+    table_row_.assign(n, kNoRow);
+    tabulated_row_.assign(n, kNoRow);
+    if (grid != nullptr) {
+        certain_categories_.assign(n, kDrawnCategory);
     }
+    const float largest_deviate = detail::FastNormal().largestMagnitude();
+    block_tables_.resize((n + kBlockStars - 1) / kBlockStars);
     forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
+        BlockTables& tables = block_tables_[begin / kBlockStars];
+        std::array<float, kQuantiles> quantiles;
+        std::array<photometry::Category, kQuantiles> categories;
         for (std::size_t s = begin; s < end; ++s) {
             const photometry::CatalogRow& row = order.empty() ? rows[s] : rows[order[s]];
             const bool classifiable =
@@ -101,25 +155,43 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
             colour_error_mag_[s] =
                 quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
             const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
-            for (std::size_t r = 0; r < radii_pc_.size(); ++r) {
-                probability_within_[s * radii_pc_.size() + r] =
-                    static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
+            float* within = &probability_within_[s * radii];
+            for (std::size_t r = 0; r < radii; ++r) {
+                within[r] = static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
             }
             std::copy(posterior.distanceModulusQuantiles().begin(),
-                      posterior.distanceModulusQuantiles().end(),
-                      modulus_quantiles_.begin() + static_cast<std::ptrdiff_t>(s * kQuantiles));
-            if (classifier != nullptr && fixed_categories_[s] == kDrawnCategory &&
-                (std::isnan(colour_mag_[s]) || misnamedByGrid(row, *classifier, grid, rules))) {
-                quantile_classified_[s] = 1;
+                      posterior.distanceModulusQuantiles().end(), quantiles.begin());
+            const bool tabulated =
+                classifier != nullptr && fixed_categories_[s] == kDrawnCategory &&
+                (std::isnan(colour_mag_[s]) || misnamedByGrid(row, *classifier, grid, rules));
+            if (tabulated) {
                 for (std::size_t k = 0; k < kQuantiles; ++k) {
                     // The row's bands as sample.fits uses them (photometricInput), at this distance.
                     photometry::PhotometricInput input = photometry::photometricInput(row);
                     input.distance_modulus_mag = posterior.distanceModulusQuantiles()[k];
-                    const auto result = classifier->classify(input);
-                    quantile_categories_[s * kQuantiles + k] = photometry::censusCategory(result);
+                    categories[k] = photometry::censusCategory(classifier->classify(input));
                 }
             }
+            if (grid != nullptr) {
+                const StarDrawInputs star{
+                    quantiles.data(),     within,    radii,           tabulated ? categories.data() : nullptr,
+                    fixed_categories_[s], g_mag_[s], g_error_mag_[s], colour_mag_[s],
+                    colour_error_mag_[s]};
+                if (const auto category = certainCategory(star, *grid, largest_deviate)) {
+                    certain_categories_[s] = *category;
+                    continue; // every draw is known: no tables
+                }
+            }
+            table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
+            tables.quantiles.insert(tables.quantiles.end(), quantiles.begin(), quantiles.end());
+            if (tabulated) {
+                tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
+                tables.categories.insert(tables.categories.end(), categories.begin(), categories.end());
+            }
         }
+        // Reserve-free growth leaves up to twice the room: give it back.
+        tables.quantiles.shrink_to_fit();
+        tables.categories.shrink_to_fit();
     });
 }
 
@@ -200,7 +272,6 @@ class SampleDrawer {
         for (std::size_t s = begin; s < end; ++s) {
             // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
             Xoshiro256 random(settings_.seed, s);
-            const float* quantiles = &sample_.modulus_quantiles_[s * PreparedSample::kQuantiles];
             const float* within = &sample_.probability_within_[s * radii];
             const float g = sample_.g_mag_[s];
             const float g_error = sample_.g_error_mag_[s];
@@ -208,14 +279,31 @@ class SampleDrawer {
             const float colour_error = sample_.colour_error_mag_[s];
             const bool has_colour = std::isfinite(colour);
             const bool has_magnitude = std::isfinite(g);
-            const photometry::Category* tabulated =
-                sample_.quantile_classified_.empty() || sample_.quantile_classified_[s] == 0
-                    ? nullptr
-                    : &sample_.quantile_categories_[s * PreparedSample::kQuantiles];
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
             const auto draws = static_cast<std::size_t>(settings_.draws);
             const photometry::Category fixed = sample_.fixed_categories_[s];
-            if (const auto category = certainCategory(s, quantiles, within, tabulated, fixed)) {
+            const bool certainty_known = !sample_.certain_categories_.empty();
+            const std::uint32_t table_row = sample_.table_row_[s];
+            const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
+            const float* quantiles = table_row == PreparedSample::kNoRow
+                                         ? nullptr
+                                         : &tables.quantiles[table_row * PreparedSample::kQuantiles];
+            const std::uint32_t tabulated_row = sample_.tabulated_row_[s];
+            const photometry::Category* tabulated =
+                tabulated_row == PreparedSample::kNoRow
+                    ? nullptr
+                    : &tables.categories[tabulated_row * PreparedSample::kQuantiles];
+            const auto certain = [&]() -> std::optional<photometry::Category> {
+                if (certainty_known) {
+                    const photometry::Category category = sample_.certain_categories_[s];
+                    return category == PreparedSample::kDrawnCategory ? std::nullopt
+                                                                      : std::optional(category);
+                }
+                return certainCategory(
+                    {quantiles, within, radii, tabulated, fixed, g, g_error, colour, colour_error}, classes_,
+                    normal_.largestMagnitude());
+            };
+            if (const auto category = certain()) {
                 // Every draw gives this category, and each radius counts the star in every draw or in
                 // none: the tallies follow without drawing (the same numbers the loop below would give).
                 for (std::size_t r = 0; r < radii; ++r) {
@@ -264,46 +352,6 @@ class SampleDrawer {
         }
     }
 
-    /// The category every draw of star s must give, when no draw can change it: membership certain at
-    /// every radius (probability exactly 0 or 1) and the star's whole range of outcomes (the extreme
-    /// distance quantiles, normal deviates up to FastNormal's largest) inside cells of one category.
-    std::optional<photometry::Category> certainCategory(std::size_t s, const float* quantiles,
-                                                        const float* within,
-                                                        const photometry::Category* tabulated,
-                                                        photometry::Category fixed) const {
-        for (std::size_t r = 0; r < sample_.radii_pc_.size(); ++r) {
-            if (within[r] > 0.0f && within[r] < 1.0f) {
-                return std::nullopt;
-            }
-        }
-        if (fixed != PreparedSample::kDrawnCategory) {
-            return fixed;
-        }
-        if (tabulated != nullptr) {
-            const bool same = std::all_of(tabulated, tabulated + PreparedSample::kQuantiles,
-                                          [&](photometry::Category c) { return c == tabulated[0]; });
-            return same ? std::optional(tabulated[0]) : std::nullopt;
-        }
-        const float g = sample_.g_mag_[s];
-        if (!std::isfinite(g)) {
-            return kUnclassified;
-        }
-        const float colour = sample_.colour_mag_[s];
-        // Float rounding in the loop can move a value by a few ulps past these bounds: widen them.
-        constexpr float kMarginMag = 1e-3f;
-        const auto [nearest, farthest] =
-            std::minmax_element(quantiles, quantiles + PreparedSample::kQuantiles);
-        const float g_reach = sample_.g_error_mag_[s] * normal_.largestMagnitude() + kMarginMag;
-        const float magnitude_low = g - g_reach - *farthest;
-        const float magnitude_high = g + g_reach - *nearest;
-        if (!std::isfinite(colour)) {
-            return classes_.uniformMagnitudeOnlyCategory(magnitude_low, magnitude_high);
-        }
-        const float colour_reach = sample_.colour_error_mag_[s] * normal_.largestMagnitude() + kMarginMag;
-        return classes_.uniformCategory(colour - colour_reach, colour + colour_reach, magnitude_low,
-                                        magnitude_high);
-    }
-
     const PreparedSample& sample_;
     const photometry::ClassGrid& classes_;
     const DrawSettings& settings_;
@@ -318,6 +366,9 @@ DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid
 
 DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
                        const DrawSettings& settings, std::size_t begin, std::size_t end) {
+    if (sample.grid() != nullptr && sample.grid() != &classes) {
+        throw std::invalid_argument("drawSample: the sample was prepared with another class grid");
+    }
     return SampleDrawer(sample, classes, settings, begin, end).run();
 }
 

@@ -36,6 +36,8 @@ struct DrawSettings {
 class PreparedSample {
   public:
     static constexpr int kQuantiles = DistancePosterior::kQuantileNodes;
+    // In the per-star category arrays: no single category, the draws decide it
+    static constexpr photometry::Category kDrawnCategory = 0xff;
 
     /// A star whose class no draw can change gets it in every draw (while its membership is still
     /// drawn): rows with parallax_mas / parallax_error_mas below rules.min_parallax_snr_to_classify (the
@@ -49,6 +51,8 @@ class PreparedSample {
     /// the grid would misname: those whose exact class at the catalogue parallax uses the near infrared
     /// (or is within 1 mag of the M_G where it starts to), or differs from the class of their grid cell
     /// (stars on a class boundary, where the cell's centre can lie on the other side).
+    /// With the grid, a star whose draws cannot differ keeps only its category and membership
+    /// probabilities (no quantile table), and drawSample must be given the same grid.
     PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
                    const MembershipSettings& membership, const RowClassRules& rules, unsigned threads,
                    const photometry::Classifier* classifier = nullptr,
@@ -69,24 +73,39 @@ class PreparedSample {
     }
     /// Expected count within radii()[r]: the sum of the membership probabilities.
     double expectedCount(std::size_t r) const;
+    /// The grid given to the constructor (nullptr without one).
+    const photometry::ClassGrid* grid() const { return grid_; }
 
   private:
     friend class SampleDrawer;
+    static constexpr std::uint32_t kNoRow = 0xffffffffu;
     std::vector<double> radii_pc_;
     std::vector<float> g_mag_;
     std::vector<float> g_error_mag_;
     std::vector<float> colour_mag_; // BP-RP, NaN if either band is missing
     std::vector<float> colour_error_mag_;
     std::vector<float> probability_within_; // [star][radius]
-    std::vector<float> modulus_quantiles_;  // [star][kQuantiles], distance modulus (mag)
-    // [star][kQuantiles]: the exact classifier's category at each distance quantile, for the stars the
-    // (BP-RP, M_G) grid cannot stand for; empty without a classifier
-    std::vector<photometry::Category> quantile_categories_;
-    // 1 where quantile_categories_ holds the star's classes (see the constructor)
-    std::vector<std::uint8_t> quantile_classified_;
+    // Per block of kBlockStars stars (MonteCarlo.cpp), the tables of those of its stars that need them:
+    // quantiles [row][kQuantiles], the distance modulus (mag) at each quantile, for the stars whose draws
+    // can differ; categories [row][kQuantiles], the exact classifier's category at each distance quantile,
+    // for the stars the (BP-RP, M_G) grid cannot stand for (see the constructor). Kept per block, not
+    // joined, so they are never held twice.
+    struct BlockTables {
+        std::vector<float> quantiles;
+        std::vector<photometry::Category> categories;
+    };
+    std::vector<BlockTables> block_tables_;
+    // [star]: the star's row in its block's quantiles and categories, kNoRow without one (a star whose
+    // every draw is known, see certain_categories_; a star not tabulated, or no classifier)
+    std::vector<std::uint32_t> table_row_;
+    std::vector<std::uint32_t> tabulated_row_;
     // [star]: the category of every draw, or kDrawnCategory where the draws decide it
     std::vector<photometry::Category> fixed_categories_;
-    static constexpr photometry::Category kDrawnCategory = 0xff;
+    // [star], with a grid: the category every draw gives when no draw can differ (membership probability
+    // 0 or 1 at every radius, every outcome inside one category), else kDrawnCategory; empty without a
+    // grid, when the draws test it themselves. The grid the draws use must then be this one.
+    std::vector<photometry::Category> certain_categories_;
+    const photometry::ClassGrid* grid_ = nullptr;
 };
 
 /// Member counts per radius, census category and draw, and per-star class frequencies.

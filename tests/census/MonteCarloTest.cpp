@@ -8,6 +8,7 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <stdexcept>
 #include <vector>
 
 using namespace starcensus;
@@ -68,6 +69,32 @@ TEST_CASE("Monte Carlo results do not depend on the thread count") {
     CHECK(progress.items_total == 3000 * 50);
     two_threads.seed = 12;
     CHECK(census::drawSample(sample, grid, two_threads).counts != a.counts);
+}
+
+TEST_CASE("a sample prepared with its grid (no tables for the certain stars) draws the same tallies; "
+          "ranges of stars drawn apart and appended equal one draw of all") {
+    // Stars from 6 to 25 pc with errors from 0.5 to 10 mas at radii 10 and 20 pc: some certain (near,
+    // small errors, far from the K/M boundary), most drawn. Certainty decided when the sample is prepared
+    // with the grid must give exactly what the draws decide without it.
+    const auto rows = toyStars(3000, 5);
+    const auto grid = toyGrid();
+    const census::RowClassRules rules{.min_parallax_snr_to_classify = 0.0};
+    const census::PreparedSample without_grid(rows, {10.0, 20.0}, census::MembershipSettings{}, rules, 2);
+    const census::PreparedSample with_grid(rows, {10.0, 20.0}, census::MembershipSettings{}, rules, 2,
+                                           nullptr, &grid);
+    const census::DrawSettings settings{.draws = 40, .seed = 9, .threads = 2};
+    const auto expected = census::drawSample(without_grid, grid, settings);
+    const auto compact = census::drawSample(with_grid, grid, settings);
+    CHECK(compact.counts == expected.counts);
+    CHECK(compact.star_classes == expected.star_classes);
+    // Blocks of uneven length, cut inside the 256-star blocks of the thread loop.
+    auto appended = census::drawSample(with_grid, grid, settings, 0, 1000);
+    census::appendTallies(appended, census::drawSample(with_grid, grid, settings, 1000, 1001));
+    census::appendTallies(appended, census::drawSample(with_grid, grid, settings, 1001, 3000));
+    CHECK(appended.counts == expected.counts);
+    CHECK(appended.star_classes == expected.star_classes);
+    // Another grid than the one the sample was prepared with is refused.
+    CHECK_THROWS_AS(census::drawSample(with_grid, toyGrid(), settings), std::invalid_argument);
 }
 
 TEST_CASE("mean Monte Carlo counts equal the summed membership probabilities") {
