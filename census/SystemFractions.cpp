@@ -120,7 +120,7 @@ SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
     DrawSettings draws = inputs.draws;
     draws.progress = nullptr;
     const PreparedSample primary_sample(inputs.rows, ordered.rows, inputs.radii_pc, inputs.membership,
-                                        inputs.rules, draws.threads, inputs.classifier);
+                                        inputs.rules, draws.threads, inputs.classifier, &grid);
     // The three blocks are prefixes of one sample: each block is drawn once and the tallies of the
     // longer prefixes are sums (every star has its own stream, MonteCarlo.h).
     const DrawTallies resolved = drawSample(primary_sample, grid, draws, 0, ordered.resolved_end);
