@@ -234,7 +234,9 @@ class SampleDrawer {
         tallies.draws = settings_.draws;
         tallies.radii = radii;
         const std::size_t stars = end_ - begin_;
-        tallies.star_classes.assign(stars * photometry::kClassCount, 0);
+        if (settings_.per_star_classes) {
+            tallies.star_classes.assign(stars * photometry::kClassCount, 0);
+        }
         if (settings_.progress != nullptr) {
             settings_.progress->items_total = static_cast<std::int64_t>(stars) * settings_.draws;
         }
@@ -311,9 +313,7 @@ class SampleDrawer {
                 }
                 classes_seen[static_cast<std::size_t>(photometry::classOfCategory(*category))] =
                     static_cast<std::uint32_t>(draws);
-                std::copy(classes_seen.begin(), classes_seen.end(),
-                          star_classes.begin() +
-                              static_cast<std::ptrdiff_t>((s - begin_) * photometry::kClassCount));
+                keepClasses(s, classes_seen, star_classes);
                 continue;
             }
             for (int d = 0; d < settings_.draws; ++d) {
@@ -346,6 +346,14 @@ class SampleDrawer {
                     draw_counts[r * photometry::kCategoryCount * draws] += u < within[r] ? 1u : 0u;
                 }
             }
+            keepClasses(s, classes_seen, star_classes);
+        }
+    }
+
+    /// Star s's class frequencies into star_classes, unless the settings ask for none.
+    void keepClasses(std::size_t s, const std::array<std::uint32_t, photometry::kClassCount>& classes_seen,
+                     std::vector<std::uint32_t>& star_classes) const {
+        if (settings_.per_star_classes) {
             std::copy(classes_seen.begin(), classes_seen.end(),
                       star_classes.begin() +
                           static_cast<std::ptrdiff_t>((s - begin_) * photometry::kClassCount));

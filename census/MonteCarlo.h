@@ -30,6 +30,9 @@ struct DrawSettings {
     // Optional: star-draws done (items_done, advanced once per block of stars) and to do (items_total),
     // for a caller's display (photometry/base/Progress.h). Never read by the draws.
     ProgressCounters* progress = nullptr;
+    // false: DrawTallies::star_classes stays empty (13 counters per star that only sample.fits and
+    // hosts.fits read)
+    bool per_star_classes = true;
 };
 
 /// The per-star inputs of the Monte Carlo, as a structure of arrays.
@@ -115,7 +118,8 @@ struct DrawTallies {
     // [(r * kCategoryCount + category) * draws + draw]: draw-fastest, so a star whose category is stable
     // across draws walks memory sequentially.
     std::vector<std::uint32_t> counts;
-    std::vector<std::uint32_t> star_classes; // [star * kClassCount + class]: draws with that class
+    // [star * kClassCount + class]: draws with that class; empty with DrawSettings::per_star_classes false
+    std::vector<std::uint32_t> star_classes;
 
     std::uint32_t count(int draw, std::size_t r, photometry::Category category) const {
         return counts[(r * photometry::kCategoryCount + category) * static_cast<std::size_t>(draws) +

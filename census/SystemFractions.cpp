@@ -119,6 +119,7 @@ SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
     const auto grid = photometry::ClassGrid::fromClassifier(*inputs.classifier);
     DrawSettings draws = inputs.draws;
     draws.progress = nullptr;
+    draws.per_star_classes = false; // the system census reads only the counts
     const PreparedSample primary_sample(inputs.rows, ordered.rows, inputs.radii_pc, inputs.membership,
                                         inputs.rules, draws.threads, inputs.classifier, &grid);
     // The three blocks are prefixes of one sample: each block is drawn once and the tallies of the

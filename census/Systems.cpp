@@ -400,6 +400,11 @@ SystemCatalog findSystems(std::span<const CatalogRow> rows, std::span<const doub
     }
 
     // Systems in order of their lowest row: the first row met of each root opens it.
+    std::size_t system_count = 0;
+    for (std::uint32_t i = 0; i < n; ++i) {
+        system_count += findRoot(parent, i) == i ? 1 : 0;
+    }
+    result.systems.reserve(system_count); // one allocation: a system per object is the usual case
     std::vector<std::int64_t> system_of_root(n, -1);
     for (std::uint32_t i = 0; i < n; ++i) {
         const std::uint32_t root = findRoot(parent, i);
