@@ -195,6 +195,52 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
     });
 }
 
+PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order)
+    : radii_pc_(source.radii_pc_), grid_(source.grid_) {
+    const std::size_t n = order.size();
+    const std::size_t radii = radii_pc_.size();
+    const auto select = [&](const auto& from, auto& to) {
+        to.resize(n);
+        for (std::size_t s = 0; s < n; ++s) {
+            to[s] = from[order[s]];
+        }
+    };
+    select(source.g_mag_, g_mag_);
+    select(source.g_error_mag_, g_error_mag_);
+    select(source.colour_mag_, colour_mag_);
+    select(source.colour_error_mag_, colour_error_mag_);
+    select(source.fixed_categories_, fixed_categories_);
+    if (!source.certain_categories_.empty()) {
+        select(source.certain_categories_, certain_categories_);
+    }
+    probability_within_.resize(n * radii);
+    table_row_.assign(n, kNoRow);
+    tabulated_row_.assign(n, kNoRow);
+    block_tables_.resize((n + kBlockStars - 1) / kBlockStars);
+    for (std::size_t s = 0; s < n; ++s) {
+        const std::size_t from = order[s];
+        std::copy_n(&source.probability_within_[from * radii], radii, &probability_within_[s * radii]);
+        const BlockTables& source_tables = source.block_tables_[from / kBlockStars];
+        BlockTables& tables = block_tables_[s / kBlockStars];
+        if (const std::uint32_t row = source.table_row_[from]; row != kNoRow) {
+            table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
+            const auto first =
+                source_tables.quantiles.begin() + static_cast<std::ptrdiff_t>(row * kQuantiles);
+            tables.quantiles.insert(tables.quantiles.end(), first, first + kQuantiles);
+        }
+        if (const std::uint32_t row = source.tabulated_row_[from]; row != kNoRow) {
+            tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
+            const auto first =
+                source_tables.categories.begin() + static_cast<std::ptrdiff_t>(row * kQuantiles);
+            tables.categories.insert(tables.categories.end(), first, first + kQuantiles);
+        }
+    }
+    for (BlockTables& tables : block_tables_) {
+        tables.quantiles.shrink_to_fit();
+        tables.categories.shrink_to_fit();
+    }
+}
+
 std::uint32_t DrawTallies::classCount(int draw, std::size_t r, photometry::StellarClass c) const {
     std::uint32_t total = 0;
     for (std::size_t category = 0; category < photometry::kCategoryCount; ++category) {

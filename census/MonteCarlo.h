@@ -68,6 +68,10 @@ class PreparedSample {
                    const photometry::Classifier* classifier = nullptr,
                    const photometry::ClassGrid* grid = nullptr);
 
+    /// The stars source[order[0]], source[order[1]], ...: what the constructor gives for those rows of
+    /// source's rows (each star's data depends on its row alone), without preparing them again.
+    PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order);
+
     std::size_t size() const { return g_mag_.size(); }
     const std::vector<double>& radii() const { return radii_pc_; }
     /// P(d < radii()[r]) of star s.

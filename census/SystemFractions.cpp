@@ -4,6 +4,8 @@
 
 #include <cmath>
 #include <limits>
+#include <optional>
+#include <stdexcept>
 
 namespace starcensus::census {
 
@@ -116,12 +118,22 @@ SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
     analysis.catalog = findSystems(inputs.rows, masses, above_binary_band, inputs.systems);
 
     const OrderedPrimaries ordered = orderPrimaries(analysis.catalog);
-    const auto grid = photometry::ClassGrid::fromClassifier(*inputs.classifier);
+    if (inputs.sample != nullptr && inputs.sample->grid() == nullptr) {
+        throw std::invalid_argument("analyseSystems: the census sample was prepared without a class grid");
+    }
+    std::optional<photometry::ClassGrid> own_grid;
+    const photometry::ClassGrid& grid =
+        inputs.sample != nullptr
+            ? *inputs.sample->grid()
+            : own_grid.emplace(photometry::ClassGrid::fromClassifier(*inputs.classifier));
     DrawSettings draws = inputs.draws;
     draws.progress = nullptr;
     draws.per_star_classes = false; // the system census reads only the counts
-    const PreparedSample primary_sample(inputs.rows, ordered.rows, inputs.radii_pc, inputs.membership,
-                                        inputs.rules, draws.threads, inputs.classifier, &grid);
+    const PreparedSample primary_sample =
+        inputs.sample != nullptr
+            ? PreparedSample(*inputs.sample, ordered.rows)
+            : PreparedSample(inputs.rows, ordered.rows, inputs.radii_pc, inputs.membership, inputs.rules,
+                             draws.threads, inputs.classifier, &grid);
     // The three blocks are prefixes of one sample: each block is drawn once and the tallies of the
     // longer prefixes are sums (every star has its own stream, MonteCarlo.h).
     const DrawTallies resolved = drawSample(primary_sample, grid, draws, 0, ordered.resolved_end);

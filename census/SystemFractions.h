@@ -68,6 +68,9 @@ struct SystemCensusInputs {
     DrawSettings draws;
     std::vector<ClassGroup> groups;
     SystemSettings systems;
+    // Optional: the census's PreparedSample of `rows` (same radii, membership, rules and classifier,
+    // prepared with a grid); the primaries' sample is then selected from it instead of prepared again.
+    const PreparedSample* sample = nullptr;
 };
 
 /// The masses that pick each system's primary: classifyRow's locus mass; evolved stars rank first

@@ -275,6 +275,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
                                                              inputs.groups = census.groups;
                                                              inputs.systems = census.systems;
                                                              inputs.systems.threads = census.draws.threads;
+                                                             inputs.sample = &sample;
                                                              auto analysis = census::analyseSystems(inputs);
                                                              result.timings.systems_s =
                                                                  secondsSince(systems_start);

@@ -72,7 +72,7 @@ TEST_CASE("Monte Carlo results do not depend on the thread count") {
 }
 
 TEST_CASE("a sample prepared with its grid (no tables for the certain stars) draws the same tallies; "
-          "ranges of stars drawn apart and appended equal one draw of all") {
+          "ranges of stars drawn apart and appended equal one draw of all; selected stars draw as prepared") {
     // Stars from 6 to 25 pc with errors from 0.5 to 10 mas at radii 10 and 20 pc: some certain (near,
     // small errors, far from the K/M boundary), most drawn. Certainty decided when the sample is prepared
     // with the grid must give exactly what the draws decide without it.
@@ -93,6 +93,23 @@ TEST_CASE("a sample prepared with its grid (no tables for the certain stars) dra
     census::appendTallies(appended, census::drawSample(with_grid, grid, settings, 1001, 3000));
     CHECK(appended.counts == expected.counts);
     CHECK(appended.star_classes == expected.star_classes);
+    // Stars selected from the prepared sample (reversed, every third) draw as the same rows prepared anew.
+    std::vector<std::uint32_t> order;
+    for (std::uint32_t s = 2999;; s -= 3) {
+        order.push_back(s);
+        if (s < 3) {
+            break;
+        }
+    }
+    const census::PreparedSample selected(with_grid, order);
+    const census::PreparedSample prepared(rows, order, {10.0, 20.0}, census::MembershipSettings{}, rules, 1,
+                                          nullptr, &grid);
+    REQUIRE(selected.size() == order.size());
+    CHECK(selected.probabilityWithin(5, 1) == with_grid.probabilityWithin(order[5], 1));
+    const auto from_selected = census::drawSample(selected, grid, settings);
+    const auto from_prepared = census::drawSample(prepared, grid, settings);
+    CHECK(from_selected.counts == from_prepared.counts);
+    CHECK(from_selected.star_classes == from_prepared.star_classes);
     // Another grid than the one the sample was prepared with is refused.
     CHECK_THROWS_AS(census::drawSample(with_grid, toyGrid(), settings), std::invalid_argument);
 }
