@@ -18,8 +18,10 @@ from astropy.io import fits
 
 
 def load_locus(path):
-    names = ["spectral_type", "teff_k", "log_l_lsun", "radius_rsun", "abs_v_mag", "bp_rp_mag",
-             "g_rp_mag", "abs_g_mag", "abs_j_mag", "abs_ks_mag", "mass_msun", "w1_w2_mag"]
+    # Column names from the table's own header line ("#spectral_type teff_k ..."), so a column added
+    # to the shipped table does not break the script.
+    with open(path, encoding="ascii") as table_file:
+        names = next(line for line in table_file if line.startswith("#spectral_type")).lstrip("#").split()
     table = np.genfromtxt(path, comments="#", dtype=None, encoding="ascii", names=names)
     usable = np.isfinite(table["bp_rp_mag"]) & np.isfinite(table["abs_g_mag"])
     table = table[usable]
