@@ -697,10 +697,10 @@ std::optional<StreamedHeader> readStreamedHeader(const ReadBytes& read, std::vec
         const std::size_t at = image.size();
         image.resize(at + kFitsRecordBytes);
         const std::size_t got = read(image.data() + at, kFitsRecordBytes);
-        if (clean_end != nullptr) {
-            *clean_end = first && got == 0;
-        }
         if (got != kFitsRecordBytes) {
+            if (clean_end != nullptr) {
+                *clean_end = first && got == 0;
+            }
             return std::nullopt;
         }
         if (first && cardKeyword(&image[at]) != "SIMPLE" && cardKeyword(&image[at]) != "XTENSION") {
@@ -744,36 +744,50 @@ ReadBytes readFrom(GzipFile& gzip, const std::string& where) {
     return [&gzip, &where](unsigned char* out, std::size_t bytes) { return gzip.read(out, bytes, where); };
 }
 
+class PlainDataFile {
+  public:
+    explicit PlainDataFile(const std::string& path)
+        : descriptor_(::open(path.c_str(), O_RDONLY | O_CLOEXEC)) {
+        if (descriptor_ < 0) {
+            throw InputError(path + ": cannot open: " + std::strerror(errno));
+        }
+    }
+    ~PlainDataFile() { ::close(descriptor_); }
+    PlainDataFile(const PlainDataFile&) = delete;
+    PlainDataFile& operator=(const PlainDataFile&) = delete;
+
+    int descriptor() const { return descriptor_; }
+    std::int64_t size() const {
+        struct stat status {};
+        return ::fstat(descriptor_, &status) == 0 ? static_cast<std::int64_t>(status.st_size) : 0;
+    }
+
+  private:
+    int descriptor_;
+};
+
 /// Checks every header of an uncompressed FITS file with requireQuotedStringValue before cfitsio opens
 /// it: headers are read with pread and data skipped, so the cost is the headers' size, not the file's.
-/// Stops quietly where the bytes are not FITS (cfitsio then says what is wrong).
+/// Stops quietly where the bytes are not FITS (cfitsio then says what is wrong); a file it cannot open is
+/// PlainDataFile's one-line InputError.
 void requireHeadersSafeForCfitsio(const std::string& path) {
-    const int descriptor = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
-    if (descriptor < 0) {
-        return; // cfitsio reports the reason
-    }
+    const PlainDataFile file(path);
     off_t offset = 0;
     const ReadBytes read = [&](unsigned char* out, std::size_t bytes) {
-        const ssize_t got = ::pread(descriptor, out, bytes, offset);
+        const ssize_t got = ::pread(file.descriptor(), out, bytes, offset);
         offset += std::max<ssize_t>(got, 0);
         return static_cast<std::size_t>(std::max<ssize_t>(got, 0));
     };
     std::vector<unsigned char> image;
-    try {
-        for (int index = 0;; ++index) {
-            image.clear();
-            const std::optional<StreamedHeader> header = readStreamedHeader(read, image, index, path);
-            const std::size_t padded = header ? header->paddedDataBytes() : 0;
-            if (!header || padded > static_cast<std::size_t>(std::numeric_limits<off_t>::max() - offset)) {
-                break;
-            }
-            offset += static_cast<off_t>(padded);
+    for (int index = 0;; ++index) {
+        image.clear();
+        const std::optional<StreamedHeader> header = readStreamedHeader(read, image, index, path);
+        const std::size_t padded = header ? header->paddedDataBytes() : 0;
+        if (!header || padded > static_cast<std::size_t>(std::numeric_limits<off_t>::max() - offset)) {
+            return;
         }
-    } catch (...) {
-        ::close(descriptor);
-        throw;
+        offset += static_cast<off_t>(padded);
     }
-    ::close(descriptor);
 }
 
 /// Reads a gzip-compressed FITS file up to the end of the header of the table `hdu` selects (the rules
@@ -1071,28 +1085,6 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
                                  const std::string& detail) {
     throw InputError(where + ": " + rowsLabel(first, count) + " (truncated file?): " + detail);
 }
-
-class PlainDataFile {
-  public:
-    explicit PlainDataFile(const std::string& path)
-        : descriptor_(::open(path.c_str(), O_RDONLY | O_CLOEXEC)) {
-        if (descriptor_ < 0) {
-            throw InputError(path + ": cannot open: " + std::strerror(errno));
-        }
-    }
-    ~PlainDataFile() { ::close(descriptor_); }
-    PlainDataFile(const PlainDataFile&) = delete;
-    PlainDataFile& operator=(const PlainDataFile&) = delete;
-
-    int descriptor() const { return descriptor_; }
-    std::int64_t size() const {
-        struct stat status {};
-        return ::fstat(descriptor_, &status) == 0 ? static_cast<std::int64_t>(status.st_size) : 0;
-    }
-
-  private:
-    int descriptor_;
-};
 
 // A FITS file opened for reading one table: a gzip file is read as a stream, its headers up to the table
 // inflated into `header_image` for cfitsio (the data follow in `gzip`); anything else is opened by
