@@ -728,7 +728,14 @@ std::optional<StreamedHeader> readStreamedHeader(const ReadBytes& read, std::vec
             } else if (keyword == "TFIELDS") {
                 header.tfields = number();
             } else if (keyword == "NAXIS") {
-                header.axes.resize(static_cast<std::size_t>(std::max(0LL, number())));
+                const long long axes = number();
+                if (axes < 0 || axes > 999) { // FITS Standard 4.0, section 4.4.1.1: 0 <= NAXIS <= 999
+                    throw InputError(where + ": HDU " + std::to_string(hdu_index) +
+                                     ": header card NAXIS = " + std::to_string(axes) +
+                                     " is outside 0-999, which FITS requires (FITS "
+                                     "Standard 4.0, section 4.4.1.1); the file is damaged or not FITS");
+                }
+                header.axes.resize(static_cast<std::size_t>(axes));
             } else if (keyword.starts_with("NAXIS") && allDigits(keyword.substr(5))) {
                 const auto axis = static_cast<std::size_t>(std::atoll(keyword.c_str() + 5));
                 if (axis >= 1 && axis <= header.axes.size()) {

@@ -459,6 +459,29 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
         CHECK(inputErrorOf([&] { listHdus(path); }).starts_with(path + ": HDU 1: header card TTYPE2"));
     }
 
+    // NAXIS beyond FITS's 999 (FITS Standard 4.0, section 4.4.1.1) in a table's header, as a fuzzed gzip
+    // file had: a one-line error instead of an escaping std::length_error from sizing the axes.
+    const std::string many_axes = directory.file("many_axes.fits");
+    writeFitsTable(many_axes, {"",
+                               {valueColumn("parallax", "1D", "mas", {1.0}),
+                                valueColumn("parallax_error", "1D", "mas", {1.0})}});
+    {
+        std::fstream file(many_axes, std::ios::in | std::ios::out | std::ios::binary);
+        std::string header(2 * 2880, ' ');
+        file.read(header.data(), static_cast<std::streamsize>(header.size()));
+        const auto card = header.find("NAXIS   = ", 2880);
+        REQUIRE(card != std::string::npos);
+        file.seekp(static_cast<std::streamoff>(card + 10));
+        file << std::string(8, ' ') << "999999999999";
+    }
+    const std::string many_axes_gz = directory.file("many_axes.fits.gz");
+    gzipFile(many_axes, many_axes_gz);
+    for (const std::string& path : {many_axes, many_axes_gz}) {
+        CHECK(inputErrorOf([&] { listHdus(path); }) ==
+              path + ": HDU 1: header card NAXIS = 999999999999 is outside 0-999, which FITS requires (FITS "
+                     "Standard 4.0, section 4.4.1.1); the file is damaged or not FITS");
+    }
+
     // The first failing file in input order is the one reported.
     CHECK(inputErrorOf([&] { scanCatalogs({no_parallax, missing}, settings); }).starts_with(no_parallax));
 }
