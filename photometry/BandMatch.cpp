@@ -12,7 +12,6 @@
 namespace starcensus::photometry {
 
 namespace {
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr double kGridStepsPerSubtype = 10.0; // grid of 0.1 subtype
 constexpr double kGridStep = 1.0 / kGridStepsPerSubtype;
 constexpr double kFirstUltracoolWiseCode = 66.0; // M6V: the Dupuy & Liu 2012 relations start here
