@@ -47,6 +47,26 @@ ScanSettings everything() {
     return settings;
 }
 
+// A parallax table at `path` whose card starting `card_start` (searched from byte `from`) has the bytes
+// after its '=' replaced by `after_equals`, and its gzip copy: the damaged-header cases. Returns both paths.
+std::vector<std::string> tableWithDamagedCard(const std::string& path, const std::string& card_start,
+                                              std::size_t from, const std::string& after_equals) {
+    writeFitsTable(path, {"",
+                          {valueColumn("parallax", "1D", "mas", {1.0}),
+                           valueColumn("parallax_error", "1D", "mas", {1.0})}});
+    {
+        std::fstream file(path, std::ios::in | std::ios::out | std::ios::binary);
+        std::string header(2 * 2880, ' ');
+        file.read(header.data(), static_cast<std::streamsize>(header.size()));
+        const auto card = header.find(card_start, from);
+        REQUIRE(card != std::string::npos);
+        file.seekp(static_cast<std::streamoff>(card + 9));
+        file << after_equals;
+    }
+    gzipFile(path, path + ".gz");
+    return {path, path + ".gz"};
+}
+
 } // namespace
 
 TEST_CASE("known values come back exactly, in canonical units, with the mapping recorded") {
@@ -433,25 +453,12 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
                                       " [HDU 1]: field g is ambiguous: columns gmag (name gmag), G_MAG (name "
                                       "G_MAG) all match; choose one with --column g=COLUMN");
 
-    // A TTYPE value of 70 unquoted characters, as fuzz/known-crashes/cfitsio_unquoted_ttype.fits has:
-    // cfitsio 4.2.0 would overflow its 70-byte column name (SIGABRT), so the header check refuses it
-    // first, in the plain file and in its gzip copy (FITS Standard 4.0, section 4.2.1: quoted strings).
-    const std::string unquoted = directory.file("unquoted.fits");
-    writeFitsTable(unquoted, {"",
-                              {valueColumn("parallax", "1D", "mas", {1.0}),
-                               valueColumn("parallax_error", "1D", "mas", {1.0})}});
-    {
-        std::fstream file(unquoted, std::ios::in | std::ios::out | std::ios::binary);
-        std::string header(2 * 2880, ' ');
-        file.read(header.data(), static_cast<std::streamsize>(header.size()));
-        const auto card = header.find("TTYPE2  = ");
-        REQUIRE(card != std::string::npos);
-        file.seekp(static_cast<std::streamoff>(card + 9));
-        file << std::string(71, 'x');
-    }
-    const std::string unquoted_gz = directory.file("unquoted.fits.gz");
-    gzipFile(unquoted, unquoted_gz);
-    for (const std::string& path : {unquoted, unquoted_gz}) {
+    // A TTYPE value of 71 unquoted bytes, as
+    // fuzz/corpus/fits_reader_fuzz/unquoted_ttype_cfitsio_overflow.fits has: cfitsio 4.2.0 would overflow its
+    // 70-byte column name (SIGABRT), so the header check refuses it first, in the plain file and in its gzip
+    // copy (FITS Standard 4.0, section 4.2.1: quoted strings).
+    for (const std::string& path :
+         tableWithDamagedCard(directory.file("unquoted.fits"), "TTYPE2  = ", 0, std::string(71, 'x'))) {
         CHECK(scanError(path) == path +
                                      ": HDU 1: header card TTYPE2 has a value that is not a quoted string, "
                                      "which FITS requires (FITS Standard 4.0, section 4.2.1); the file is "
@@ -461,22 +468,8 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
 
     // NAXIS beyond FITS's 999 (FITS Standard 4.0, section 4.4.1.1) in a table's header, as a fuzzed gzip
     // file had: a one-line error instead of an escaping std::length_error from sizing the axes.
-    const std::string many_axes = directory.file("many_axes.fits");
-    writeFitsTable(many_axes, {"",
-                               {valueColumn("parallax", "1D", "mas", {1.0}),
-                                valueColumn("parallax_error", "1D", "mas", {1.0})}});
-    {
-        std::fstream file(many_axes, std::ios::in | std::ios::out | std::ios::binary);
-        std::string header(2 * 2880, ' ');
-        file.read(header.data(), static_cast<std::streamsize>(header.size()));
-        const auto card = header.find("NAXIS   = ", 2880);
-        REQUIRE(card != std::string::npos);
-        file.seekp(static_cast<std::streamoff>(card + 10));
-        file << std::string(8, ' ') << "999999999999";
-    }
-    const std::string many_axes_gz = directory.file("many_axes.fits.gz");
-    gzipFile(many_axes, many_axes_gz);
-    for (const std::string& path : {many_axes, many_axes_gz}) {
+    for (const std::string& path : tableWithDamagedCard(directory.file("many_axes.fits"), "NAXIS   = ", 2880,
+                                                        "         999999999999")) {
         CHECK(inputErrorOf([&] { listHdus(path); }) ==
               path + ": HDU 1: header card NAXIS = 999999999999 is outside 0-999, which FITS requires (FITS "
                      "Standard 4.0, section 4.4.1.1); the file is damaged or not FITS");
