@@ -797,18 +797,55 @@ void requireHeadersSafeForCfitsio(const std::string& path) {
     }
 }
 
+/// The error for a gzip-compressed file whose inflated bytes stop before HDU `hdu_index` is complete;
+/// `header` is where that HDU's header starts. Said here rather than by cfitsio, which would allocate the
+/// size a damaged gzip trailer states (up to 4 GiB) to inflate the file whole before failing.
+[[noreturn]] void throwIncompleteGzipFits(const std::string& path, int hdu_index,
+                                          const unsigned char* header) {
+    const std::string keyword = cardKeyword(header);
+    if (hdu_index == 0 && keyword != "SIMPLE") {
+        throw InputError(path +
+                         ": not a FITS file: the gzip-compressed data do not start with a SIMPLE card");
+    }
+    throw InputError(path + ": the gzip-compressed FITS data end inside HDU " + std::to_string(hdu_index) +
+                     " (truncated file?)");
+}
+
+/// Appends up to `bytes` inflated bytes to `image` in chunks of 1 MiB, so a damaged header's size costs
+/// no more memory than the stream really holds; false when the stream ends first.
+bool appendInflated(GzipFile& gzip, std::vector<unsigned char>& image, std::size_t bytes,
+                    const std::string& where) {
+    constexpr std::size_t kChunkBytes = std::size_t{1} << 20;
+    for (std::size_t left = bytes; left > 0;) {
+        const std::size_t chunk = std::min(left, kChunkBytes);
+        const std::size_t at = image.size();
+        image.resize(at + chunk);
+        if (gzip.read(image.data() + at, chunk, where) != chunk) {
+            return false;
+        }
+        left -= chunk;
+    }
+    return true;
+}
+
 /// Reads a gzip-compressed FITS file up to the end of the header of the table `hdu` selects (the rules
 /// of ScanSettings::hdu), keeping every byte before it; the stream is left at the table's first data
-/// byte. Returns nothing when the stream ends first (no such table, not FITS): the caller then lets
-/// cfitsio open the file and say what is wrong.
-std::optional<std::vector<unsigned char>> readHeadersUpToTable(GzipFile& gzip, const std::string& hdu,
-                                                               const std::string& where) {
+/// byte. When the file ends cleanly without that table, the image holds the whole file, so selectTable()
+/// on it says which HDUs there are; a stream that ends inside an HDU, or is not FITS, is an InputError.
+std::vector<unsigned char> readHeadersUpToTable(GzipFile& gzip, const std::string& hdu,
+                                                const std::string& where) {
     std::vector<unsigned char> image;
     for (int index = 0;; ++index) {
+        const std::size_t header_start = image.size();
+        bool clean_end = false;
         const std::optional<StreamedHeader> header =
-            readStreamedHeader(readFrom(gzip, where), image, index, where);
+            readStreamedHeader(readFrom(gzip, where), image, index, where, &clean_end);
         if (!header) {
-            return std::nullopt;
+            if (!clean_end || index == 0) { // an empty stream is no FITS file
+                throwIncompleteGzipFits(where, index, image.data() + header_start);
+            }
+            image.resize(header_start); // what follows the last HDU is no part of the FITS file
+            return image;
         }
         const bool table = header->xtension == "BINTABLE";
         const bool selected = hdu.empty()      ? table
@@ -817,19 +854,16 @@ std::optional<std::vector<unsigned char>> readHeadersUpToTable(GzipFile& gzip, c
         if (selected) {
             return image;
         }
-        const std::size_t padded = header->paddedDataBytes();
-        const std::size_t at = image.size();
-        image.resize(at + padded);
-        if (gzip.read(image.data() + at, padded, where) != padded) {
-            return std::nullopt;
+        if (!appendInflated(gzip, image, header->paddedDataBytes(), where)) {
+            throwIncompleteGzipFits(where, index, image.data() + header_start);
         }
     }
 }
 
 /// listHdus() of a gzip-compressed file, streamed: headers are parsed as they are inflated and data are
-/// inflated into a bounded buffer and dropped, so memory does not grow with the file. Nothing when the
-/// stream is not a complete FITS file (cfitsio then says what is wrong).
-std::optional<std::vector<HduSummary>> listGzipHdus(const std::string& path) {
+/// inflated into a bounded buffer and dropped, so memory does not grow with the file. A header cut short
+/// is an InputError.
+std::vector<HduSummary> listGzipHdus(const std::string& path) {
     GzipFile gzip(path);
     std::vector<HduSummary> hdus;
     std::vector<unsigned char> header_bytes;
@@ -840,7 +874,10 @@ std::optional<std::vector<HduSummary>> listGzipHdus(const std::string& path) {
         const std::optional<StreamedHeader> header =
             readStreamedHeader(readFrom(gzip, path), header_bytes, index, path, &clean_end);
         if (!header) {
-            return index > 0 && clean_end ? std::optional(hdus) : std::nullopt;
+            if (!clean_end || index == 0) { // an empty stream is no FITS file
+                throwIncompleteGzipFits(path, index, header_bytes.data());
+            }
+            return hdus;
         }
         const int type = header->xtension.empty() || header->xtension == "IMAGE" ? IMAGE_HDU
                          : header->xtension == "TABLE"                           ? ASCII_TBL
@@ -849,7 +886,7 @@ std::optional<std::vector<HduSummary>> listGzipHdus(const std::string& path) {
         for (std::size_t left = header->paddedDataBytes(); left > 0;) {
             const std::size_t chunk = std::min(left, discard.size());
             if (gzip.read(discard.data(), chunk, path) != chunk) {
-                return std::nullopt;
+                return hdus; // data cut short, as cfitsio lists a plain file: reading the rows says so
             }
             left -= chunk;
         }
@@ -1101,14 +1138,9 @@ struct OpenedFits {
         requireRegularFile(path);
         if (storage == Storage::Gzip) {
             gzip.emplace(path);
-            if (auto image = readHeadersUpToTable(*gzip, hdu, path)) {
-                header_image = std::move(*image);
-                file.emplace(path, header_image);
-            } else {
-                gzip.reset(); // no such table or not FITS: cfitsio opens the whole file and explains
-            }
-        }
-        if (!file) {
+            header_image = readHeadersUpToTable(*gzip, hdu, path);
+            file.emplace(path, header_image);
+        } else {
             file.emplace(path);
         }
     }
@@ -1168,9 +1200,7 @@ ColumnKind kindOf(const TableColumn& column) {
 std::vector<HduSummary> listHdus(const std::string& path) {
     if (storageOf(path) == Storage::Gzip) {
         requireRegularFile(path);
-        if (auto hdus = listGzipHdus(path)) {
-            return *hdus;
-        }
+        return listGzipHdus(path);
     }
     FitsFile file(path);
     std::vector<HduSummary> hdus;
