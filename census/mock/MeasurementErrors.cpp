@@ -57,9 +57,17 @@ double rpMagErrorMag(double g_mag) {
     return logLinear(kRpMag, g_mag);
 }
 
+double backgroundLimitedErrorMag(double mag, double limit_mag, double error_at_limit_mag, double floor_mag) {
+    const double background = error_at_limit_mag * std::pow(10.0, 0.4 * (mag - limit_mag));
+    return std::hypot(floor_mag, background);
+}
+
 double twoMassErrorMag(double mag, double limit_mag) {
-    const double background = 0.1 * std::pow(10.0, 0.4 * (mag - limit_mag));
-    return std::hypot(0.02, background);
+    return backgroundLimitedErrorMag(mag, limit_mag, 0.1, 0.02);
+}
+
+double wiseErrorMag(double mag, double limit_mag) {
+    return backgroundLimitedErrorMag(mag, limit_mag, 0.2, 0.015);
 }
 
 double bpRpLossProbability(double g_mag, double start_g_mag, double end_g_mag) {

@@ -21,6 +21,12 @@ double rpMagErrorMag(double g_mag);
 /// reaching S/N = 10 at the limit (limits J 15.8, H 15.1, Ks 14.3 of Skrutskie et al. 2006, AJ 131,
 /// 1163, and the floor are from memory).
 double twoMassErrorMag(double mag, double limit_mag);
+/// 1-sigma WISE W1/W2 error (mag) at magnitude `mag` in a band whose 5-sigma limit is `limit_mag`:
+/// sqrt(0.015^2 + (0.2 * 10^(0.4 (mag - limit)))^2), the AllWISE-like floor and S/N = 5 at the limit
+/// (from memory).
+double wiseErrorMag(double mag, double limit_mag);
+/// The law of both: sqrt(floor^2 + (error_at_limit * 10^(0.4 (mag - limit)))^2) (mag).
+double backgroundLimitedErrorMag(double mag, double limit_mag, double error_at_limit_mag, double floor_mag);
 /// Probability that G_BP and G_RP are missing at G: 0 at G <= start, rising linearly to 1 at G >= end
 /// (common practice, no source).
 double bpRpLossProbability(double g_mag, double start_g_mag, double end_g_mag);

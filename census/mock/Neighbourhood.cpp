@@ -1,11 +1,13 @@
 #include "census/mock/Neighbourhood.h"
 
+#include "census/CatalogMerge.h"
 #include "census/mock/MeasurementErrors.h"
 #include "photometry/base/OptionChecks.h"
 
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <string_view>
 #include <tuple>
 #include <utility>
 
@@ -57,8 +59,10 @@ double addMagnitudes(double a, double b) {
 }
 
 photometry::BandMagnitudes combine(const photometry::BandMagnitudes& a, const photometry::BandMagnitudes& b) {
-    return {addMagnitudes(a.g, b.g), addMagnitudes(a.bp, b.bp), addMagnitudes(a.rp, b.rp),
-            addMagnitudes(a.j, b.j), addMagnitudes(a.h, b.h),   addMagnitudes(a.ks, b.ks)};
+    return {addMagnitudes(a.g, b.g),  addMagnitudes(a.bp, b.bp), addMagnitudes(a.rp, b.rp),
+            addMagnitudes(a.j, b.j),  addMagnitudes(a.h, b.h),   addMagnitudes(a.ks, b.ks),
+            addMagnitudes(a.b, b.b),  addMagnitudes(a.v, b.v),   addMagnitudes(a.w1, b.w1),
+            addMagnitudes(a.w2, b.w2)};
 }
 
 // A measured magnitude: Gaussian noise on the flux, sigma_flux / flux = sigma_mag / (2.5 / ln 10), so a
@@ -69,13 +73,32 @@ double observeMagnitude(double true_mag, double sigma_mag, Xoshiro256& random) {
     return relative_flux > 0.0 ? true_mag - 2.5 * std::log10(relative_flux) : kNaN;
 }
 
+// A Gaussian measurement in magnitude with its quoted error (mag): NaN, NaN for a NaN band.
+std::pair<double, double> magnitudeObservation(double true_mag, double error_mag, Xoshiro256& random) {
+    if (std::isnan(true_mag)) {
+        return {kNaN, kNaN};
+    }
+    return {true_mag + error_mag * random.normal(), error_mag};
+}
+
 // Observed value of a band of the 2MASS-like survey and its quoted error (mag): NaN beyond its limit.
 std::pair<double, double> twoMassObservation(double true_mag, double limit_mag, Xoshiro256& random) {
     if (std::isnan(true_mag) || true_mag > limit_mag) {
         return {kNaN, kNaN};
     }
-    const double error_mag = twoMassErrorMag(true_mag, limit_mag);
-    return {true_mag + error_mag * random.normal(), error_mag};
+    return magnitudeObservation(true_mag, twoMassErrorMag(true_mag, limit_mag), random);
+}
+
+// A literature spectral type of a dwarf code, to the half subtype below it (so the letter is the true
+// one): "T6.5", "L5"; with a luminosity class appended ("A1V", "K2III") when given.
+std::string literatureTypeOf(double spectral_code, const char* luminosity_class) {
+    const double half_subtypes = std::floor(std::clamp(spectral_code, 0.0, 99.9) * 2.0) / 2.0;
+    const int letter = static_cast<int>(half_subtypes / 10.0);
+    constexpr std::string_view kLetters = "OBAFGKMLTY"; // photometry/StellarClass.h's codes
+    char buffer[16];
+    std::snprintf(buffer, sizeof buffer, "%c%g%s", kLetters[static_cast<std::size_t>(letter)],
+                  half_subtypes - 10.0 * letter, luminosity_class);
+    return buffer;
 }
 
 } // namespace
@@ -113,6 +136,27 @@ void validateMockSettings(const MockSettings& s) {
     requireInRange("giant-g-ks", s.giant_g_ks_mag, 0.0, 5.0, "mag");
     requireInRange("giant-g-ks-scatter", s.giant_g_ks_scatter_mag, 0.0, 1.0, "mag");
     requireInRange("g-limit", s.g_limit_mag, 3.0, 25.0, "mag");
+    requireInRange("g-bright-limit", s.g_bright_limit_mag, -30.0, 25.0, "mag");
+    requireThat(s.g_bright_limit_mag < s.g_limit_mag, "g-bright-limit", "must be below --g-limit");
+    const CompanionSettings& c = s.companion;
+    requireInRange("companion-epoch", c.epoch_yr, 1900.0, 2100.0, "yr");
+    requireInRange("ultracool-min-code", c.ultracool_min_code, 60.0, 99.0, "");
+    requireInRange("w1-limit", c.w1_limit_mag, 0.0, 30.0, "mag");
+    requireInRange("w2-limit", c.w2_limit_mag, 0.0, 30.0, "mag");
+    requireInRange("followup-j-limit", c.followup_j_limit_mag, 0.0, 30.0, "mag");
+    requireInRange("followup-h-limit", c.followup_h_limit_mag, 0.0, 30.0, "mag");
+    requireInRange("followup-ks-limit", c.followup_ks_limit_mag, 0.0, 30.0, "mag");
+    requireInRange("ultracool-parallax-error", c.ultracool_parallax_error_mas, 0.0, 10.0, "mas",
+                   LowerBound::Exclusive);
+    requireInRange("ultracool-position-error", c.ultracool_position_error_arcsec, 0.0, 10.0, "arcsec");
+    requireInRange("spectral-type-share", c.spectral_type_share, 0.0, 1.0, "");
+    requireInRange("hipparcos-parallax-error", c.hipparcos_parallax_error_mas, 0.0, 10.0, "mas",
+                   LowerBound::Exclusive);
+    requireInRange("hipparcos-pm-error", c.hipparcos_pm_error_mas_per_yr, 0.0, 10.0, "mas/yr");
+    requireInRange("johnson-error", c.johnson_error_mag, 0.0, 1.0, "mag", LowerBound::Exclusive);
+    requireInRange("two-mass-saturation", c.two_mass_saturation_mag, -5.0, 20.0, "mag");
+    requireInRange("bright-two-mass-error", c.bright_two_mass_error_mag, 0.0, 2.0, "mag",
+                   LowerBound::Exclusive);
     requireInRange("bp-rp-loss-start", s.bp_rp_loss_start_g_mag, 3.0, 25.0, "mag");
     requireInRange("bp-rp-loss-end", s.bp_rp_loss_end_g_mag, 3.0, 25.0, "mag");
     requireThat(s.bp_rp_loss_start_g_mag < s.bp_rp_loss_end_g_mag, "bp-rp-loss-start",
@@ -153,7 +197,7 @@ std::vector<RadiusCounts> countWithinRadii(std::span<const ObjectTruth> truth,
                                            std::span<const double> radii_pc) {
     std::vector<RadiusCounts> counts;
     for (double radius : radii_pc) {
-        counts.push_back({radius, {}, {}, {}});
+        counts.push_back({radius, {}, {}, {}, {}, {}, {}});
     }
     addToCounts(truth, counts);
     return counts;
@@ -172,6 +216,9 @@ void addToCounts(std::span<const ObjectTruth> truth, std::vector<RadiusCounts>& 
                 if (object.catalogued) {
                     ++within.catalogued[primary];
                 }
+                within.in_companion[primary] += object.in_companion ? 1 : 0;
+                within.in_both[primary] += object.catalogued && object.in_companion ? 1 : 0;
+                within.in_any_file[primary] += object.catalogued || object.in_companion ? 1 : 0;
             }
         }
     }
@@ -224,6 +271,12 @@ MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, 
         c.abs.j += shift + 0.5 * infrared;
         c.abs.h += shift;
         c.abs.ks += shift - 0.5 * infrared;
+        // Johnson and WISE bands follow the luminosity shift only (no draw of their own, so the
+        // Gaia-like catalogue's streams are as they were before these bands existed).
+        c.abs.b += shift;
+        c.abs.v += shift;
+        c.abs.w1 += shift;
+        c.abs.w2 += shift;
         return c;
     }
     const double giant_end_gyr = (1.0 + s.giant_phase_share) * lifetime_gyr;
@@ -242,6 +295,11 @@ MockGenerator::Component MockGenerator::makeComponent(double initial_mass_msun, 
         c.abs.ks = c.abs.g - g_ks;
         c.abs.j = c.abs.ks + (same_colour.j - same_colour.ks);
         c.abs.h = photometry::absHFromJKs(c.abs.j, c.abs.ks);
+        // Johnson and WISE bands: the same-colour dwarf's G - V, B - V, Ks - W1 and W1 - W2.
+        c.abs.v = c.abs.g - (same_colour.g - same_colour.v);
+        c.abs.b = c.abs.v + (same_colour.b - same_colour.v);
+        c.abs.w1 = c.abs.ks - (same_colour.ks - same_colour.w1);
+        c.abs.w2 = c.abs.w1 - (same_colour.w1 - same_colour.w2);
         return c;
     }
     if (initial_mass_msun > s.max_white_dwarf_progenitor_msun) {
@@ -359,12 +417,105 @@ void MockGenerator::addObject(Component primary, Component companion, const Plac
     } else {
         row.ruwe = std::pow(10.0, s.ruwe_scatter_dex * random.normal());
     }
-    object.catalogued = g_obs <= s.g_limit_mag; // false for NaN
+    object.catalogued = g_obs <= s.g_limit_mag && g_obs >= s.g_bright_limit_mag; // false for NaN
     if (object.catalogued) {
         row.row_index = catalogued_++;
         catalog.push_back(row);
     }
+    if (companion_catalog_ != nullptr && s.companion.enabled) {
+        addCompanionRow(object, primary, abs, row);
+    }
     truth.push_back(object);
+}
+
+void MockGenerator::addCompanionRow(ObjectTruth& object, const Component& primary,
+                                    const photometry::BandMagnitudes& abs,
+                                    const photometry::CatalogRow& survey_row) {
+    const CompanionSettings& c = settings_.companion;
+    const bool ultracool =
+        (primary.stage == MockStage::MainSequence || primary.stage == MockStage::BrownDwarf) &&
+        primary.spectral_code >= c.ultracool_min_code;
+    const bool bright = object.true_g_mag < settings_.g_bright_limit_mag;
+    if (!ultracool && !bright) {
+        return;
+    }
+    // A stream per object (its source_id), apart from the Gaia-like catalogue's streams.
+    constexpr std::uint64_t kCompanionStreamTag = 0xC0A1E5CE0000ULL;
+    Xoshiro256 random(seed_, kCompanionStreamTag ^ static_cast<std::uint64_t>(object.source_id));
+    const double modulus = 5.0 * std::log10(object.distance_pc) - 5.0;
+    CompanionRow out;
+    photometry::CatalogRow& row = out.row; // no Gaia source_id
+    double parallax_error_mas = c.hipparcos_parallax_error_mas;
+    double pm_error_mas_per_yr = c.hipparcos_pm_error_mas_per_yr;
+    double position_error_arcsec = 0.001; // Hipparcos: ~1 mas at its epoch (from memory)
+    if (ultracool) {
+        // Detection in W2 with the noise in flux, as for G (observeMagnitude), so sources far below the
+        // limit cannot scatter in.
+        const double true_w2 = abs.w2 + modulus;
+        row.w2_mag = observeMagnitude(true_w2, wiseErrorMag(true_w2, c.w2_limit_mag), random);
+        if (!(row.w2_mag <= c.w2_limit_mag)) {
+            return; // not detected by the WISE-like survey
+        }
+        row.w2_error_mag = wiseErrorMag(row.w2_mag, c.w2_limit_mag);
+        const double true_w1 = abs.w1 + modulus;
+        if (true_w1 <= c.w1_limit_mag) { // fainter: an upper limit, listed as missing
+            std::tie(row.w1_mag, row.w1_error_mag) =
+                magnitudeObservation(true_w1, wiseErrorMag(true_w1, c.w1_limit_mag), random);
+        }
+        std::tie(row.j_mag, row.j_error_mag) =
+            twoMassObservation(abs.j + modulus, c.followup_j_limit_mag, random);
+        std::tie(row.h_mag, row.h_error_mag) =
+            twoMassObservation(abs.h + modulus, c.followup_h_limit_mag, random);
+        std::tie(row.ks_mag, row.ks_error_mag) =
+            twoMassObservation(abs.ks + modulus, c.followup_ks_limit_mag, random);
+        parallax_error_mas = std::min(10.0, c.ultracool_parallax_error_mas *
+                                                std::pow(10.0, 0.2 * std::max(0.0, row.w2_mag - 13.0)));
+        pm_error_mas_per_yr = parallax_error_mas;
+        position_error_arcsec = c.ultracool_position_error_arcsec;
+        if (random.uniform() < c.spectral_type_share) {
+            out.spectral_type = literatureTypeOf(primary.spectral_code, "");
+        }
+    } else {
+        std::tie(row.b_mag, row.b_error_mag) =
+            magnitudeObservation(abs.b + modulus, c.johnson_error_mag, random);
+        std::tie(row.v_mag, row.v_error_mag) =
+            magnitudeObservation(abs.v + modulus, c.johnson_error_mag, random);
+        const auto two_mass = [&](double true_mag, double limit_mag) {
+            return magnitudeObservation(true_mag,
+                                        true_mag < c.two_mass_saturation_mag
+                                            ? c.bright_two_mass_error_mag
+                                            : twoMassErrorMag(true_mag, limit_mag),
+                                        random);
+        };
+        std::tie(row.j_mag, row.j_error_mag) = two_mass(abs.j + modulus, settings_.j_limit_mag);
+        std::tie(row.h_mag, row.h_error_mag) = two_mass(abs.h + modulus, settings_.h_limit_mag);
+        std::tie(row.ks_mag, row.ks_error_mag) = two_mass(abs.ks + modulus, settings_.ks_limit_mag);
+        if (random.uniform() < c.spectral_type_share && !std::isnan(primary.spectral_code)) {
+            out.spectral_type =
+                literatureTypeOf(primary.spectral_code, primary.stage == MockStage::Giant ? "III" : "V");
+        }
+    }
+    row.parallax_error_mas = parallax_error_mas;
+    row.parallax_mas = 1000.0 / object.distance_pc + parallax_error_mas * random.normal();
+    // The true position (the Gaia-like catalogue's, at J2016.0) moved to the companion's epoch along the
+    // true proper motion, plus the position error; the proper motion as measured.
+    photometry::CatalogRow truth_row = survey_row;
+    const double to_pm = 1000.0 / (kKmPerSecondPerAuPerYear * object.distance_pc);
+    truth_row.pmra_mas_per_yr = to_pm * object.velocity_ra_km_s;
+    truth_row.pmdec_mas_per_yr = to_pm * object.velocity_dec_km_s;
+    const SkyPosition at_epoch = positionAtEpoch(truth_row, kGaiaDr3EpochYr, c.epoch_yr);
+    row.dec_deg = at_epoch.dec_deg + position_error_arcsec / 3600.0 * random.normal();
+    row.ra_deg = std::fmod(at_epoch.ra_deg +
+                               position_error_arcsec / 3600.0 * random.normal() /
+                                   std::cos(at_epoch.dec_deg * kRadiansPerDegree) +
+                               360.0,
+                           360.0);
+    row.pmra_mas_per_yr = truth_row.pmra_mas_per_yr + pm_error_mas_per_yr * random.normal();
+    row.pmdec_mas_per_yr = truth_row.pmdec_mas_per_yr + pm_error_mas_per_yr * random.normal();
+    row.row_index = companion_catalogued_++;
+    object.in_companion = true;
+    object.companion_row = row.row_index;
+    companion_catalog_->push_back(std::move(out));
 }
 
 void MockGenerator::addResolvedCompanions(const Component& first, const Placement& first_placement,
@@ -459,8 +610,9 @@ void MockGenerator::addResolvedCompanions(const Component& first, const Placemen
 }
 
 bool MockGenerator::next(std::size_t max_systems, std::vector<photometry::CatalogRow>& catalog,
-                         std::vector<ObjectTruth>& truth) {
+                         std::vector<ObjectTruth>& truth, std::vector<CompanionRow>* companion_catalog) {
     const MockSettings& s = settings_;
+    companion_catalog_ = companion_catalog;
     for (std::size_t made = 0; made < max_systems && !done_; ++made) {
         // Poisson process in enclosed volume: exponential gaps of mean 1/density.
         enclosed_volume_pc3_ += -std::log(positions_.uniformOpen()) / s.system_density_per_pc3;
@@ -514,7 +666,7 @@ MockResult simulateNeighbourhood(const MockSettings& settings, std::uint64_t see
     result.settings = settings;
     result.seed = seed;
     MockGenerator generator(settings, seed, photometry);
-    while (generator.next(100000, result.catalog, result.truth)) {
+    while (generator.next(100000, result.catalog, result.truth, &result.companion_catalog)) {
     }
     result.remnant_only_systems = generator.remnantOnlySystems();
     return result;

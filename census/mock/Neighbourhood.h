@@ -26,7 +26,16 @@
 //    The companion moves with the primary's tangential velocity plus its orbital velocity; it is its own
 //    object, with its own measurement errors.
 //  - Measurement errors from MeasurementErrors.h, Gaussian in flux for the Gaia bands and in magnitude for
-//    2MASS; an object is catalogued if its measured G is at most the survey limit.
+//    2MASS; an object is catalogued if its measured G is at most the survey limit and not brighter than
+//    its bright limit (saturation).
+//  - Optionally (CompanionSettings) a second catalogue of what that survey misses, as a literature
+//    compilation would list it, with no Gaia source_id and positions at its own epoch: (a) ultracool
+//    dwarfs (late L, T, Y) detected by a WISE-like survey in W2, with W1 where detected, J/H/Ks from
+//    2MASS and deeper follow-up, parallaxes of ground-based and Spitzer programmes and, for a share of
+//    them, a literature spectral type; the ones the Gaia-like survey also sees make the two files overlap;
+//    (b) stars brighter than the bright limit with Johnson B/V, saturated 2MASS J/H/Ks and
+//    Hipparcos-like astrometry. Its measurements draw from a stream of their own per object, so the
+//    Gaia-like catalogue is the same with or without it.
 #include "census/InitialMassFunction.h"
 #include "census/Random.h"
 #include "photometry/ModelPhotometry.h"
@@ -36,9 +45,43 @@
 #include <array>
 #include <cstdint>
 #include <span>
+#include <string>
 #include <vector>
 
 namespace starcensus::census::mock {
+
+/// The companion catalogue (laws in the header comment; sources beside each field).
+struct CompanionSettings {
+    bool enabled = false;
+    // Epoch of the positions (Julian year): compilations give positions at J2000.0, as SIMBAD does (from
+    // memory); the Hipparcos-like astrometry of the bright stars, measured around 1991.25, and the
+    // ultracool dwarfs' are propagated there.
+    double epoch_yr = 2000.0;
+    // (a) Ultracool dwarfs: dwarfs and brown dwarfs of this spectral code or later (75 = L5V).
+    double ultracool_min_code = 75.0;
+    double w1_limit_mag = 16.9; // AllWISE-like 5-sigma limits (Vega; Cutri et al. 2013, AllWISE
+    double w2_limit_mag = 16.0; // explanatory supplement; from memory): W2 decides detection
+    // J, H, Ks: 2MASS where it sees them, otherwise follow-up imaging to these 10-sigma limits. The
+    // Kirkpatrick et al. 2019 Y dwarfs (tests/reference copy) have MKO J to 23.5, 3 of 23 without one;
+    // the H and Ks limits are from memory (follow-up in those bands is shallower).
+    double followup_j_limit_mag = 23.5;
+    double followup_h_limit_mag = 22.0;
+    double followup_ks_limit_mag = 21.5;
+    // Parallax error (mas): this at W2 <= 13, growing 0.2 dex per magnitude fainter, at most 10 (ground-based
+    // and Spitzer programmes: Kirkpatrick et al. 2019, ApJS 240, 19, 2-8 mas for Y dwarfs; Best et al.
+    // 2020, AJ 159, 257, 1-5 mas; from memory). The proper-motion error (mas/yr) is the same number.
+    double ultracool_parallax_error_mas = 1.5;
+    double ultracool_position_error_arcsec = 0.1; // per axis (from memory)
+    double spectral_type_share = 0.7; // objects listed with a spectral type (common practice, no source)
+    // (b) Bright stars: true G brighter than MockSettings::g_bright_limit_mag.
+    double hipparcos_parallax_error_mas = 0.5;  // van Leeuwen 2007, A&A 474, 653: 0.2-0.5 mas at V < 5
+    double hipparcos_pm_error_mas_per_yr = 0.5; // (from memory)
+    double johnson_error_mag = 0.01;            // photoelectric UBV (from memory)
+    // 2MASS saturates: brighter than this the bands come from the short "Read 1" frames with errors of
+    // bright_two_mass_error_mag (Skrutskie et al. 2006, AJ 131, 1163; from memory).
+    double two_mass_saturation_mag = 4.5;
+    double bright_two_mass_error_mag = 0.2;
+};
 
 struct MockSettings {
     // Volume and kinematics.
@@ -84,6 +127,9 @@ struct MockSettings {
     // Survey.
     double g_limit_mag =
         20.7; // objects with measured G above this are not catalogued (common practice, no source)
+    // Objects with measured G below this saturate and are not catalogued (Gaia DR3 is incomplete
+    // brighter than G ~ 3; Gaia Collaboration 2023, A&A 674, A1; from memory).
+    double g_bright_limit_mag = 3.0;
     double bp_rp_loss_start_g_mag = 19.0; // BP/RP loss probability 0 here ...
     double bp_rp_loss_end_g_mag = 21.0;   // ... rising linearly to 1 here (common practice, no source)
     double j_limit_mag = 15.8; // 2MASS 10-sigma limits (Skrutskie et al. 2006, AJ 131, 1163; from memory);
@@ -94,6 +140,7 @@ struct MockSettings {
     double binary_high_ruwe_share = 0.4; // binaries whose orbit shows: RUWE log-uniform in the range below
     double binary_high_ruwe_min = 1.4;   // (common practice, no source)
     double binary_high_ruwe_max = 10.0;
+    CompanionSettings companion;
 };
 
 /// Throws InputError naming the option (Options.h spelling, e.g. "--density") for a bad value.
@@ -134,7 +181,15 @@ struct ObjectTruth {
     double velocity_dec_km_s = photometry::kMissing;
     double abs_g_mag = photometry::kMissing;  // combined absolute G (mag)
     double true_g_mag = photometry::kMissing; // combined apparent G without errors (mag)
-    bool catalogued = false;
+    bool catalogued = false;                  // in the Gaia-like catalogue
+    bool in_companion = false;                // in the companion catalogue (CompanionSettings)
+    std::int64_t companion_row = -1;          // its row there (0-based), -1 if none
+};
+
+/// A row of the companion catalogue: its measurements and its literature spectral type ("" = none).
+struct CompanionRow {
+    photometry::CatalogRow row;
+    std::string spectral_type;
 };
 
 /// Objects of each class within one radius. "components" counts primaries and companions separately,
@@ -144,6 +199,9 @@ struct RadiusCounts {
     std::array<std::int64_t, photometry::kClassCount> all{};
     std::array<std::int64_t, photometry::kClassCount> catalogued{};
     std::array<std::int64_t, photometry::kClassCount> components{};
+    std::array<std::int64_t, photometry::kClassCount> in_companion{};
+    std::array<std::int64_t, photometry::kClassCount> in_both{};     // catalogued and in the companion
+    std::array<std::int64_t, photometry::kClassCount> in_any_file{}; // catalogued or in the companion
 };
 
 /// Counts by class within each radius (pc; any order). Pure: call once over all truth, or accumulate.
@@ -156,6 +214,7 @@ struct MockResult {
     std::uint64_t seed = 0;
     std::vector<photometry::CatalogRow> catalog; // catalogued objects, by system distance
     std::vector<ObjectTruth> truth;              // every object, by system distance (companions follow)
+    std::vector<CompanionRow> companion_catalog; // the companion catalogue, if enabled, by distance
     std::int64_t remnant_only_systems = 0;       // systems of NS/BH only: removed, in neither list
 };
 
@@ -167,9 +226,10 @@ class MockGenerator {
     MockGenerator(const MockSettings& settings, std::uint64_t seed,
                   const photometry::ModelPhotometry& photometry);
 
-    /// Appends up to `max_systems` further systems to the two lists; false when the sphere is exhausted.
+    /// Appends up to `max_systems` further systems to the lists (the companion catalogue's rows to
+    /// `companion_catalog` if given and enabled); false when the sphere is exhausted.
     bool next(std::size_t max_systems, std::vector<photometry::CatalogRow>& catalog,
-              std::vector<ObjectTruth>& truth);
+              std::vector<ObjectTruth>& truth, std::vector<CompanionRow>* companion_catalog = nullptr);
     std::int64_t remnantOnlySystems() const { return remnant_only_systems_; }
     const MockSettings& settings() const { return settings_; }
 
@@ -183,6 +243,9 @@ class MockGenerator {
                    std::vector<photometry::CatalogRow>& catalog, std::vector<ObjectTruth>& truth);
     void addResolvedCompanions(const Component& first, const Placement& first_placement, double age_gyr,
                                std::vector<photometry::CatalogRow>& catalog, std::vector<ObjectTruth>& truth);
+    /// The companion catalogue's row of an object, if it has one (sets object.in_companion).
+    void addCompanionRow(ObjectTruth& object, const Component& primary, const photometry::BandMagnitudes& abs,
+                         const photometry::CatalogRow& survey_row);
 
     MockSettings settings_;
     std::uint64_t seed_;
@@ -196,7 +259,9 @@ class MockGenerator {
     std::int64_t systems_ = 0;
     std::int64_t companions_made_ = 0; // resolved companions so far (their source ids)
     std::int64_t catalogued_ = 0;
+    std::int64_t companion_catalogued_ = 0;
     std::int64_t remnant_only_systems_ = 0;
+    std::vector<CompanionRow>* companion_catalog_ = nullptr; // during next()
     bool done_ = false;
 };
 

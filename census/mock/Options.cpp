@@ -86,6 +86,7 @@ po::options_description mockOptionsDescription(MockRequest& request) {
         ("giant-g-ks", real(s.giant_g_ks_mag, "MAG"), "mean G-Ks of giants (mag)")
         ("giant-g-ks-scatter", real(s.giant_g_ks_scatter_mag, "MAG"), "scatter of giants' G-Ks (mag)")
         ("g-limit", real(s.g_limit_mag, "MAG"), "survey limit: sources with measured G above it are not catalogued (mag)")
+        ("g-bright-limit", real(s.g_bright_limit_mag, "MAG"), "saturation: sources with measured G below it are not catalogued (mag)")
         ("bp-rp-loss-start", real(s.bp_rp_loss_start_g_mag, "MAG"), "G where BP/RP start to be lost (mag)")
         ("bp-rp-loss-end", real(s.bp_rp_loss_end_g_mag, "MAG"), "G where BP/RP are always lost (mag)")
         ("j-limit", real(s.j_limit_mag, "MAG"), "2MASS-like J limit (mag)")
@@ -95,7 +96,26 @@ po::options_description mockOptionsDescription(MockRequest& request) {
         ("binary-high-ruwe-share", real(s.binary_high_ruwe_share, "FRACTION"), "share of binaries with an elevated RUWE")
         ("binary-high-ruwe-min", real(s.binary_high_ruwe_min, "VALUE"), "elevated RUWE: lower end (log-uniform)")
         ("binary-high-ruwe-max", real(s.binary_high_ruwe_max, "VALUE"), "elevated RUWE: upper end");
+    po::options_description companion("Companion catalogue (what the Gaia-like survey misses; simulate --companion-out)");
+    CompanionSettings& c = s.companion;
+    companion.add_options()
+        ("companion-epoch", real(c.epoch_yr, "YEAR"), "epoch of the companion catalogue's positions (Julian year)")
+        ("ultracool-min-code", real(c.ultracool_min_code, "CODE"), "earliest ultracool type listed (spectral code; 75 = L5)")
+        ("w1-limit", real(c.w1_limit_mag, "MAG"), "WISE-like W1 5-sigma limit; fainter W1 is missing (mag)")
+        ("w2-limit", real(c.w2_limit_mag, "MAG"), "WISE-like W2 5-sigma limit: ultracool dwarfs fainter are not listed (mag)")
+        ("followup-j-limit", real(c.followup_j_limit_mag, "MAG"), "ultracool dwarfs: J 10-sigma limit of the follow-up (mag)")
+        ("followup-h-limit", real(c.followup_h_limit_mag, "MAG"), "ultracool dwarfs: H 10-sigma limit of the follow-up (mag)")
+        ("followup-ks-limit", real(c.followup_ks_limit_mag, "MAG"), "ultracool dwarfs: Ks 10-sigma limit of the follow-up (mag)")
+        ("ultracool-parallax-error", real(c.ultracool_parallax_error_mas, "MAS"), "ultracool parallax error at W2 <= 13 (mas; 0.2 dex more per mag)")
+        ("ultracool-position-error", real(c.ultracool_position_error_arcsec, "ARCSEC"), "ultracool position error per axis (arcsec)")
+        ("spectral-type-share", real(c.spectral_type_share, "FRACTION"), "share of companion objects listed with a spectral type")
+        ("hipparcos-parallax-error", real(c.hipparcos_parallax_error_mas, "MAS"), "bright stars: parallax error (mas)")
+        ("hipparcos-pm-error", real(c.hipparcos_pm_error_mas_per_yr, "MAS_YR"), "bright stars: proper-motion error (mas/yr)")
+        ("johnson-error", real(c.johnson_error_mag, "MAG"), "bright stars: Johnson B and V error (mag)")
+        ("two-mass-saturation", real(c.two_mass_saturation_mag, "MAG"), "bright stars: 2MASS bands brighter than this are saturated (mag)")
+        ("bright-two-mass-error", real(c.bright_two_mass_error_mag, "MAG"), "bright stars: error of saturated 2MASS bands (mag)");
     // clang-format on
+    options.add(companion);
     return options;
 }
 

@@ -57,16 +57,58 @@ nlohmann::json classCounts(const std::array<std::int64_t, photometry::kClassCoun
     return out;
 }
 
-nlohmann::json countsJson(const std::vector<RadiusCounts>& counts) {
+nlohmann::json countsJson(const std::vector<RadiusCounts>& counts, bool with_companion) {
     nlohmann::json out = nlohmann::json::array();
     for (const RadiusCounts& within : counts) {
-        out.push_back({{"radius_pc", within.radius_pc},
-                       {"objects", classCounts(within.all)},
-                       {"catalogued", classCounts(within.catalogued)},
-                       {"components", classCounts(within.components)}});
+        nlohmann::json entry = {{"radius_pc", within.radius_pc},
+                                {"objects", classCounts(within.all)},
+                                {"catalogued", classCounts(within.catalogued)},
+                                {"components", classCounts(within.components)}};
+        if (with_companion) {
+            entry["in_companion"] = classCounts(within.in_companion);
+            entry["in_both_files"] = classCounts(within.in_both);
+            entry["in_either_file"] = classCounts(within.in_any_file);
+        }
+        out.push_back(std::move(entry));
     }
     return out;
 }
+
+// Both catalogues' astrometry: ra, dec, parallax, parallax_error (single precision), pmra, pmdec in
+// consecutive columns from `first`.
+void appendAstrometry(photometry::FitsRowBlock& block, std::size_t first, const CatalogRow& row) {
+    block.values<double>(first).push_back(row.ra_deg);
+    block.values<double>(first + 1).push_back(row.dec_deg);
+    block.values<double>(first + 2).push_back(row.parallax_mas);
+    block.values<float>(first + 3).push_back(static_cast<float>(row.parallax_error_mas));
+    block.values<double>(first + 4).push_back(row.pmra_mas_per_yr);
+    block.values<double>(first + 5).push_back(row.pmdec_mas_per_yr);
+}
+
+// Column order of companionCatalogColumns().
+enum CompanionColumn : std::size_t {
+    kCompanionRa,
+    kCompanionDec,
+    kCompanionParallax,
+    kCompanionParallaxError,
+    kCompanionPmra,
+    kCompanionPmdec,
+    kCompanionB,
+    kCompanionBError,
+    kCompanionV,
+    kCompanionVError,
+    kCompanionJ,
+    kCompanionH,
+    kCompanionKs,
+    kCompanionJError,
+    kCompanionHError,
+    kCompanionKsError,
+    kCompanionW1,
+    kCompanionW1Error,
+    kCompanionW2,
+    kCompanionW2Error,
+    kCompanionSpectralType,
+};
 
 } // namespace
 
@@ -123,12 +165,7 @@ void MockCatalogWriter::append(std::span<const CatalogRow> rows) {
     const auto f = [](double value) { return static_cast<float>(value); };
     for (const CatalogRow& row : rows) {
         block_.values<std::int64_t>(kSourceId).push_back(row.source_id);
-        block_.values<double>(kRa).push_back(row.ra_deg);
-        block_.values<double>(kDec).push_back(row.dec_deg);
-        block_.values<double>(kParallax).push_back(row.parallax_mas);
-        block_.values<float>(kParallaxError).push_back(f(row.parallax_error_mas));
-        block_.values<double>(kPmra).push_back(row.pmra_mas_per_yr);
-        block_.values<double>(kPmdec).push_back(row.pmdec_mas_per_yr);
+        appendAstrometry(block_, kRa, row);
         block_.values<float>(kG).push_back(f(row.g_mag));
         block_.values<float>(kBp).push_back(f(row.bp_mag));
         block_.values<float>(kRp).push_back(f(row.rp_mag));
@@ -157,6 +194,75 @@ void writeMockCatalog(const std::filesystem::path& path, const MockResult& resul
     for (std::size_t first = 0; first < rows.size(); first += kBlockRows) {
         writer.append(rows.subspan(first, std::min(kBlockRows, rows.size() - first)));
     }
+    writer.finish();
+}
+
+std::vector<FitsColumn> companionCatalogColumns() {
+    const auto col = [](const char* name, FitsColumnType type, const char* unit, const char* ucd,
+                        const char* description) {
+        return FitsColumn{name, type, unit, ucd, description, 0, {}};
+    };
+    using enum FitsColumnType;
+    std::vector<FitsColumn> columns = {
+        col("ra", Float64, "deg", "pos.eq.ra;meta.main", "Right ascension (ICRS) at the POSEPOCH epoch"),
+        col("dec", Float64, "deg", "pos.eq.dec;meta.main", "Declination (ICRS) at the POSEPOCH epoch"),
+        col("parallax", Float64, "mas", "pos.parallax.trig", "Trigonometric parallax"),
+        col("parallax_error", Float32, "mas", "stat.error;pos.parallax.trig", "Standard error of parallax"),
+        col("pmra", Float64, "mas/yr", "pos.pm;pos.eq.ra", "Proper motion in right ascension times cos(dec)"),
+        col("pmdec", Float64, "mas/yr", "pos.pm;pos.eq.dec", "Proper motion in declination"),
+        // Johnson B carries no UCD: em.opt.B is also Gaia BP's, and would map this column to BP.
+        col("bmag", Float32, "mag", "", "Johnson B magnitude"),
+        col("e_bmag", Float32, "mag", "", "Johnson B uncertainty"),
+        col("vmag", Float32, "mag", "phot.mag;em.opt.V", "Johnson V magnitude"),
+        col("e_vmag", Float32, "mag", "stat.error;phot.mag;em.opt.V", "Johnson V uncertainty"),
+        col("j_m", Float32, "mag", "phot.mag;em.IR.J", "J magnitude (2MASS, or follow-up where fainter)"),
+        col("h_m", Float32, "mag", "phot.mag;em.IR.H", "H magnitude (2MASS, or follow-up where fainter)"),
+        col("ks_m", Float32, "mag", "phot.mag;em.IR.K", "Ks magnitude (2MASS, or follow-up where fainter)"),
+        col("j_msigcom", Float32, "mag", "stat.error;phot.mag;em.IR.J", "J uncertainty"),
+        col("h_msigcom", Float32, "mag", "stat.error;phot.mag;em.IR.H", "H uncertainty"),
+        col("ks_msigcom", Float32, "mag", "stat.error;phot.mag;em.IR.K", "Ks uncertainty"),
+        col("w1mpro", Float32, "mag", "phot.mag;em.IR.3-4um", "WISE W1 profile-fit magnitude"),
+        col("w1sigmpro", Float32, "mag", "stat.error;phot.mag;em.IR.3-4um", "WISE W1 uncertainty"),
+        col("w2mpro", Float32, "mag", "phot.mag;em.IR.4-8um", "WISE W2 profile-fit magnitude"),
+        col("w2sigmpro", Float32, "mag", "stat.error;phot.mag;em.IR.4-8um", "WISE W2 uncertainty"),
+        col("spectral_type", String, "", "src.spType", "Literature spectral type (blank: none)"),
+    };
+    columns.back().string_width = 12;
+    return columns;
+}
+
+void writeCompanionCatalog(const std::filesystem::path& path, const MockResult& result) {
+    const MockSettings& settings = result.settings;
+    photometry::FitsTableWriter writer(
+        path, "MOCKCOMP", companionCatalogColumns(),
+        {{"ORIGIN", std::string("starcensus mock"), "SIMULATED catalog, not observations"},
+         {"MOCKSEED", static_cast<std::int64_t>(result.seed), "random seed of the mock"},
+         {"RADMAX", settings.radius_max_pc, "[pc] radius of the simulated sphere"},
+         {"POSEPOCH", settings.companion.epoch_yr, "[yr] Julian epoch of ra, dec (--file-epoch)"},
+         {"W2LIMIT", settings.companion.w2_limit_mag, "[mag] ultracool dwarfs: W2 detection limit"},
+         {"GBRIGHT", settings.g_bright_limit_mag, "[mag] bright stars: true G below this"}});
+    photometry::FitsRowBlock block = writer.makeBlock();
+    const auto f = [](double value) { return static_cast<float>(value); };
+    for (const CompanionRow& companion : result.companion_catalog) {
+        const CatalogRow& row = companion.row;
+        appendAstrometry(block, kCompanionRa, row);
+        block.values<float>(kCompanionB).push_back(f(row.b_mag));
+        block.values<float>(kCompanionBError).push_back(f(row.b_error_mag));
+        block.values<float>(kCompanionV).push_back(f(row.v_mag));
+        block.values<float>(kCompanionVError).push_back(f(row.v_error_mag));
+        block.values<float>(kCompanionJ).push_back(f(row.j_mag));
+        block.values<float>(kCompanionH).push_back(f(row.h_mag));
+        block.values<float>(kCompanionKs).push_back(f(row.ks_mag));
+        block.values<float>(kCompanionJError).push_back(f(row.j_error_mag));
+        block.values<float>(kCompanionHError).push_back(f(row.h_error_mag));
+        block.values<float>(kCompanionKsError).push_back(f(row.ks_error_mag));
+        block.values<float>(kCompanionW1).push_back(f(row.w1_mag));
+        block.values<float>(kCompanionW1Error).push_back(f(row.w1_error_mag));
+        block.values<float>(kCompanionW2).push_back(f(row.w2_mag));
+        block.values<float>(kCompanionW2Error).push_back(f(row.w2_error_mag));
+        block.values<std::string>(kCompanionSpectralType).push_back(companion.spectral_type);
+    }
+    writer.append(block);
     writer.finish();
 }
 
@@ -205,6 +311,7 @@ nlohmann::json mockSettingsJson(const MockSettings& s) {
         {"giant_g_ks_mag", s.giant_g_ks_mag},
         {"giant_g_ks_scatter_mag", s.giant_g_ks_scatter_mag},
         {"g_limit_mag", s.g_limit_mag},
+        {"g_bright_limit_mag", s.g_bright_limit_mag},
         {"bp_rp_loss_start_g_mag", s.bp_rp_loss_start_g_mag},
         {"bp_rp_loss_end_g_mag", s.bp_rp_loss_end_g_mag},
         {"j_limit_mag", s.j_limit_mag},
@@ -217,7 +324,32 @@ nlohmann::json mockSettingsJson(const MockSettings& s) {
     };
 }
 
+namespace {
+
+nlohmann::json companionSettingsJson(const CompanionSettings& c) {
+    return {
+        {"epoch_yr", c.epoch_yr},
+        {"ultracool_min_code", c.ultracool_min_code},
+        {"w1_limit_mag", c.w1_limit_mag},
+        {"w2_limit_mag", c.w2_limit_mag},
+        {"followup_j_limit_mag", c.followup_j_limit_mag},
+        {"followup_h_limit_mag", c.followup_h_limit_mag},
+        {"followup_ks_limit_mag", c.followup_ks_limit_mag},
+        {"ultracool_parallax_error_mas", c.ultracool_parallax_error_mas},
+        {"ultracool_position_error_arcsec", c.ultracool_position_error_arcsec},
+        {"spectral_type_share", c.spectral_type_share},
+        {"hipparcos_parallax_error_mas", c.hipparcos_parallax_error_mas},
+        {"hipparcos_pm_error_mas_per_yr", c.hipparcos_pm_error_mas_per_yr},
+        {"johnson_error_mag", c.johnson_error_mag},
+        {"two_mass_saturation_mag", c.two_mass_saturation_mag},
+        {"bright_two_mass_error_mag", c.bright_two_mass_error_mag},
+    };
+}
+
+} // namespace
+
 nlohmann::json mockTruthJson(const MockResult& result, std::span<const double> radii_pc) {
+    const bool with_companion = result.settings.companion.enabled;
     nlohmann::json objects = nlohmann::json::array();
     for (const ObjectTruth& t : result.truth) {
         objects.push_back({
@@ -244,17 +376,34 @@ nlohmann::json mockTruthJson(const MockResult& result, std::span<const double> r
             {"true_g_mag", number(t.true_g_mag)},
             {"catalogued", t.catalogued},
         });
+        if (with_companion) {
+            nlohmann::json files = nlohmann::json::array();
+            if (t.catalogued) {
+                files.push_back("gaia");
+            }
+            if (t.in_companion) {
+                files.push_back("companion");
+            }
+            objects.back()["files"] = std::move(files);
+            objects.back()["companion_row"] =
+                t.in_companion ? nlohmann::json(t.companion_row) : nlohmann::json(nullptr);
+        }
     }
-    return {
+    nlohmann::json truth = {
         {"description", "truth of a SIMULATED starcensus mock (not observations)"},
         {"seed", result.seed},
         {"settings", mockSettingsJson(result.settings)},
         {"objects_total", result.truth.size()},
         {"catalogued_total", result.catalog.size()},
         {"remnant_only_systems", result.remnant_only_systems},
-        {"counts_within_radius", countsJson(countWithinRadii(result.truth, radii_pc))},
+        {"counts_within_radius", countsJson(countWithinRadii(result.truth, radii_pc), with_companion)},
         {"objects", std::move(objects)},
     };
+    if (with_companion) {
+        truth["companion_settings"] = companionSettingsJson(result.settings.companion);
+        truth["companion_total"] = result.companion_catalog.size();
+    }
+    return truth;
 }
 
 void writeMockTruth(const std::filesystem::path& path, const MockResult& result,

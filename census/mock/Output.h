@@ -34,9 +34,20 @@ class MockCatalogWriter {
 /// The whole catalog of a simulated mock.
 void writeMockCatalog(const std::filesystem::path& path, const MockResult& result);
 
+/// The companion catalogue's columns, named as literature compilations and VizieR tables name them, with
+/// units and UCDs, so starcensus maps them without --column: ra, dec (deg, at the POSEPOCH keyword's
+/// epoch), parallax, parallax_error (mas), pmra, pmdec (mas/yr), bmag, e_bmag, vmag, e_vmag (Johnson),
+/// j_m, h_m, ks_m and their *_msigcom errors, w1mpro, w1sigmpro, w2mpro, w2sigmpro (WISE), spectral_type.
+/// No source_id: the objects are matched to the Gaia-like catalogue by position.
+std::vector<photometry::FitsColumn> companionCatalogColumns();
+/// Writes result.companion_catalog (MockSettings::companion must be enabled).
+void writeCompanionCatalog(const std::filesystem::path& path, const MockResult& result);
+
 /// Truth document: settings, seed, totals, counts per class within each radius (pc) and, per object,
 /// source_id, class, stage, spectral code and type, distance, masses, age, binarity, magnitudes and
-/// whether it is catalogued. NaN values are written as null.
+/// whether it is catalogued. With a companion catalogue, also per object the files that hold it ("files":
+/// "gaia", "companion") and its companion row, and per radius the counts in the companion, in both files
+/// and in either. NaN values are written as null.
 nlohmann::json mockTruthJson(const MockResult& result, std::span<const double> radii_pc);
 void writeMockTruth(const std::filesystem::path& path, const MockResult& result,
                     std::span<const double> radii_pc);

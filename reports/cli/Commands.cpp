@@ -111,7 +111,15 @@ void checkOutputDirectory(const std::string& output_directory) {
 std::string mockSummary(const census::mock::MockResult& mock, const std::vector<double>& radii_pc) {
     std::ostringstream text;
     text << "simulated " << mock.truth.size() << " objects within " << mock.settings.radius_max_pc << " pc ("
-         << mock.catalog.size() << " catalogued), seed " << mock.seed << '\n';
+         << mock.catalog.size() << " catalogued";
+    if (mock.settings.companion.enabled) {
+        const auto both = std::count_if(mock.truth.begin(), mock.truth.end(), [](const auto& object) {
+            return object.catalogued && object.in_companion;
+        });
+        text << "; companion catalogue " << mock.companion_catalog.size() << ", " << both
+             << " of them in both";
+    }
+    text << "), seed " << mock.seed << '\n';
     for (const auto& counts : census::mock::countWithinRadii(mock.truth, radii_pc)) {
         text << "  truth within " << counts.radius_pc << " pc:";
         for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
@@ -131,11 +139,14 @@ std::string truthComparison(const census::mock::MockResult& mock, const reports:
         radii.push_back(estimate.radius_pc);
     }
     const auto truth = census::mock::countWithinRadii(mock.truth, radii);
+    const bool with_companion = mock.settings.companion.enabled;
     std::ostringstream text;
     text << std::fixed << std::setprecision(1);
     for (std::size_t r = 0; r < radii.size(); ++r) {
         const bool corrected = r < result.corrected.size();
-        text << "within " << radii[r] << " pc   truth: all / catalogued   recovered: count [68%]"
+        const auto& listed = with_companion ? truth[r].in_any_file : truth[r].catalogued;
+        text << "within " << radii[r] << " pc   truth: all / "
+             << (with_companion ? "in either file" : "catalogued") << "   recovered: count [68%]"
              << (corrected ? "   completeness-corrected [68%]" : "") << "\n";
         for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
             const auto& count = result.estimates[r].groups[c].count.this_volume;
@@ -143,8 +154,8 @@ std::string truthComparison(const census::mock::MockResult& mock, const reports:
                 continue;
             }
             text << "  " << std::left << std::setw(13) << photometry::kClassNames[c] << std::right
-                 << std::setw(6) << truth[r].all[c] << " / " << std::setw(5) << truth[r].catalogued[c]
-                 << "   " << std::setw(7) << count.median << " [" << count.lo68 << ", " << count.hi68 << "]";
+                 << std::setw(6) << truth[r].all[c] << " / " << std::setw(5) << listed[c] << "   "
+                 << std::setw(7) << count.median << " [" << count.lo68 << ", " << count.hi68 << "]";
             if (corrected && result.corrected[r].groups[c].corrected) {
                 const auto& fixed = result.corrected[r].groups[c].count;
                 text << "   " << std::setw(7) << fixed.median << " [" << fixed.lo68 << ", " << fixed.hi68
@@ -156,20 +167,25 @@ std::string truthComparison(const census::mock::MockResult& mock, const reports:
     return text.str();
 }
 
-/// Simulates and writes the mock catalog and its truth.
-census::mock::MockResult simulateToFiles(const census::mock::MockRequest& request,
+/// Simulates and writes the mock catalog, its truth and, if `companion_path` is not empty, the companion
+/// catalogue.
+census::mock::MockResult simulateToFiles(census::mock::MockRequest request,
                                          const std::filesystem::path& catalog_path,
                                          const std::filesystem::path& truth_path,
-                                         const std::vector<double>& truth_radii) {
+                                         const std::vector<double>& truth_radii,
+                                         const std::filesystem::path& companion_path = {}) {
+    request.settings.companion.enabled = !companion_path.empty();
     census::mock::validateMockSettings(request.settings);
     census::mock::MockResult mock = census::mock::simulateNeighbourhood(request.settings, request.seed);
-    if (catalog_path.has_parent_path()) {
-        std::filesystem::create_directories(catalog_path.parent_path());
-    }
-    if (truth_path.has_parent_path()) {
-        std::filesystem::create_directories(truth_path.parent_path());
+    for (const auto& path : {catalog_path, truth_path, companion_path}) {
+        if (path.has_parent_path()) {
+            std::filesystem::create_directories(path.parent_path());
+        }
     }
     census::mock::writeMockCatalog(catalog_path, mock);
+    if (!companion_path.empty()) {
+        census::mock::writeCompanionCatalog(companion_path, mock);
+    }
     census::mock::writeMockTruth(truth_path, mock, truth_radii);
     return mock;
 }
@@ -212,6 +228,10 @@ int simulateCommand(const std::vector<std::string>& arguments) {
     auto add = io.add_options();
     add("out,o", po::value(&catalog_path)->default_value(catalog_path), "mock catalog (FITS binary table)");
     add("truth", po::value(&truth_path)->default_value(truth_path), "truth file (JSON)");
+    std::string companion_path;
+    add("companion-out", po::value(&companion_path)->value_name("FILE"),
+        "also write the companion catalogue of what the Gaia-like survey misses (FITS; ultracool dwarfs, "
+        "stars brighter than --g-bright-limit), positions at --companion-epoch");
     add("truth-radii", po::value(&radii_text)->default_value(radii_text),
         "radii (pc) at which the truth file counts objects per class, comma-separated");
     po::options_description options;
@@ -221,8 +241,9 @@ int simulateCommand(const std::vector<std::string>& arguments) {
         return 0;
     }
     const auto radii = census::parsePositiveList(radii_text, "truth-radii");
-    const auto mock = simulateToFiles(request, catalog_path, truth_path, radii);
-    std::cout << mockSummary(mock, radii) << "wrote " << catalog_path << " and " << truth_path << '\n';
+    const auto mock = simulateToFiles(request, catalog_path, truth_path, radii, companion_path);
+    std::cout << mockSummary(mock, radii) << "wrote " << catalog_path
+              << (companion_path.empty() ? "" : ", " + companion_path) << " and " << truth_path << '\n';
     return 0;
 }
 
@@ -254,12 +275,15 @@ int demoCommand(const std::vector<std::string>& arguments) {
     census::validate(census_settings);
     census::hostRadiusIndex(hosts, census_settings.radii_pc); // before the mock is simulated
     const std::filesystem::path directory = output_directory;
-    const auto mock =
-        simulateToFiles(request, directory / "mock.fits", directory / "truth.json", census_settings.radii_pc);
+    const auto mock = simulateToFiles(request, directory / "mock.fits", directory / "truth.json",
+                                      census_settings.radii_pc, directory / "companion.fits");
     std::cout << mockSummary(mock, census_settings.radii_pc);
 
+    // The merged census of both files: the companion's positions are at its own epoch.
+    const std::string companion = (directory / "companion.fits").string();
+    census_settings.file_epochs = {{companion, mock.settings.companion.epoch_yr}};
     reports::PipelineSettings settings;
-    settings.inputs = {(directory / "mock.fits").string()};
+    settings.inputs = {(directory / "mock.fits").string(), companion};
     settings.output_directory = directory;
     settings.census = census_settings;
     settings.hosts = hosts;

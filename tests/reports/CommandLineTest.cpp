@@ -283,6 +283,58 @@ TEST_CASE("overlapping inputs count each star once: the same file twice, and a m
     CHECK_FALSE(directoryHasFiles(dir / "bad"));
 }
 
+TEST_CASE("simulate --companion-out: the companion catalogue maps without --column and merges once") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-companion");
+    const auto& dir = scratch.path();
+    const Outcome simulated = runStarcensus(
+        "simulate --out mock.fits --companion-out companion.fits --truth truth.json --radius-max 12 --seed 3",
+        dir);
+    REQUIRE(simulated.exit_code == 0);
+    CHECK(simulated.stdout_text.find("wrote mock.fits, companion.fits and truth.json") != std::string::npos);
+    // Every companion column feeds its field by UCD or name.
+    const Outcome inspected = runStarcensus("inspect companion.fits", dir);
+    REQUIRE(inspected.exit_code == 0);
+    for (const char* mapped :
+         {"parallax        parallax        UCD", "pmra            pmra            UCD",
+          "b               bmag            name", "v               vmag            UCD",
+          "w1              w1mpro          UCD", "w2              w2mpro          UCD",
+          "spectral_type   spectral_type   UCD", "j               j_m             UCD"}) {
+        CHECK_MESSAGE(inspected.stdout_text.find(mapped) != std::string::npos, mapped);
+    }
+    // The truth's overlap: objects in both files (all within 12 pc, so every row is a candidate of a
+    // 30 pc run).
+    const auto truth = jsonFile(dir / "truth.json");
+    std::int64_t overlap = 0;
+    for (const auto& object : truth["objects"]) {
+        overlap += object["files"].size() == 2 ? 1 : 0;
+    }
+    REQUIRE(overlap > 0);
+    REQUIRE(runStarcensus("run mock.fits companion.fits --file-epoch companion.fits=2000 --radius 5,10,30 "
+                          "--draws 100 --no-report --no-hosts --checksum none --out merged",
+                          dir)
+                .exit_code == 0);
+    const auto merges = jsonFile(dir / "merged" / "provenance.json")["merges"];
+    MESSAGE("companion merge: " << merges.dump() << ", truth overlap " << overlap);
+    // Each object of the overlap is one positional merge (less at most 2 true pairs the 3-sigma parallax
+    // test refuses: 0.27% of ~60 pairs), nothing by source_id (the companion has none).
+    CHECK(merges["by_source_id"] == 0);
+    CHECK(merges["by_position"].get<std::int64_t>() <= overlap);
+    CHECK(merges["by_position"].get<std::int64_t>() >= overlap - 2);
+    CHECK(merges["rows_in"].get<std::int64_t>() - merges["by_position"].get<std::int64_t>() ==
+          merges["rows_out"].get<std::int64_t>());
+    // T and Y dwarfs are counted within 10 pc.
+    const auto fractions = jsonFile(dir / "merged" / "fractions.json");
+    for (const auto& radius : fractions["radii"]) {
+        if (radius["radius_pc"] != 10.0) {
+            continue;
+        }
+        for (const char* name : {"T", "Y"}) {
+            CHECK_MESSAGE(radius["classes"][name]["count"]["this_volume"]["median"].get<double>() > 0.0,
+                          name);
+        }
+    }
+}
+
 TEST_CASE("published spectral types: compared with the photometric classes, and used for the class") {
     // CARMENES input catalogue IX (Cifuentes et al., arXiv:2412.12264; tests/reference/): 2634 M dwarfs
     // and their companions, each with a literature spectral type (column SpT, found by name), Gaia DR3

@@ -114,9 +114,13 @@ TEST_CASE("survey limit, BP/RP loss and the parallax error law in the catalog") 
     std::size_t faint = 0, lost_faint = 0, n = 0, row = 0;
     double pull_sum = 0.0, pull_square_sum = 0.0;
     for (const ObjectTruth& t : result.truth) {
-        // Objects well above the limit are all catalogued (G errors are millimagnitudes there).
-        if (t.true_g_mag < g_limit - 0.1) {
+        // Objects well between the limits are all catalogued (G errors are millimagnitudes there), and
+        // none brighter than the bright (saturation) limit is.
+        if (t.true_g_mag < g_limit - 0.1 && t.true_g_mag > result.settings.g_bright_limit_mag + 0.1) {
             CHECK(t.catalogued);
+        }
+        if (t.true_g_mag < result.settings.g_bright_limit_mag - 0.1) {
+            CHECK_FALSE(t.catalogued);
         }
         if (!t.catalogued) {
             continue;
@@ -337,4 +341,69 @@ TEST_CASE("resolved companions: separations follow the Raghavan et al. 2010 peri
     MESSAGE("companions " << companions << ", mean log10 s - log10(M) / 3 = " << mean << " +- "
                           << standard_error);
     CHECK(std::abs(mean - 1.483) < 4.0 * standard_error + 0.01);
+}
+
+TEST_CASE("companion catalogue: what the Gaia-like survey misses, the overlap, and an unchanged Gaia file") {
+    MockSettings settings;
+    settings.companion.enabled = true;
+    const MockResult& without = standardMock();
+    const MockResult with = simulateNeighbourhood(settings, 20240601);
+    // The Gaia-like catalogue is the same object for object: the companion draws from its own streams.
+    REQUIRE(with.catalog.size() == without.catalog.size());
+    for (std::size_t i = 0; i < with.catalog.size(); ++i) {
+        REQUIRE(with.catalog[i].source_id == without.catalog[i].source_id);
+        REQUIRE(with.catalog[i].g_mag == without.catalog[i].g_mag);
+        REQUIRE(with.catalog[i].parallax_mas == without.catalog[i].parallax_mas);
+    }
+    CHECK(without.companion_catalog.empty());
+    REQUIRE(!with.companion_catalog.empty());
+    const CompanionSettings& c = settings.companion;
+    std::int64_t ultracool = 0, both = 0, bright = 0, typed = 0, t_dwarfs = 0, y_dwarfs = 0;
+    double pull_sum = 0.0, pull_square_sum = 0.0;
+    for (const ObjectTruth& t : with.truth) {
+        if (t.true_g_mag < settings.g_bright_limit_mag) {
+            CHECK(t.in_companion); // every saturated star is in the companion, none in the Gaia file
+            CHECK_FALSE(t.catalogued);
+        }
+        if (!t.in_companion) {
+            continue;
+        }
+        const CompanionRow& row = with.companion_catalog[static_cast<std::size_t>(t.companion_row)];
+        CHECK(row.row.source_id == starcensus::photometry::kMissingSourceId);
+        if (t.true_g_mag < settings.g_bright_limit_mag) {
+            ++bright;
+            CHECK(std::isfinite(row.row.v_mag));
+            CHECK(row.row.parallax_error_mas == doctest::Approx(c.hipparcos_parallax_error_mas));
+        } else {
+            ++ultracool;
+            CHECK(t.spectral_code >= c.ultracool_min_code);
+            CHECK(row.row.w2_mag <= c.w2_limit_mag);
+            both += t.catalogued ? 1 : 0;
+            t_dwarfs += t.true_class == StellarClass::T ? 1 : 0;
+            y_dwarfs += t.true_class == StellarClass::Y ? 1 : 0;
+            if (!row.spectral_type.empty()) {
+                // Typed to the half subtype below the truth: the letter is the true class's.
+                CHECK(row.spectral_type.front() == starcensus::photometry::className(t.true_class).front());
+            }
+        }
+        typed += row.spectral_type.empty() ? 0 : 1;
+        const double pull = (row.row.parallax_mas - 1000.0 / t.distance_pc) / row.row.parallax_error_mas;
+        pull_sum += pull;
+        pull_square_sum += pull * pull;
+    }
+    const auto n = static_cast<double>(with.companion_catalog.size());
+    CHECK(static_cast<double>(ultracool + bright) == n);
+    MESSAGE("companion: " << ultracool << " ultracool (" << both << " also in the Gaia file; T " << t_dwarfs
+                          << ", Y " << y_dwarfs << "), " << bright << " bright, " << typed << " typed");
+    CHECK(both > 0);
+    CHECK(both < ultracool);
+    CHECK(y_dwarfs > 0);
+    CHECK(bright > 0);
+    // Spectral types for the share asked: binomial, within 4 standard errors.
+    CHECK(std::abs(static_cast<double>(typed) / n - c.spectral_type_share) <
+          4.0 * std::sqrt(c.spectral_type_share * (1.0 - c.spectral_type_share) / n));
+    // Parallax pulls are standard normal: mean within 4 standard errors, variance within 15%.
+    const double mean_pull = pull_sum / n;
+    CHECK(std::abs(mean_pull) < 4.0 / std::sqrt(n));
+    CHECK(pull_square_sum / n - mean_pull * mean_pull == doctest::Approx(1.0).epsilon(0.15));
 }
