@@ -1,0 +1,166 @@
+// Injection and recovery through two overlapping catalogues: a mock's Gaia-like file and its companion
+// catalogue (ultracool dwarfs with WISE and follow-up photometry, bright stars with Hipparcos-like
+// astrometry; positions at J2000.0, no source_id) are written as FITS, read back without --column flags,
+// merged by position at J2016.0 and run through the census (membership, Monte Carlo, intervals). The truth
+// is each mock's count of objects in either file within the radius.
+#include "census/CatalogMerge.h"
+#include "census/Fractions.h"
+#include "census/Membership.h"
+#include "census/MonteCarlo.h"
+#include "census/QualityCuts.h"
+#include "census/mock/Neighbourhood.h"
+#include "census/mock/Output.h"
+#include "photometry/ClassGrid.h"
+#include "photometry/Classifier.h"
+#include "photometry/catalog/CatalogScan.h"
+
+#include <doctest/doctest.h>
+
+#include <array>
+#include <filesystem>
+#include <sstream>
+
+using namespace starcensus;
+using photometry::StellarClass;
+
+namespace {
+
+constexpr double kRadiusPc = 10.0;
+
+struct MergedTrial {
+    std::array<std::int64_t, photometry::kClassCount> true_counts{}; // in either file, within R
+    std::int64_t truth_overlap = 0;                                  // objects in both files (all radii)
+    std::int64_t positional_merges = 0;
+    std::int64_t source_id_merges = 0;
+    std::int64_t wrong_merges = 0; // links joining rows of two different true objects
+    census::RadiusEstimate estimate;
+};
+
+MergedTrial runMergedTrial(std::uint64_t seed, const photometry::ClassGrid& grid) {
+    census::mock::MockSettings settings;
+    settings.radius_max_pc = 14.0; // beyond R, so objects can scatter in and out of the volume
+    settings.companion.enabled = true;
+    const census::mock::MockResult mock = census::mock::simulateNeighbourhood(settings, seed);
+    MergedTrial trial;
+    for (const auto& object : mock.truth) {
+        trial.truth_overlap += object.catalogued && object.in_companion ? 1 : 0;
+        if ((object.catalogued || object.in_companion) && object.distance_pc < kRadiusPc) {
+            ++trial.true_counts[static_cast<std::size_t>(object.true_class)];
+        }
+    }
+    const auto directory =
+        std::filesystem::temp_directory_path() / ("starcensus_merged_census_" + std::to_string(seed));
+    std::filesystem::create_directories(directory);
+    const std::string gaia_path = (directory / "mock.fits").string();
+    const std::string companion_path = (directory / "companion.fits").string();
+    census::mock::writeMockCatalog(gaia_path, mock);
+    census::mock::writeCompanionCatalog(companion_path, mock);
+    photometry::ScanSettings scan_settings; // every row with a parallax is a candidate
+    scan_settings.threads = 1;
+    photometry::CatalogScan scan = photometry::scanCatalogs({gaia_path, companion_path}, scan_settings);
+    std::filesystem::remove_all(directory);
+
+    census::CatalogMergeSettings merge_settings;
+    merge_settings.file_epochs_yr = {census::kGaiaDr3EpochYr, settings.companion.epoch_yr};
+    census::MergedCatalog merged = census::mergeCatalogRows(std::move(scan.candidates), merge_settings, 1);
+    trial.positional_merges = merged.report.positional_merges;
+    trial.source_id_merges = merged.report.source_id_merges;
+    // The true object of each row: the Gaia-like rows by source_id, the companion's by its row.
+    std::vector<std::int64_t> companion_source_ids(mock.companion_catalog.size());
+    for (const auto& object : mock.truth) {
+        if (object.in_companion) {
+            companion_source_ids[static_cast<std::size_t>(object.companion_row)] = object.source_id;
+        }
+    }
+    const auto source_of = [&](std::uint32_t file, std::int64_t row) {
+        const auto index = static_cast<std::size_t>(row);
+        return file == 0 ? mock.catalog[index].source_id : companion_source_ids[index];
+    };
+    for (const auto& link : merged.report.links) {
+        trial.wrong_merges +=
+            source_of(link.kept_file, link.kept_row) != source_of(link.absorbed_file, link.absorbed_row) ? 1
+                                                                                                         : 0;
+    }
+    std::vector<photometry::CatalogRow> rows = std::move(merged.rows);
+    census::QualitySettings quality;
+    census::applyQualityCuts(rows, quality);
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    const census::PreparedSample sample(
+        rows, {kRadiusPc}, census::MembershipSettings{},
+        {.min_parallax_snr_to_classify = quality.min_parallax_snr_to_classify}, 1, &classifier, &grid);
+    const census::DrawTallies tallies =
+        census::drawSample(sample, grid, {.draws = 200, .seed = seed, .threads = 1});
+    const auto groups = census::standardClassGroups();
+    trial.estimate = census::estimateFractions(
+        tallies, {kRadiusPc}, census::hardCutCounts(rows, {kRadiusPc}, census::MembershipSettings{}),
+        {sample.expectedCount(0)}, groups,
+        census::populationDeviatesByRadius(tallies, groups, {.seed = seed}))[0];
+    return trial;
+}
+
+} // namespace
+
+TEST_CASE("merged Gaia-like and companion catalogues recover the truth of every class, T and Y included") {
+    const auto grid = photometry::ClassGrid::fromClassifier(photometry::Classifier::shipped());
+    constexpr int kMocks = 20;
+    std::vector<MergedTrial> trials;
+    std::array<double, photometry::kClassCount> mean_truth{};
+    std::int64_t overlap = 0;
+    std::int64_t unmerged = 0;
+    for (int m = 0; m < kMocks; ++m) {
+        trials.push_back(runMergedTrial(5000 + static_cast<std::uint64_t>(m), grid));
+        const MergedTrial& trial = trials.back();
+        // No object of the overlap is counted twice: every positional merge joins the two rows of one
+        // true object, nothing merges by source_id (the companion has none), and every object in both
+        // files is merged except the pairs the 3-sigma parallax test keeps apart: 0.27% of true pairs
+        // for Gaussian errors, so 2 per ~120-object overlap is a generous bound.
+        CHECK(trial.wrong_merges == 0);
+        CHECK(trial.source_id_merges == 0);
+        CHECK(trial.truth_overlap > 50);
+        CHECK(trial.positional_merges <= trial.truth_overlap);
+        CHECK(trial.positional_merges >= trial.truth_overlap - 2);
+        overlap += trial.truth_overlap;
+        unmerged += trial.truth_overlap - trial.positional_merges;
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            mean_truth[c] += static_cast<double>(trial.true_counts[c]) / kMocks;
+        }
+    }
+    // The expected count of each class in either file within R is the mean over the mocks (its own error,
+    // sqrt(count / 20), is a quarter of an interval's 1-sigma half-width). The population intervals of the
+    // counts (Poisson sampling of the volume plus the measurement draws, Fractions.h) cover it at about
+    // the quoted rates: over 20 mocks a 95% rate gives 17-20 (binomial, 2.5% in the lower tail), a 68.3%
+    // rate 10-18 (two-sided 99%) (common practice, no source).
+    std::ostringstream table;
+    table << "class  mean_truth  mean_recovered  covered68  covered95  (of " << kMocks << " mocks)\n";
+    for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+        if (mean_truth[c] < 0.2) { // fewer than 4 objects in 20 mocks (O stars, unclassified): no test
+            continue;
+        }
+        int covered68 = 0;
+        int covered95 = 0;
+        double mean_recovered = 0.0;
+        for (const MergedTrial& trial : trials) {
+            const auto& count = trial.estimate.groups[c].count.population;
+            covered68 += count.lo68 <= mean_truth[c] && mean_truth[c] <= count.hi68 ? 1 : 0;
+            covered95 += count.lo95 <= mean_truth[c] && mean_truth[c] <= count.hi95 ? 1 : 0;
+            mean_recovered += trial.estimate.groups[c].count.this_volume.median / kMocks;
+        }
+        table << photometry::kClassNames[c] << "  " << mean_truth[c] << "  " << mean_recovered << "  "
+              << covered68 << "  " << covered95 << "\n";
+        CHECK_MESSAGE(covered95 >= 17, photometry::kClassNames[c]);
+        if (mean_truth[c] >= 2.0) { // below, counts of 0-2 make the coverage discrete and above the rate
+            CHECK_MESSAGE(covered68 >= 10, photometry::kClassNames[c]);
+            CHECK_MESSAGE(covered68 <= 18, photometry::kClassNames[c]);
+        }
+    }
+    // The T and Y dwarfs are there, and their fractions are nonzero in every mock.
+    for (const StellarClass c : {StellarClass::T, StellarClass::Y}) {
+        const auto index = static_cast<std::size_t>(c);
+        CHECK(mean_truth[index] > 5.0);
+        for (const MergedTrial& trial : trials) {
+            CHECK(trial.estimate.groups[index].fraction.population.lo95 > 0.0);
+        }
+    }
+    table << "overlap " << overlap << " objects, " << unmerged << " kept apart by the parallax test\n";
+    MESSAGE(table.str());
+}
