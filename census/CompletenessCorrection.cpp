@@ -93,7 +93,7 @@ std::vector<CorrectedRadius>
 correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& radii_pc,
                        const std::vector<ClassGroup>& groups, const LuminosityModel& model,
                        const MassFunctionFitResult& fit, const MagnitudeLimits& limits, std::uint64_t seed,
-                       unsigned threads) {
+                       unsigned threads, const MembersBeyondLimits& beyond_limits) {
     if (!fit.converged) {
         return {};
     }
@@ -139,7 +139,8 @@ correctForCompleteness(const DrawTallies& tallies, const std::vector<double>& ra
             PerCategory unseen{};
             double unseen_total = 0.0;
             for (std::size_t k = 0; k < photometry::kCategoryCount; ++k) {
-                const double mean = theta[0] * expected[k];
+                const double mean =
+                    theta[0] * expected[k] - (beyond_limits.empty() ? 0.0 : beyond_limits[r][k]);
                 if (mean > 0.0) {
                     unseen[k] = static_cast<double>(std::poisson_distribution<std::int64_t>(mean)(random));
                     unseen_total += unseen[k];

@@ -16,11 +16,12 @@ struct ClassifiedRow {
     double abs_g_mag;
     double distance_pc;
     photometry::Category category;
+    bool beyond_faint_limit; // no G, or fainter than the faint limit: found by another catalogue
 };
 
 std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> rows,
                                         const photometry::Classifier& classifier,
-                                        const CensusSettings& census) {
+                                        const CensusSettings& census, double faint_limit_g_mag) {
     std::vector<ClassifiedRow> classified;
     const double zero_point = census.membership.parallax_zero_point_mas;
     const RowClassRules rules = rowClassRules(census);
@@ -28,7 +29,7 @@ std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> 
         const double parallax_mas = row.parallax_mas - zero_point;
         const photometry::Classification result = classifyRow(row, classifier, rules);
         classified.push_back({result.abs_g_mag, parallax_mas > 0.0 ? 1000.0 / parallax_mas : kInfinity,
-                              photometry::censusCategory(result)});
+                              photometry::censusCategory(result), !(row.g_mag <= faint_limit_g_mag)});
     }
     return classified;
 }
@@ -44,6 +45,20 @@ std::vector<SampleStar> starsWithin(const std::vector<ClassifiedRow>& classified
         }
     }
     return stars;
+}
+
+// Per radius, the members beyond the faint limit by category (CompletenessCorrection.h).
+MembersBeyondLimits membersBeyondLimits(const std::vector<ClassifiedRow>& classified,
+                                        const PreparedSample& sample) {
+    MembersBeyondLimits beyond(sample.radii().size());
+    for (std::size_t s = 0; s < classified.size(); ++s) {
+        if (classified[s].beyond_faint_limit) {
+            for (std::size_t r = 0; r < beyond.size(); ++r) {
+                beyond[r][classified[s].category] += sample.probabilityWithin(s, r);
+            }
+        }
+    }
+    return beyond;
 }
 
 } // namespace
@@ -69,7 +84,8 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
     }
     const photometry::ModelPhotometry& models = photometry::shippedModelPhotometry();
     const auto ranges = categoryAbsGRanges(models, completeness);
-    const std::vector<ClassifiedRow> classified = classifyRows(rows, classifier, census);
+    const std::vector<ClassifiedRow> classified =
+        classifyRows(rows, classifier, census, analysis.limits.faint_g_mag);
     const std::vector<double>& radii = census.radii_pc;
     std::vector<SampleStar> stars;
     for (std::size_t r = 0; r < radii.size(); ++r) {
@@ -113,10 +129,11 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
             }
         }
         // Only the faint limit is filled in: stars brighter than the bright limit are usually in the
-        // input anyway (see README, Methods), and the census counts every member.
-        analysis.corrected = correctForCompleteness(tallies, radii, census.groups, model, fit,
-                                                    {analysis.limits.faint_g_mag, -kInfinity},
-                                                    census.draws.seed, census.draws.threads);
+        // input anyway (see README, Methods), and the census counts every member, also those beyond the
+        // faint limit that another input file found (taken off the unseen numbers).
+        analysis.corrected = correctForCompleteness(
+            tallies, radii, census.groups, model, fit, {analysis.limits.faint_g_mag, -kInfinity},
+            census.draws.seed, census.draws.threads, membersBeyondLimits(classified, sample));
     }
     return analysis;
 }
