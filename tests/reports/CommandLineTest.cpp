@@ -335,6 +335,24 @@ TEST_CASE("simulate --companion-out: the companion catalogue maps without --colu
     }
 }
 
+TEST_CASE("demo: simulates both catalogues and runs the merged census on them") {
+    const starcensus::testing::ScratchDirectory scratch("starcensus-cli-demo");
+    const auto& dir = scratch.path();
+    const Outcome demo = runStarcensus("demo --draws 20 --no-hosts --out demo", dir);
+    REQUIRE(demo.exit_code == 0);
+    for (const char* name : {"mock.fits", "companion.fits", "truth.json", "fractions.json", "report.html"}) {
+        CHECK_MESSAGE(std::filesystem::is_regular_file(dir / "demo" / name), name);
+    }
+    CHECK(demo.stdout_text.find("truth: all / in either file") != std::string::npos);
+    const auto provenance = jsonFile(dir / "demo" / "provenance.json");
+    REQUIRE(provenance["inputs"].size() == 2);
+    const auto epochs = provenance["settings"]["file_epochs_yr"];
+    REQUIRE(epochs.size() == 1);
+    CHECK(epochs.begin().value() == 2000.0);
+    CHECK(provenance["merges"]["by_position"].get<std::int64_t>() > 100);
+    CHECK(provenance["merges"]["by_source_id"] == 0);
+}
+
 TEST_CASE("published spectral types: compared with the photometric classes, and used for the class") {
     // CARMENES input catalogue IX (Cifuentes et al., arXiv:2412.12264; tests/reference/): 2634 M dwarfs
     // and their companions, each with a literature spectral type (column SpT, found by name), Gaia DR3
