@@ -300,6 +300,14 @@ TEST_CASE("bad mock settings are rejected naming the option, value and range") {
     bad = {};
     bad.bp_rp_loss_start_g_mag = 21.5;
     CHECK_THROWS_AS(simulateNeighbourhood(bad, 1), starcensus::InputError);
+    bad = {};
+    bad.companion.w2_limit_mag = 40.0;
+    CHECK_THROWS_WITH_AS(validateMockSettings(bad), "--w2-limit: 40 is outside the allowed range [0, 30] mag",
+                         starcensus::InputError);
+    bad = {};
+    bad.g_bright_limit_mag = 21.0;
+    CHECK_THROWS_WITH_AS(validateMockSettings(bad), "--g-bright-limit: must be below --g-limit",
+                         starcensus::InputError);
 }
 
 TEST_CASE("resolved companions: separations follow the Raghavan et al. 2010 period distribution") {
