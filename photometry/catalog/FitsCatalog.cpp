@@ -660,28 +660,95 @@ struct StreamedHeader {
 /// Bytes of a FITS file in order: fills up to `bytes` and returns how many it got (fewer at the end).
 using ReadBytes = std::function<std::size_t(unsigned char* out, std::size_t bytes)>;
 
-/// Refuses, before cfitsio parses it, a card of the string-valued table keywords (TTYPEn, TFORMn, TUNITn,
-/// TDISPn, TDIMn, EXTNAME) whose value is not a quoted string, as FITS requires (FITS Standard 4.0,
-/// sections 4.2.1 and 7.3.2). Why: cfitsio 4.2.0 copies an unquoted TTYPEn value of 70 characters into a
-/// 70-byte column name (ffgtbp's strcpy) and the process ends with SIGABRT (fuzz/README.md).
-void requireQuotedStringValue(const unsigned char* card, const std::string& keyword, int hdu_index,
-                              const std::string& where) {
-    const auto indexed = [&](std::string_view stem) {
-        return keyword.size() > stem.size() && keyword.starts_with(stem) &&
-               allDigits(keyword.substr(stem.size()));
+/// A FITS integer or real value (FITS Standard 4.0, sections 4.2.3 and 4.2.4: sign, digits, a decimal
+/// point, an E or D exponent; lower case accepted as cfitsio accepts it).
+bool isFitsNumber(std::string_view text) {
+    std::size_t at = 0;
+    const auto digits = [&] {
+        const std::size_t from = at;
+        while (at < text.size() && std::isdigit(static_cast<unsigned char>(text[at]))) {
+            ++at;
+        }
+        return at - from;
     };
-    const bool string_valued = keyword == "EXTNAME" || indexed("TTYPE") || indexed("TFORM") ||
+    const auto sign = [&] { at += at < text.size() && (text[at] == '+' || text[at] == '-') ? 1 : 0; };
+    sign();
+    std::size_t mantissa = digits();
+    if (at < text.size() && text[at] == '.') {
+        ++at;
+        mantissa += digits();
+    }
+    if (mantissa == 0) {
+        return false;
+    }
+    if (at < text.size() && std::strchr("EeDd", text[at]) != nullptr) {
+        ++at;
+        sign();
+        if (digits() == 0) {
+            return false;
+        }
+    }
+    return at == text.size();
+}
+
+/// Refuses, before cfitsio parses it, a card that cfitsio or this reader reads as a value when the value
+/// is not of the kind FITS requires: the string-valued table keywords (TTYPEn, TFORMn, TUNITn, TDISPn,
+/// TDIMn, EXTNAME) must hold a quoted string (FITS Standard 4.0, sections 4.2.1 and 7.3.2), the numeric
+/// structure and scaling keywords (BITPIX, NAXISn, PCOUNT, GCOUNT, TFIELDS, THEAP, TNULLn, TSCALn,
+/// TZEROn, TBCOLn, BSCALE, BZERO, BLANK, EXTVER, EXTLEVEL) a number (sections 4.2.3, 4.2.4, 4.4 and 7.3).
+/// Why: cfitsio 4.2.0 ends the process with SIGABRT on both (fuzz/README.md): it copies an unquoted TTYPEn
+/// value of 70 characters into a 70-byte column name (ffgtbp's strcpy), and it overflows its message
+/// buffer (ffc2j's strncat) on a numeric keyword whose value is a long string or text. cfitsio takes a
+/// keyword's name up to its first space, so a space inside one of these keywords (which FITS forbids,
+/// section 4.1.2.1) is refused too.
+void requireValueOfItsKind(const unsigned char* card, const std::string& keyword, int hdu_index,
+                           const std::string& where) {
+    const std::string name = keyword.substr(0, keyword.find(' '));
+    const auto indexed = [&](std::string_view stem) {
+        return name.size() > stem.size() && name.starts_with(stem) && allDigits(name.substr(stem.size()));
+    };
+    const bool string_valued = name == "EXTNAME" || indexed("TTYPE") || indexed("TFORM") ||
                                indexed("TUNIT") || indexed("TDISP") || indexed("TDIM");
+    const bool numeric = name == "BITPIX" || name == "NAXIS" || name == "PCOUNT" || name == "GCOUNT" ||
+                         name == "TFIELDS" || name == "THEAP" || name == "BSCALE" || name == "BZERO" ||
+                         name == "BLANK" || name == "EXTVER" || name == "EXTLEVEL" || indexed("NAXIS") ||
+                         indexed("TNULL") || indexed("TSCAL") || indexed("TZERO") || indexed("TBCOL");
+    if (!string_valued && !numeric) {
+        return;
+    }
+    const std::string card_at = where + ": HDU " + std::to_string(hdu_index) + ": header card ";
+    const std::string damaged = "; the file is damaged or was not written as FITS";
+    if (name != keyword) {
+        throw InputError(card_at + "'" + keyword + "'" +
+                         " has a space inside its keyword, which FITS forbids (FITS Standard 4.0, section "
+                         "4.1.2.1)" +
+                         damaged);
+    }
     // cfitsio takes a value after '=' in column 9 even without the blank column 10 FITS requires.
-    if (!string_valued || card[8] != '=') {
+    if (card[8] != '=') {
         return; // no value indicator: a commentary card, which cfitsio does not read as a value
     }
-    const std::string_view value(reinterpret_cast<const char*>(card) + 9, 71);
+    std::string_view value(reinterpret_cast<const char*>(card) + 9, 71);
     const auto first = value.find_first_not_of(' ');
-    if (first != std::string_view::npos && value[first] != '\'') {
-        throw InputError(where + ": HDU " + std::to_string(hdu_index) + ": header card " + keyword +
-                         " has a value that is not a quoted string, which FITS requires (FITS Standard "
-                         "4.0, section 4.2.1); the file is damaged or was not written as FITS");
+    if (first == std::string_view::npos) {
+        return; // an undefined value (section 4.2.5)
+    }
+    value.remove_prefix(first);
+    if (string_valued && value.front() != '\'') {
+        throw InputError(card_at + keyword +
+                         " has a value that is not a quoted string, which FITS requires (FITS Standard 4.0, "
+                         "section 4.2.1)" +
+                         damaged);
+    }
+    if (numeric) {
+        value = value.substr(0, value.find('/'));
+        value = value.substr(0, value.find_last_not_of(' ') + 1);
+        if (!value.empty() && !isFitsNumber(value)) {
+            throw InputError(card_at + keyword +
+                             " has a value that is not a number, which FITS requires (FITS Standard 4.0, "
+                             "sections 4.2.3 and 4.2.4)" +
+                             damaged);
+        }
     }
 }
 
@@ -711,7 +778,7 @@ std::optional<StreamedHeader> readStreamedHeader(const ReadBytes& read, std::vec
         }
         for (std::size_t card = at; card < at + kFitsRecordBytes && !ended; card += kCard) {
             const std::string keyword = cardKeyword(&image[card]);
-            requireQuotedStringValue(&image[card], keyword, hdu_index, where);
+            requireValueOfItsKind(&image[card], keyword, hdu_index, where);
             const auto number = [&] { return std::atoll(cardValue(&image[card]).c_str()); };
             if (keyword == "END") {
                 ended = true;
@@ -773,7 +840,7 @@ class PlainDataFile {
     int descriptor_;
 };
 
-/// Checks every header of an uncompressed FITS file with requireQuotedStringValue before cfitsio opens
+/// Checks every header of an uncompressed FITS file with requireValueOfItsKind before cfitsio opens
 /// it: headers are read with pread and data skipped, so the cost is the headers' size, not the file's.
 /// Stops quietly where the bytes are not FITS (cfitsio then says what is wrong); a file it cannot open is
 /// PlainDataFile's one-line InputError.

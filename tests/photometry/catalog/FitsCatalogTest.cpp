@@ -47,10 +47,12 @@ ScanSettings everything() {
     return settings;
 }
 
-// A parallax table at `path` whose card starting `card_start` (searched from byte `from`) has the bytes
-// after its '=' replaced by `after_equals`, and its gzip copy: the damaged-header cases. Returns both paths.
+// A parallax table at `path` whose card starting `card_start` (searched from byte `from`) has its bytes
+// from column `column` (0-based; 9 is just after the '=') replaced by `replacement`, and its gzip copy:
+// the damaged-header cases. Returns both paths.
 std::vector<std::string> tableWithDamagedCard(const std::string& path, const std::string& card_start,
-                                              std::size_t from, const std::string& after_equals) {
+                                              std::size_t from, std::size_t column,
+                                              const std::string& replacement) {
     writeFitsTable(path, {"",
                           {valueColumn("parallax", "1D", "mas", {1.0}),
                            valueColumn("parallax_error", "1D", "mas", {1.0})}});
@@ -60,8 +62,8 @@ std::vector<std::string> tableWithDamagedCard(const std::string& path, const std
         file.read(header.data(), static_cast<std::streamsize>(header.size()));
         const auto card = header.find(card_start, from);
         REQUIRE(card != std::string::npos);
-        file.seekp(static_cast<std::streamoff>(card + 9));
-        file << after_equals;
+        file.seekp(static_cast<std::streamoff>(card + column));
+        file << replacement;
     }
     gzipFile(path, path + ".gz");
     return {path, path + ".gz"};
@@ -474,7 +476,7 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
     // 70-byte column name (SIGABRT), so the header check refuses it first, in the plain file and in its gzip
     // copy (FITS Standard 4.0, section 4.2.1: quoted strings).
     for (const std::string& path :
-         tableWithDamagedCard(directory.file("unquoted.fits"), "TTYPE2  = ", 0, std::string(71, 'x'))) {
+         tableWithDamagedCard(directory.file("unquoted.fits"), "TTYPE2  = ", 0, 9, std::string(71, 'x'))) {
         CHECK(scanError(path) == path +
                                      ": HDU 1: header card TTYPE2 has a value that is not a quoted string, "
                                      "which FITS requires (FITS Standard 4.0, section 4.2.1); the file is "
@@ -485,10 +487,38 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
     // NAXIS beyond FITS's 999 (FITS Standard 4.0, section 4.4.1.1) in a table's header, as a fuzzed gzip
     // file had: a one-line error instead of an escaping std::length_error from sizing the axes.
     for (const std::string& path : tableWithDamagedCard(directory.file("many_axes.fits"), "NAXIS   = ", 2880,
-                                                        "         999999999999")) {
+                                                        9, "         999999999999")) {
         CHECK(inputErrorOf([&] { listHdus(path); }) ==
               path + ": HDU 1: header card NAXIS = 999999999999 is outside 0-999, which FITS requires (FITS "
                      "Standard 4.0, section 4.4.1.1); the file is damaged or not FITS");
+    }
+
+    // A numeric keyword holding a long string, or text that is no number: cfitsio 4.2.0 would overflow its
+    // message buffer converting it (SIGABRT), so the header check refuses it first (FITS Standard 4.0,
+    // sections 4.2.3-4.2.4: integers and reals). A number it can read stays a number.
+    for (const std::string& value :
+         {"'" + std::string(40, 'x') + "'", std::string(30, 'a'), std::string("T")}) {
+        for (const std::string& path : tableWithDamagedCard(directory.file("text_naxis1.fits"),
+                                                            "NAXIS1  = ", 2880, 9, value + "   /")) {
+            CHECK(scanError(path) ==
+                  path + ": HDU 1: header card NAXIS1 has a value that is not a number, which "
+                         "FITS requires (FITS Standard 4.0, sections 4.2.3 and 4.2.4); the "
+                         "file is damaged or was not written as FITS");
+        }
+    }
+    for (const std::string& path : tableWithDamagedCard(directory.file("signed_naxis1.fits"),
+                                                        "NAXIS1  = ", 2880, 9, "         +000000000016")) {
+        CHECK(scanCatalogs({path}, settings).totals.rows_read == 1);
+    }
+    // A space inside a keyword cfitsio reads (FITS Standard 4.0, section 4.1.2.1 forbids it), as the fuzzed
+    // fuzz/corpus/fits_reader_fuzz/spaced_keyword_cfitsio_overflow.fits.gz has: cfitsio would take the card
+    // for NAXIS1 and overflow converting its value.
+    for (const std::string& path :
+         tableWithDamagedCard(directory.file("spaced_naxis1.fits"), "NAXIS1  = ", 2880, 6, " x =")) {
+        CHECK(inputErrorOf([&] { listHdus(path); }) ==
+              path +
+                  ": HDU 1: header card 'NAXIS1 x' has a space inside its keyword, which FITS forbids (FITS "
+                  "Standard 4.0, section 4.1.2.1); the file is damaged or was not written as FITS");
     }
 
     // The first failing file in input order is the one reported.
