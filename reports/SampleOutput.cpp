@@ -75,6 +75,27 @@ std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
              "M_G minus the main-sequence locus M_G at the colour",
              0,
              {}},
+            {"match_chi2",
+             FitsColumnType::Float32,
+             "",
+             "stat.fit.chi2",
+             "chi^2 of the best match over bands (flag 1024); NaN where the colour path classified",
+             0,
+             {}},
+            {"spectral_code_low",
+             FitsColumnType::Float32,
+             "",
+             "src.spType;stat.min",
+             "lowest code with chi^2 <= minimum + 1 (flag 1024; unrounded grid)",
+             0,
+             {}},
+            {"spectral_code_high",
+             FitsColumnType::Float32,
+             "",
+             "src.spType;stat.max",
+             "highest code with chi^2 <= minimum + 1 (flag 1024; unrounded grid)",
+             0,
+             {}},
             {"flags", FitsColumnType::Int32, "", "meta.code.qual", "classification flags (README)", 0, {}},
             {"unclassified_reason",
              FitsColumnType::String,
@@ -195,7 +216,8 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));
         block.values<std::string>(c++).push_back(spectralTypeColumn(result));
         for (const double value :
-             {result.spectral_code, result.teff_k, result.mass_msun, result.locus_offset_mag}) {
+             {result.spectral_code, result.teff_k, result.mass_msun, result.locus_offset_mag,
+              result.match_chi_squared, result.code_low, result.code_high}) {
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::int32_t>(c++).push_back(result.flags);

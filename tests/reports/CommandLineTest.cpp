@@ -639,6 +639,35 @@ TEST_CASE("a table without Gaia G runs: the Kirkpatrick et al. 2019 Y dwarfs fro
     CHECK(check.at("median_abs_subtype_difference").get<double>() <= 0.5);
     CHECK(radius.at("classes").at("Y").at("count").at("this_volume").at("median").get<double>() >= 17.0);
     CHECK(std::filesystem::is_regular_file(dir / "y" / "report.html"));
+
+    // sample.fits read back with astropy (python3-astropy): every row classified by the best match over
+    // J, W1, W2 (flag 1024) carries its chi^2 and the Delta chi^2 = 1 interval of the code, tagged with
+    // the IVOA UCDs stat.fit.chi2, stat.min, stat.max. The interval is about the unrounded minimum and
+    // spectral_code is that minimum to the nearest half subtype, so the code may lie 0.25 outside it.
+    const auto sample = nlohmann::json::parse(
+        starcensus::testing::runReferencePython("dump_fits_table.py", (dir / "y" / "sample.fits").string()));
+    std::map<std::string, nlohmann::json> columns;
+    for (const auto& column : sample.at("columns")) {
+        columns[column.at("name").get<std::string>()] = column;
+    }
+    CHECK(columns.at("match_chi2").at("ucd") == "stat.fit.chi2");
+    CHECK(columns.at("spectral_code_low").at("ucd") == "src.spType;stat.min");
+    std::size_t matched = 0;
+    for (std::size_t row = 0; row < columns.at("flags").at("values").size(); ++row) {
+        if ((columns.at("flags").at("values").at(row).get<int>() & 1024) == 0) {
+            continue;
+        }
+        ++matched;
+        const double chi2 = columns.at("match_chi2").at("values").at(row).get<double>();
+        const double code = columns.at("spectral_code").at("values").at(row).get<double>();
+        const double low = columns.at("spectral_code_low").at("values").at(row).get<double>();
+        const double high = columns.at("spectral_code_high").at("values").at(row).get<double>();
+        CHECK(chi2 >= 0.0);
+        CHECK(low - 0.25 <= code);
+        CHECK(code <= high + 0.25);
+        CHECK(high - low < 3.0); // J, W1 and W2 pin a Y dwarf's type within a few subtypes
+    }
+    CHECK(matched >= 20); // of the 23; the rest lack W1 or J
 }
 
 namespace {
