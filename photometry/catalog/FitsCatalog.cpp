@@ -699,11 +699,12 @@ bool isFitsNumber(std::string_view text) {
 /// Why: cfitsio 4.2.0 ends the process with SIGABRT on both (fuzz/README.md): it copies an unquoted TTYPEn
 /// value of 70 characters into a 70-byte column name (ffgtbp's strcpy), and it overflows its message
 /// buffer (ffc2j's strncat) on a numeric keyword whose value is a long string or text. cfitsio takes a
-/// keyword's name up to its first space, so a space inside one of these keywords (which FITS forbids,
-/// section 4.1.2.1) is refused too.
+/// keyword's name up to its first space or '=', and a value after an '=' anywhere on the card (its form for
+/// keywords longer than eight characters), so a space or '=' inside one of these keywords (which FITS
+/// forbids, section 4.1.2.1) and an '=' elsewhere than in column 9 (section 4.1.2.2) are refused too.
 void requireValueOfItsKind(const unsigned char* card, const std::string& keyword, int hdu_index,
                            const std::string& where) {
-    const std::string name = keyword.substr(0, keyword.find(' '));
+    const std::string name = keyword.substr(0, keyword.find_first_of(" ="));
     const auto indexed = [&](std::string_view stem) {
         return name.size() > stem.size() && name.starts_with(stem) && allDigits(name.substr(stem.size()));
     };
@@ -720,12 +721,18 @@ void requireValueOfItsKind(const unsigned char* card, const std::string& keyword
     const std::string damaged = "; the file is damaged or was not written as FITS";
     if (name != keyword) {
         throw InputError(card_at + "'" + keyword + "'" +
-                         " has a space inside its keyword, which FITS forbids (FITS Standard 4.0, section "
-                         "4.1.2.1)" +
+                         " has a space or '=' inside its keyword, which FITS forbids (FITS Standard 4.0, "
+                         "section 4.1.2.1)" +
                          damaged);
     }
     // cfitsio takes a value after '=' in column 9 even without the blank column 10 FITS requires.
     if (card[8] != '=') {
+        if (std::memchr(card + 8, '=', 72) != nullptr) {
+            throw InputError(card_at + keyword +
+                             " has its value indicator '=' elsewhere than in column 9, which FITS requires "
+                             "(FITS Standard 4.0, section 4.1.2.2)" +
+                             damaged);
+        }
         return; // no value indicator: a commentary card, which cfitsio does not read as a value
     }
     std::string_view value(reinterpret_cast<const char*>(card) + 9, 71);

@@ -517,8 +517,20 @@ TEST_CASE("bad FITS input gives one-line errors naming file, HDU, column and cau
          tableWithDamagedCard(directory.file("spaced_naxis1.fits"), "NAXIS1  = ", 2880, 6, " x =")) {
         CHECK(inputErrorOf([&] { listHdus(path); }) ==
               path +
-                  ": HDU 1: header card 'NAXIS1 x' has a space inside its keyword, which FITS forbids (FITS "
-                  "Standard 4.0, section 4.1.2.1); the file is damaged or was not written as FITS");
+                  ": HDU 1: header card 'NAXIS1 x' has a space or '=' inside its keyword, which FITS forbids "
+                  "(FITS Standard 4.0, section 4.1.2.1); the file is damaged or was not written as FITS");
+    }
+    // An '=' further along a card whose name cfitsio reads as NAXIS1 (up to its first space), as the fuzzed
+    // fuzz/corpus/fits_reader_fuzz/late_value_indicator_cfitsio_overflow.fits.gz has: cfitsio takes the
+    // text after it for the value (its form for keywords longer than eight characters) and overflows.
+    for (const std::string& path : tableWithDamagedCard(directory.file("late_equals_naxis1.fits"),
+                                                        "NAXIS1  = ", 2880, 8, " x = 'text'")) {
+        CHECK(
+            inputErrorOf([&] { listHdus(path); }) ==
+            path +
+                ": HDU 1: header card NAXIS1 has its value indicator '=' elsewhere than in column 9, which "
+                "FITS requires (FITS Standard 4.0, section 4.1.2.2); the file is damaged or was not written "
+                "as FITS");
     }
 
     // The first failing file in input order is the one reported.
