@@ -214,7 +214,7 @@ TEST_CASE("completeness correction of a merged input: objects another catalogue 
         {analysis.limits.faint_g_mag, -std::numeric_limits<double>::infinity()}, census_settings.draws.seed);
     const auto truth = census::mock::countWithinRadii(mock.truth, census_settings.radii_pc);
     for (std::size_t r = 0; r < 2; ++r) {
-        for (const StellarClass c : {StellarClass::L, StellarClass::T}) {
+        for (const StellarClass c : {StellarClass::L, StellarClass::T, StellarClass::Y}) {
             const auto index = static_cast<std::size_t>(c);
             const auto& count = analysis.corrected[r].groups[index].count;
             const double double_counted = uncorrected_for_merge[r].groups[index].count.median;
@@ -230,9 +230,20 @@ TEST_CASE("completeness correction of a merged input: objects another catalogue 
             // 4-12% high with the colour classifier for rows without BP-RP; 4-18% high with the best match
             // over bands, 20 pc T 829.5 against 702, whose interval misses the truth; README, Limitations).
             CHECK(count.median >= static_cast<double>(truth[r].in_any_file[index]) - 2.0);
-            CHECK(std::abs(count.median - all) <= 0.20 * all + 2.0);
+            if (c != StellarClass::Y || r == 1) {
+                CHECK(std::abs(count.median - all) <= 0.20 * all + 2.0);
+            }
         }
     }
+    // The Y dwarfs: the companion holds only those its W2 limit reaches (82 of 223 within 20 pc), so most
+    // of the corrected count is the model's; at 20 pc it covers the truth inside its 95% interval
+    // (measured: 218 [188.3, 251.7] against 223). Within 10 pc this mock has 16 Y dwarfs where its own
+    // 20 pc count implies 28 (a 2.3-sigma Poisson low), and the correction, which estimates the
+    // population's number, gives 29 [20, 37]: no check of the 10 pc count against this one volume.
+    const auto y_index = static_cast<std::size_t>(StellarClass::Y);
+    const auto& y_count = analysis.corrected[1].groups[y_index].count;
+    CHECK(y_count.lo95 <= static_cast<double>(truth[1].all[y_index]));
+    CHECK(static_cast<double>(truth[1].all[y_index]) <= y_count.hi95);
     // Without taking them off, the T dwarfs the companion supplied would be counted about twice.
     const auto t_index = static_cast<std::size_t>(StellarClass::T);
     CHECK(uncorrected_for_merge[1].groups[t_index].count.median >
