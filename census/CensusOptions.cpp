@@ -73,6 +73,9 @@ po::options_description censusOptions(CensusSettings& settings) {
     add("file-epoch", po::value(&settings.file_epoch_definitions)->composing()->value_name("FILE=YEAR"),
         "epoch of one input file's positions (Julian year), e.g. 2mass.csv=2000 (repeatable)");
     SystemSettings& systems = settings.systems;
+    add("no-systems", po::bool_switch()->notifier([&settings](bool off) { settings.find_systems = !off; }),
+        "skip the stellar-system census: no companion search, no systems.fits, no system columns or "
+        "sections in the other outputs");
     add("system-separation-max", number(systems.max_projected_separation_pc, "PC"),
         "widest projected separation of a resolved pair (pc; wide binaries reach ~1 pc)");
     add("system-search-angle-max", number(systems.max_search_angle_deg, "DEG"),

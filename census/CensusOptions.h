@@ -30,6 +30,7 @@ struct CensusSettings {
     DrawSettings draws;
     CatalogMergeSettings merge; // file_epochs_yr is filled per run from file_epochs
     SystemSettings systems;     // threads are taken from draws
+    bool find_systems = true;   // --no-systems turns the stellar-system census off
 
     // Filled by validate():
     std::vector<std::pair<std::string, double>> file_epochs; // (path as given, Julian year)

@@ -66,6 +66,7 @@ nlohmann::json runProvenance(const PipelineSettings& settings, const std::vector
             {"match_epoch_yr", census.merge.match_epoch_yr},
             {"catalog_epoch_yr", census.merge.default_epoch_yr},
             {"file_epochs_yr", fileEpochsJson(census.file_epochs)},
+            {"find_systems", census.find_systems},
             {"system_separation_max_pc", census.systems.max_projected_separation_pc},
             {"system_search_angle_max_deg", census.systems.max_search_angle_deg},
             {"system_sky_shift_deg", census.systems.sky_shift_deg},
@@ -262,35 +263,43 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     std::future<void> prior_fits = std::async(std::launch::async, [&] {
         result.priors = census::estimatePriors(census.radii_pc, census.groups, population.get());
     });
-    // Systems: the companion search and the Monte Carlo of the system primaries (SystemFractions.h).
-    std::shared_future<census::SystemAnalysis> systems = std::async(std::launch::async, [&] {
-                                                             const auto systems_start = Clock::now();
-                                                             census::SystemCensusInputs inputs;
-                                                             inputs.rows = rows;
-                                                             inputs.classifier = &classifier;
-                                                             inputs.rules = class_rules;
-                                                             inputs.radii_pc = census.radii_pc;
-                                                             inputs.membership = census.membership;
-                                                             inputs.draws = census.draws;
-                                                             inputs.groups = census.groups;
-                                                             inputs.systems = census.systems;
-                                                             inputs.systems.threads = census.draws.threads;
-                                                             inputs.sample = &sample;
-                                                             auto analysis = census::analyseSystems(inputs);
-                                                             result.timings.systems_s =
-                                                                 secondsSince(systems_start);
-                                                             return analysis;
-                                                         }).share();
+    // Systems: the companion search and the Monte Carlo of the system primaries (SystemFractions.h);
+    // nothing with --no-systems, whose outputs then have no system columns or sections.
+    std::shared_future<std::optional<census::SystemAnalysis>> systems =
+        std::async(std::launch::async, [&]() -> std::optional<census::SystemAnalysis> {
+            if (!census.find_systems) {
+                return std::nullopt;
+            }
+            const auto systems_start = Clock::now();
+            census::SystemCensusInputs inputs;
+            inputs.rows = rows;
+            inputs.classifier = &classifier;
+            inputs.rules = class_rules;
+            inputs.radii_pc = census.radii_pc;
+            inputs.membership = census.membership;
+            inputs.draws = census.draws;
+            inputs.groups = census.groups;
+            inputs.systems = census.systems;
+            inputs.systems.threads = census.draws.threads;
+            inputs.sample = &sample;
+            auto analysis = census::analyseSystems(inputs);
+            result.timings.systems_s = secondsSince(systems_start);
+            return analysis;
+        }).share();
+    const auto system_catalog = [&]() -> const census::SystemCatalog* {
+        return systems.get() ? &systems.get()->catalog : nullptr;
+    };
     // sample.fits and the draws tables need only the draws and the systems: they are written beside the
     // analyses.
     const std::filesystem::path& directory = settings.output_directory;
     std::filesystem::create_directories(directory);
     std::future<void> draw_tables = std::async(std::launch::async, [&] {
-        const census::SystemCatalog& system_catalog = systems.get().catalog;
+        const census::SystemCatalog* catalog = system_catalog();
         const auto tables_start = Clock::now();
-        writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, class_rules,
-                         system_catalog);
-        writeSystemsTable(directory / "systems.fits", rows, system_catalog, classifier, class_rules);
+        writeSampleTable(directory / "sample.fits", rows, sample, tallies, classifier, class_rules, catalog);
+        if (catalog != nullptr) {
+            writeSystemsTable(directory / "systems.fits", rows, *catalog, classifier, class_rules);
+        }
         writeDrawsTable(directory / "draws.fits", tallies, census.radii_pc, census.groups);
         writeTextFileAtomically(directory / "draws.csv", drawsCsv(tallies, census.radii_pc, census.groups));
         result.timings.tables_s = secondsSince(tables_start);
@@ -323,26 +332,34 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     addCompletenessToFractions(fractions, luminosity);
     addSpectralTypeAgreement(fractions, census::compareSpectralTypes(rows, sample, classifier, class_rules),
                              census.spectral_types);
-    addSystemsToFractions(fractions, systems.get(), census.systems);
-    result.systems = systems.get().catalog.systems.size();
-    for (const auto& system : systems.get().catalog.systems) {
-        result.multiple_systems += system.members.size() > 1 ? 1 : 0;
+    if (const auto& analysis = systems.get()) {
+        result.systems_searched = true;
+        addSystemsToFractions(fractions, *analysis, census.systems);
+        result.systems = analysis->catalog.systems.size();
+        for (const auto& system : analysis->catalog.systems) {
+            result.multiple_systems += system.members.size() > 1 ? 1 : 0;
+        }
     }
     result.corrected = luminosity.corrected;
     writeJsonFile(directory / "fractions.json", fractions);
     writeTextFileAtomically(directory / "fractions.csv", fractionsCsv(result.estimates));
     nlohmann::json priors = priorsJson(result.priors);
-    addSystemPriors(priors, systems.get());
+    if (const auto& analysis = systems.get()) {
+        addSystemPriors(priors, *analysis);
+    }
     writeJsonFile(directory / "priors.json", priors);
     const census::HostMeasurements measured_hosts = host_measurements.get();
     if (hosts.enabled) {
         result.hosts = writeHostTable(directory / "hosts.fits", rows, sample, tallies, classifier,
-                                      class_rules, hosts, measured_hosts, systems.get().catalog);
+                                      class_rules, hosts, measured_hosts, system_catalog());
     }
     result.timings.outputs_s = secondsSince(start);
-    std::vector<std::string> outputs = {
-        "sample.fits", "systems.fits", "fractions.json",    "fractions.csv", "priors.json",
-        "draws.fits",  "draws.csv",    "completeness.json", "lumfunc.csv",   "lumfunc_fit.json"};
+    std::vector<std::string> outputs = {"sample.fits"};
+    if (census.find_systems) {
+        outputs.push_back("systems.fits");
+    }
+    outputs.insert(outputs.end(), {"fractions.json", "fractions.csv", "priors.json", "draws.fits",
+                                   "draws.csv", "completeness.json", "lumfunc.csv", "lumfunc_fit.json"});
     if (hosts.enabled) {
         outputs.push_back("hosts.fits");
     }
@@ -364,8 +381,12 @@ std::string summarizeRun(const PipelineResult& result) {
          << " objects: " << merges.source_id_merges << " by source_id, " << merges.positional_merges
          << " by position (" << merges.pairs_refused_by_parallax
          << " close pairs kept apart by their parallaxes)\n";
-    text << "  systems: " << result.systems << " (" << result.multiple_systems
-         << " with resolved companions; systems.fits)\n";
+    if (result.systems_searched) {
+        text << "  systems: " << result.systems << " (" << result.multiple_systems
+             << " with resolved companions; systems.fits)\n";
+    } else {
+        text << "  systems: not searched (--no-systems)\n";
+    }
     for (const auto& cut : result.cuts) {
         text << "  cut " << cut.name << ": " << cut.rows_affected << " (" << cut.description << ")\n";
     }

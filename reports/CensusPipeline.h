@@ -61,6 +61,7 @@ struct PipelineResult {
     std::vector<census::CorrectedRadius> corrected; // completeness-corrected counts; empty without a fit
     std::vector<census::RadiusPriors> priors;
     std::size_t hosts = 0;            // rows of hosts.fits
+    bool systems_searched = false;    // false with --no-systems
     std::size_t systems = 0;          // rows of systems.fits
     std::size_t multiple_systems = 0; // of those, with two or more members
     std::size_t candidates_after_cuts = 0;

@@ -17,7 +17,7 @@ namespace {
 using photometry::FitsColumn;
 using photometry::FitsColumnType;
 
-std::vector<FitsColumn> hostColumns() {
+std::vector<FitsColumn> hostColumns(const census::SystemCatalog* systems) {
     std::vector<FitsColumn> columns = rowIdentityColumns();
     columns.insert(
         columns.end(),
@@ -70,9 +70,7 @@ std::vector<FitsColumn> hostColumns() {
              0,
              {}},
         });
-    for (auto& column : systemMembershipColumns()) {
-        columns.push_back(std::move(column));
-    }
+    appendSystemMembershipColumns(columns, systems);
     return columns;
 }
 
@@ -82,12 +80,12 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
                            const photometry::Classifier& classifier, const census::RowClassRules& rules,
                            const census::HostListSettings& settings, const census::HostMeasurements& measured,
-                           const census::SystemCatalog& systems) {
+                           const census::SystemCatalog* systems) {
     const std::size_t r = measured.radius_index;
     const std::vector<std::size_t>& hosts = measured.rows;
     const std::vector<census::HostUncertainty>& uncertainties = measured.uncertainties;
     photometry::FitsTableWriter writer(
-        path, "HOSTS", hostColumns(),
+        path, "HOSTS", hostColumns(systems),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"},
          {"HOSTRAD", sample.radii()[r], "[pc] census radius of the host list"},
          {"PMINMEMB", settings.min_probability, "membership probability threshold (inclusive)"},

@@ -14,11 +14,11 @@
 namespace starcensus::reports {
 
 /// Writes the host list of `measured` (from measureHosts() with the same settings); returns the number
-/// of hosts.
+/// of hosts. `systems`: the run's system census, or null for a run without one (no system columns).
 std::size_t writeHostTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                            const census::PreparedSample& sample, const census::DrawTallies& tallies,
                            const photometry::Classifier& classifier, const census::RowClassRules& rules,
                            const census::HostListSettings& settings, const census::HostMeasurements& measured,
-                           const census::SystemCatalog& systems);
+                           const census::SystemCatalog* systems);
 
 } // namespace starcensus::reports

@@ -15,7 +15,8 @@ namespace {
 using photometry::FitsColumn;
 using photometry::FitsColumnType;
 
-std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
+std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc,
+                                      const census::SystemCatalog* systems) {
     std::vector<FitsColumn> columns = rowIdentityColumns();
     columns.insert(
         columns.end(),
@@ -137,9 +138,7 @@ std::vector<FitsColumn> sampleColumns(const std::vector<double>& radii_pc) {
                            0,
                            {}});
     }
-    for (auto& column : systemMembershipColumns()) {
-        columns.push_back(std::move(column));
-    }
+    appendSystemMembershipColumns(columns, systems);
     return columns;
 }
 
@@ -195,9 +194,9 @@ std::string spectralTypeColumn(const photometry::Classification& result) {
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
                       const photometry::Classifier& classifier, const census::RowClassRules& rules,
-                      const census::SystemCatalog& systems) {
+                      const census::SystemCatalog* systems) {
     photometry::FitsTableWriter writer(
-        path, "SAMPLE", sampleColumns(sample.radii()),
+        path, "SAMPLE", sampleColumns(sample.radii(), systems),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"}});
     auto block = writer.makeBlock();
     constexpr std::size_t kBlockRows = 65536;

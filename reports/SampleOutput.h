@@ -29,9 +29,10 @@ std::string spectralTypeColumn(const photometry::Classification& result);
 /// "%g" of a radius with '.' as 'p', for column names: 10 -> "10", 2.5 -> "2p5".
 std::string radiusLabel(double radius_pc);
 
+/// `systems`: the run's system census, or null for a run without one (no system columns).
 void writeSampleTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                       const census::PreparedSample& sample, const census::DrawTallies& tallies,
                       const photometry::Classifier& classifier, const census::RowClassRules& rules,
-                      const census::SystemCatalog& systems);
+                      const census::SystemCatalog* systems);
 
 } // namespace starcensus::reports

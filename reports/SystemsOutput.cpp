@@ -47,26 +47,42 @@ std::string_view systemRoleName(census::SystemRole role) {
     return "single";
 }
 
-std::vector<photometry::FitsColumn> systemMembershipColumns() {
-    return {
-        {"system_id", FitsColumnType::Int64, "", "meta.id;src", "id of the system in systems.fits", 0, {}},
-        {"system_role", FitsColumnType::String, "", "meta.code", "single, primary or companion", 9, {}},
-        {"system_flags",
-         FitsColumnType::UInt8,
-         "",
-         "meta.code",
-         "bits: 1 RUWE above the limit, 2 above the binary band (likely unresolved), 4 a pair refused as a "
-         "chance alignment, 8 literature components above the members",
-         0,
-         {}},
-    };
+void appendSystemMembershipColumns(std::vector<photometry::FitsColumn>& columns,
+                                   const census::SystemCatalog* systems) {
+    if (systems == nullptr) {
+        return;
+    }
+    columns.insert(
+        columns.end(),
+        {
+            {"system_id",
+             FitsColumnType::Int64,
+             "",
+             "meta.id;src",
+             "id of the system in systems.fits",
+             0,
+             {}},
+            {"system_role", FitsColumnType::String, "", "meta.code", "single, primary or companion", 9, {}},
+            {"system_flags",
+             FitsColumnType::UInt8,
+             "",
+             "meta.code",
+             "bits: 1 RUWE above the limit, 2 above the binary band (likely unresolved), 4 a pair refused as "
+             "a "
+             "chance alignment, 8 literature components above the members",
+             0,
+             {}},
+        });
 }
 
 void appendSystemMembership(photometry::FitsRowBlock& block, std::size_t& column,
-                            const census::SystemCatalog& systems, std::size_t row) {
-    block.values<std::int64_t>(column++).push_back(systems.system_ids[row]);
-    block.values<std::string>(column++).push_back(std::string(systemRoleName(systems.roles[row])));
-    block.values<std::uint8_t>(column++).push_back(systems.flags[row]);
+                            const census::SystemCatalog* systems, std::size_t row) {
+    if (systems == nullptr) {
+        return;
+    }
+    block.values<std::int64_t>(column++).push_back(systems->system_ids[row]);
+    block.values<std::string>(column++).push_back(std::string(systemRoleName(systems->roles[row])));
+    block.values<std::uint8_t>(column++).push_back(systems->flags[row]);
 }
 
 void writeSystemsTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,

@@ -19,11 +19,13 @@ namespace starcensus::reports {
 /// "single", "primary", "companion".
 std::string_view systemRoleName(census::SystemRole role);
 
-/// The columns system_id, system_role, system_flags of a member row, and their values for row `row`
-/// of the catalogue's input (`column` is advanced past them).
-std::vector<photometry::FitsColumn> systemMembershipColumns();
+/// Appends the columns system_id, system_role, system_flags of a member row to `columns`, and their
+/// values for row `row` of the catalogue's input to `block` (`column` is advanced past them). Both do
+/// nothing for a null `systems` (a run without the system census, --no-systems).
+void appendSystemMembershipColumns(std::vector<photometry::FitsColumn>& columns,
+                                   const census::SystemCatalog* systems);
 void appendSystemMembership(photometry::FitsRowBlock& block, std::size_t& column,
-                            const census::SystemCatalog& systems, std::size_t row);
+                            const census::SystemCatalog* systems, std::size_t row);
 
 void writeSystemsTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                        const census::SystemCatalog& systems, const photometry::Classifier& classifier,

@@ -198,6 +198,29 @@ TEST_CASE("a mock run end to end: simulate, inspect and run exit 0 and write com
     // The report is still written from what the run left.
     CHECK(runStarcensus("report lean", dir).exit_code == 0);
     CHECK(std::filesystem::is_regular_file(dir / "lean" / "report.html"));
+
+    // Without the system census: the same object census (fractions and draws byte for byte), no
+    // systems.fits, no system columns in sample.fits, no system sections; the report still renders.
+    const Outcome no_systems = runStarcensus("run mock.fits --radius 5,10 --draws 50 --no-report --no-hosts "
+                                             "--lf-fit none --checksum none --no-systems --out bare",
+                                             dir);
+    REQUIRE(no_systems.exit_code == 0);
+    CHECK(no_systems.stdout_text.find("  systems: not searched (--no-systems)\n") != std::string::npos);
+    for (const char* name : {"fractions.csv", "draws.csv", "draws.fits"}) {
+        CHECK(readFile(dir / "bare" / name) == readFile(dir / "lean" / name));
+    }
+    CHECK_FALSE(std::filesystem::exists(dir / "bare" / "systems.fits"));
+    CHECK(readFile(dir / "lean" / "sample.fits").find("'system_id'") != std::string::npos);
+    CHECK(readFile(dir / "bare" / "sample.fits").find("'system_id'") == std::string::npos);
+    const auto bare_fractions = jsonFile(dir / "bare" / "fractions.json");
+    CHECK(jsonFile(dir / "lean" / "fractions.json").contains("system_finding"));
+    CHECK_FALSE(bare_fractions.contains("system_finding"));
+    CHECK_FALSE(bare_fractions["radii"][0].contains("systems"));
+    CHECK_FALSE(jsonFile(dir / "bare" / "priors.json")["radii"][0].contains("system_primaries"));
+    const auto bare_outputs = jsonFile(dir / "bare" / "provenance.json")["outputs"];
+    CHECK(std::find(bare_outputs.begin(), bare_outputs.end(), "systems.fits") == bare_outputs.end());
+    CHECK(runStarcensus("report bare", dir).exit_code == 0);
+    CHECK(std::filesystem::is_regular_file(dir / "bare" / "report.html"));
 }
 
 TEST_CASE("overlapping inputs count each star once: the same file twice, and a mock split in two") {
