@@ -240,6 +240,13 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
         rangeset<std::int64_t>& pixels = pixel_sets[worker];
         grid.query_disc_inclusive(detail::toPointing(position), radius_rad, pixels);
         const double depth_mas = a.parallax_mas * a.parallax_mas * depth_factor;
+        // Cheap necessary conditions, tested before the angle and candidatePair, with no square root or
+        // arcsine: the chord |u - v| of a neighbour within radius_rad is at most 2 sin(radius_rad / 2);
+        // and it fails the parallax test when dplx - depth > k f hypot(err_a, err_b), squared.
+        const double half_chord = std::sin(0.5 * radius_rad);
+        const double chord_squared_limit = 4.0 * half_chord * half_chord * (1.0 + kRelativeMargin);
+        const double reach_depth_mas = depth_mas * (1.0 + kRelativeMargin);
+        const double error_a_squared_mas2 = a.scaled_parallax_error_mas * a.scaled_parallax_error_mas;
         for (std::size_t r = 0; r < pixels.nranges(); ++r) {
             for (auto pixel = static_cast<std::size_t>(pixels.ivbegin(r));
                  pixel < static_cast<std::size_t>(pixels.ivend(r)); ++pixel) {
@@ -265,6 +272,17 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
                     const std::uint32_t j = t->row;
                     const PairInputs& b = t->pair_inputs;
                     if (j == i || (b.parallax_mas == a.parallax_mas && j < i)) {
+                        continue;
+                    }
+                    const double excess_mas = (a.parallax_mas - b.parallax_mas) - reach_depth_mas;
+                    if (excess_mas > 0.0 && excess_mas * excess_mas >
+                                                error_factor * error_factor *
+                                                    (error_a_squared_mas2 + b.scaled_parallax_error_mas *
+                                                                                b.scaled_parallax_error_mas) *
+                                                    (1.0 + kRelativeMargin)) {
+                        continue;
+                    }
+                    if (detail::chordSquared(position, t->position) > chord_squared_limit) {
                         continue;
                     }
                     const double separation_rad = detail::separationRadians(position, t->position);

@@ -26,12 +26,15 @@ inline UnitVector unitVectorOf(double ra_deg, double dec_deg) {
     return {std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra), std::sin(dec)};
 }
 
+/// Squared chord |a - b|^2 between two unit vectors.
+inline double chordSquared(const UnitVector& a, const UnitVector& b) {
+    return (a.x - b.x) * (a.x - b.x) + (a.y - b.y) * (a.y - b.y) + (a.z - b.z) * (a.z - b.z);
+}
+
 /// Angle between two unit vectors (radians), from the chord: accurate at arcsecond separations, where
 /// acos of the dot product loses half its digits.
 inline double separationRadians(const UnitVector& a, const UnitVector& b) {
-    const double chord =
-        std::sqrt((a.x - b.x) * (a.x - b.x) + (a.y - b.y) * (a.y - b.y) + (a.z - b.z) * (a.z - b.z));
-    return 2.0 * std::asin(std::min(1.0, chord / 2.0));
+    return 2.0 * std::asin(std::min(1.0, std::sqrt(chordSquared(a, b)) / 2.0));
 }
 
 /// HEALPix RING order whose pixels are about the search radius across, so a disc query returns a few
