@@ -116,7 +116,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier,
                                const photometry::ClassGrid* grid)
-    : radii_pc_(std::move(radii_pc)), grid_(grid) {
+    : radii_pc_(std::move(radii_pc)), stream_rows_(order.begin(), order.end()), grid_(grid) {
     const std::size_t n = order.empty() ? rows.size() : order.size();
     const std::size_t radii = radii_pc_.size();
     g_mag_.resize(n);
@@ -210,6 +210,11 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
     select(source.colour_mag_, colour_mag_);
     select(source.colour_error_mag_, colour_error_mag_);
     select(source.fixed_categories_, fixed_categories_);
+    if (source.stream_rows_.empty()) {
+        stream_rows_.assign(order.begin(), order.end());
+    } else {
+        select(source.stream_rows_, stream_rows_);
+    }
     if (!source.certain_categories_.empty()) {
         select(source.certain_categories_, certain_categories_);
     }
@@ -319,7 +324,7 @@ class SampleDrawer {
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
         for (std::size_t s = begin; s < end; ++s) {
             // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
-            Xoshiro256 random(settings_.seed, s);
+            Xoshiro256 random(settings_.seed, sample_.stream_rows_.empty() ? s : sample_.stream_rows_[s]);
             const float* within = &sample_.probability_within_[s * radii];
             const float g = sample_.g_mag_[s];
             const float g_error = sample_.g_error_mag_[s];

@@ -5,7 +5,8 @@
 //
 // Layout for speed: a structure of arrays built once (PreparedSample), processed star-major (each star's
 // tables stay in cache while all its draws are made), per-thread tallies summed at the end. Each star has
-// its own random stream (seed, star index), so the result is identical for any thread count. A star whose
+// its own random stream (seed, row index), so the result is identical for any thread count, and the stars of
+// a sample selected from another (the order constructors) draw what they drew there. A star whose
 // draws cannot differ (membership probability exactly 0 or 1 at every radius, and every outcome its errors
 // allow inside cells of one category) is tallied without drawing: the numbers the draws would give.
 #include "census/Membership.h"
@@ -25,7 +26,7 @@ namespace starcensus::census {
 /// Monte Carlo settings.
 struct DrawSettings {
     int draws = 1000;       // number of realisations of the sample
-    std::uint64_t seed = 1; // master seed; each star draws from stream (seed, star index)
+    std::uint64_t seed = 1; // master seed; each star draws from stream (seed, its row index)
     unsigned threads = 0;   // 0 = all hardware threads
     // Optional: star-draws done (items_done, advanced once per block of stars) and to do (items_total),
     // for a caller's display (photometry/base/Progress.h). Never read by the draws.
@@ -61,7 +62,7 @@ class PreparedSample {
                    const photometry::Classifier* classifier = nullptr,
                    const photometry::ClassGrid* grid = nullptr);
     /// The same for the rows rows[order[0]], rows[order[1]], ... (star s is rows[order[s]]), without a
-    /// copy of them.
+    /// copy of them. Star s draws from row order[s]'s stream, as in a sample of all the rows.
     PreparedSample(std::span<const photometry::CatalogRow> rows, std::span<const std::uint32_t> order,
                    std::vector<double> radii_pc, const MembershipSettings& membership,
                    const RowClassRules& rules, unsigned threads,
@@ -69,7 +70,8 @@ class PreparedSample {
                    const photometry::ClassGrid* grid = nullptr);
 
     /// The stars source[order[0]], source[order[1]], ...: what the constructor gives for those rows of
-    /// source's rows (each star's data depends on its row alone), without preparing them again.
+    /// source's rows (each star's data depends on its row alone), without preparing them again; each
+    /// draws from its stream in source, so its draws are the ones it has there.
     PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order);
 
     std::size_t size() const { return g_mag_.size(); }
@@ -92,6 +94,8 @@ class PreparedSample {
     std::vector<float> colour_mag_; // BP-RP, NaN if either band is missing
     std::vector<float> colour_error_mag_;
     std::vector<float> probability_within_; // [star][radius]
+    // [star]: the row index whose random stream the star draws from; empty: the star's own index
+    std::vector<std::uint32_t> stream_rows_;
     // Per block of kBlockStars stars (MonteCarlo.cpp), the tables of those of its stars that need them:
     // quantiles [row][kQuantiles], the distance modulus (mag) at each quantile, for the stars whose draws
     // can differ; categories [row][kQuantiles], the exact classifier's category at each distance quantile,

@@ -2,7 +2,9 @@
 
 #include "photometry/ClassGrid.h"
 
+#include <algorithm>
 #include <cmath>
+#include <functional>
 #include <limits>
 #include <optional>
 #include <stdexcept>
@@ -38,6 +40,20 @@ OrderedPrimaries orderPrimaries(const SystemCatalog& catalog) {
         }
     }
     return ordered;
+}
+
+/// The tallies of a sample's stars less those of some of them drawn on their own (same draws, radii).
+DrawTallies withoutStars(const DrawTallies& all, const DrawTallies& some) {
+    if (all.draws != some.draws || all.radii != some.radii || all.counts.size() != some.counts.size()) {
+        throw std::invalid_argument("analyseSystems: the census's tallies have other draws or radii");
+    }
+    DrawTallies rest;
+    rest.draws = all.draws;
+    rest.radii = all.radii;
+    rest.counts.resize(all.counts.size());
+    std::transform(all.counts.begin(), all.counts.end(), some.counts.begin(), rest.counts.begin(),
+                   std::minus<>());
+    return rest;
 }
 
 ClassGroup everyCategory() {
@@ -140,9 +156,21 @@ SystemAnalysis analyseSystems(const SystemCensusInputs& inputs) {
     DrawTallies with_unresolved = resolved;
     appendTallies(with_unresolved,
                   drawSample(primary_sample, grid, draws, ordered.resolved_end, ordered.flagged_end));
-    DrawTallies primary_tallies = with_unresolved;
-    appendTallies(primary_tallies,
-                  drawSample(primary_sample, grid, draws, ordered.flagged_end, primary_sample.size()));
+    DrawTallies primary_tallies;
+    if (inputs.tallies != nullptr && inputs.sample != nullptr) {
+        std::vector<std::uint32_t> companions;
+        for (std::uint32_t row = 0; row < analysis.catalog.roles.size(); ++row) {
+            if (analysis.catalog.roles[row] == SystemRole::Companion) {
+                companions.push_back(row);
+            }
+        }
+        const PreparedSample companion_sample(*inputs.sample, companions);
+        primary_tallies = withoutStars(*inputs.tallies, drawSample(companion_sample, grid, draws));
+    } else {
+        primary_tallies = with_unresolved;
+        appendTallies(primary_tallies,
+                      drawSample(primary_sample, grid, draws, ordered.flagged_end, primary_sample.size()));
+    }
 
     const FractionSettings fraction_settings{.seed = inputs.draws.seed};
     std::vector<PopulationDeviates> population =

@@ -13,9 +13,10 @@
 // change with the flags.
 //
 // Pairing of the draws: the primaries are ordered resolved multiples first, then the flagged others,
-// then the rest, and drawn three times (all; the first block; the first two blocks) with the same seed.
-// Each star's draws come from its own stream (seed, index), so the three runs draw the same outcomes
-// for the same star and the ratios per draw are exact.
+// then the rest; each star's draws come from its row's stream (seed, row index; MonteCarlo.h), so a
+// star has the same outcomes in every tally it is part of, the census by objects included, and the
+// ratios per draw are exact. The first two blocks are drawn; all primaries are either those two blocks
+// and a draw of the third or, given the census's own tallies, those less a draw of the companions.
 #include "census/ClassGroups.h"
 #include "census/Fractions.h"
 #include "census/Membership.h"
@@ -71,6 +72,10 @@ struct SystemCensusInputs {
     // Optional: the census's PreparedSample of `rows` (same radii, membership, rules and classifier,
     // prepared with a grid); the primaries' sample is then selected from it instead of prepared again.
     const PreparedSample* sample = nullptr;
+    // Optional, with `sample`: the census's draws of it (drawSample with the same seed and draws). Every
+    // primary draws from its row's stream, as there, so the primaries' tallies are these less the draws
+    // of the other members (the companions, a few per cent of the rows) instead of a draw of them all.
+    const DrawTallies* tallies = nullptr;
 };
 
 /// The masses that pick each system's primary: classifyRow's locus mass; evolved stars rank first

@@ -282,6 +282,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
             inputs.systems = census.systems;
             inputs.systems.threads = census.draws.threads;
             inputs.sample = &sample;
+            inputs.tallies = &tallies;
             auto analysis = census::analyseSystems(inputs);
             result.timings.systems_s = secondsSince(systems_start);
             return analysis;

@@ -110,6 +110,24 @@ TEST_CASE("a sample prepared with its grid (no tables for the certain stars) dra
     const auto from_prepared = census::drawSample(prepared, grid, settings);
     CHECK(from_selected.counts == from_prepared.counts);
     CHECK(from_selected.star_classes == from_prepared.star_classes);
+    // Each selected star draws from its row's stream: the selection and the other stars, drawn apart,
+    // add up to one draw of all of them, star for star.
+    std::vector<std::uint32_t> others;
+    for (std::uint32_t s = 0; s < 3000; ++s) {
+        if (s % 3 != 2) {
+            others.push_back(s);
+        }
+    }
+    const auto from_others = census::drawSample(census::PreparedSample(with_grid, others), grid, settings);
+    for (std::size_t slot = 0; slot < expected.counts.size(); ++slot) {
+        REQUIRE(from_selected.counts[slot] + from_others.counts[slot] == expected.counts[slot]);
+    }
+    for (std::size_t k = 0; k < order.size(); ++k) {
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            REQUIRE(from_selected.star_classes[k * photometry::kClassCount + c] ==
+                    expected.star_classes[order[k] * photometry::kClassCount + c]);
+        }
+    }
     // Another grid than the one the sample was prepared with is refused.
     CHECK_THROWS_AS(census::drawSample(with_grid, toyGrid(), settings), std::invalid_argument);
 }

@@ -1,11 +1,13 @@
 #include "census/SystemFractions.h"
 
 #include "census/mock/Neighbourhood.h"
+#include "photometry/ClassGrid.h"
 
 #include <doctest/doctest.h>
 
 #include <algorithm>
 #include <cstdio>
+#include <stdexcept>
 #include <unordered_map>
 
 using namespace starcensus::census;
@@ -84,6 +86,51 @@ TEST_CASE("SystemFractions: multiplicity intervals are the Jeffreys Beta posteri
     CHECK(share.population_beta.beta == doctest::Approx(70.5).epsilon(0.05));
     CHECK((intervals.population.hi68 - intervals.population.lo68) / 2.0 ==
           doctest::Approx(0.0455).epsilon(0.05));
+}
+
+TEST_CASE("SystemFractions: given the census's own draws, the primaries' tallies are theirs less the "
+          "companions', with the same results as drawing every primary") {
+    const mock::MockResult mock = mock::simulateNeighbourhood(multipleMock(20.0), 4);
+    const auto& classifier = starcensus::photometry::Classifier::shipped();
+    const auto grid = starcensus::photometry::ClassGrid::fromClassifier(classifier);
+    SystemCensusInputs inputs;
+    inputs.rows = mock.catalog;
+    inputs.classifier = &classifier;
+    inputs.radii_pc = {10.0, 20.0};
+    inputs.draws.draws = 200;
+    inputs.draws.seed = 8;
+    inputs.draws.threads = 2;
+    inputs.groups = standardClassGroups();
+    const PreparedSample sample(inputs.rows, inputs.radii_pc, inputs.membership, inputs.rules, 2, &classifier,
+                                &grid);
+    const DrawTallies tallies = drawSample(sample, grid, inputs.draws);
+    const SystemAnalysis drawn = analyseSystems(inputs); // its own sample, every primary drawn
+    inputs.sample = &sample;
+    inputs.tallies = &tallies;
+    const SystemAnalysis subtracted = analyseSystems(inputs);
+    std::size_t companions = 0;
+    for (const SystemRole role : subtracted.catalog.roles) {
+        companions += role == SystemRole::Companion ? 1 : 0;
+    }
+    CHECK(companions > 20); // the subtraction has something to take off
+    REQUIRE(drawn.radii.size() == 2);
+    for (std::size_t r = 0; r < 2; ++r) {
+        const auto same = [](const IntervalSummary& a, const IntervalSummary& b) {
+            return a.median == b.median && a.lo68 == b.lo68 && a.hi68 == b.hi68 && a.lo95 == b.lo95 &&
+                   a.hi95 == b.hi95;
+        };
+        CHECK(same(drawn.radii[r].all.primaries, subtracted.radii[r].all.primaries));
+        CHECK(same(drawn.radii[r].all.resolved.fraction.population,
+                   subtracted.radii[r].all.resolved.fraction.population));
+        for (std::size_t g = 0; g < drawn.radii[r].primary_fractions.size(); ++g) {
+            CHECK(same(drawn.radii[r].primary_fractions[g].count.population,
+                       subtracted.radii[r].primary_fractions[g].count.population));
+        }
+    }
+    // Tallies of another Monte Carlo (other draws) are refused.
+    const DrawTallies fewer = drawSample(sample, grid, {.draws = 100, .seed = 8, .threads = 2});
+    inputs.tallies = &fewer;
+    CHECK_THROWS_AS(analyseSystems(inputs), std::invalid_argument);
 }
 
 TEST_CASE("SystemFractions: multiplicity population intervals cover the mocks' multiplicity over 50 seeds") {
