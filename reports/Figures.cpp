@@ -755,7 +755,9 @@ FigureOutput fractionsVersusRadiusFigure(const ReportInputs& inputs, const std::
     const double log_floor = fractionLogFloor(inputs.fractions, names);
     const double r_first = radii.front().at("radius_pc").get<double>();
     const double r_last = radii.back().at("radius_pc").get<double>();
-    const double margin = 0.08 * std::max(r_last - r_first, 1.0);
+    // Radii close together (or one radius) still get an axis a tenth of the largest radius wide or more,
+    // so its ticks read as distinct radii.
+    const double margin = 0.08 * std::max(r_last - r_first, 0.5 * r_last);
     const auto styles = nameStyles(names);
     const std::string caption =
         "Fraction of each class and group against the census radius (population intervals; bars 68%, thin "
