@@ -956,8 +956,9 @@ std::optional<FigureOutput> multiplicityFigure(const ReportInputs& inputs,
             {"resolved", {kBlue, "●"}}, {"with_unresolved_candidates", {kVermillion, "○"}}};
         for (std::size_t i = 0; i < names.size(); ++i) {
             plcol0(kBlack);
-            plmtex("b", 1.5, (static_cast<double>(i) + 0.5) / static_cast<double>(names.size()), 0.5,
-                   names[i].c_str());
+            // Neighbouring labels on alternate lines: "evolved" and "unclassified" are wider than a slot.
+            plmtex("b", i % 2 == 0 ? 1.5 : 2.7,
+                   (static_cast<double>(i) + 0.5) / static_cast<double>(names.size()), 0.5, names[i].c_str());
             for (std::size_t k = 0; k < 2; ++k) {
                 const auto& interval = multiplicity.at(names[i]).at(series[k].first).at("population");
                 const PLFLT x[] = {static_cast<double>(i) + (k == 0 ? -0.12 : 0.12)};

@@ -59,6 +59,9 @@ std::string intervalText(const nlohmann::json& interval, bool with_95, int signi
 }
 
 std::string jsonCell(const nlohmann::json& value) {
+    if (value.is_null()) {
+        return "–"; // as number() writes a value that is not finite
+    }
     if (value.is_string()) {
         return escapeHtml(value.get<std::string>());
     }
@@ -68,7 +71,30 @@ std::string jsonCell(const nlohmann::json& value) {
     if (value.is_primitive()) {
         return escapeHtml(value.dump());
     }
+    if (value.is_array() &&
+        std::all_of(value.begin(), value.end(), [](const auto& v) { return v.is_number() || v.is_null(); })) {
+        std::string text; // a range such as complete_abs_g_range, to 4 significant digits
+        for (const auto& v : value) {
+            text += (text.empty() ? "[" : ", ") + (v.is_null() ? "–" : number(v.get<double>(), 4));
+        }
+        return text.empty() ? "[]" : text + "]";
+    }
     return "<code>" + escapeHtml(value.dump()) + "</code>";
+}
+
+/// A fit's goodness of fit (lumfunc_fit.json) as a sentence: the Cash statistic, its degrees of
+/// freedom and chi-square p-value, and the bins it used; other shapes as JSON.
+std::string goodnessOfFitCell(const nlohmann::json& goodness) {
+    if (!goodness.is_object() || !goodness.contains("cash_statistic") || !goodness.contains("p_value")) {
+        return jsonCell(goodness);
+    }
+    const auto cell = [&](const char* key) { return jsonCell(goodness.value(key, nlohmann::json())); };
+    std::string text = "C = " + cell("cash_statistic") + ", " + cell("degrees_of_freedom") +
+                       " degrees of freedom, p = " + cell("p_value");
+    if (goodness.contains("bins")) {
+        text += " (" + cell("bins") + " bins, M_G " + cell("fit_abs_g_range") + ")";
+    }
+    return text;
 }
 
 class HtmlTable {
@@ -345,7 +371,9 @@ std::string luminosityFitSection(const nlohmann::json& fit) {
         table.row({jsonCell(model.value("model", nlohmann::json())),
                    jsonCell(model.value("converged", nlohmann::json())), parameters,
                    jsonCell(model.value("log_likelihood", nlohmann::json())),
-                   jsonCell(model.value("goodness_of_fit", nlohmann::json())),
+                   model.value("converged", false)
+                       ? goodnessOfFitCell(model.value("goodness_of_fit", nlohmann::json()))
+                       : "–",
                    jsonCell(model.value("message", nlohmann::json()))});
     }
     out << table.html();
