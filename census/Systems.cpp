@@ -211,6 +211,14 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
     const double error_factor = s.parallax_consistency_sigma * std::max(1.0, s.close_pair_error_factor);
     const double depth_factor = s.radial_to_projected_ratio * s.max_projected_separation_pc / 1000.0;
     constexpr double kRelativeMargin = 1e-9;
+    // Per neighbour, candidatePair's own factor: the close-pair factor only within close_pair_arcsec (a
+    // chord up to a hair beyond that angle's is taken as close), so most pairs are held to k sigma, not
+    // k f sigma.
+    const double close_half_chord = std::sin(0.5 * s.close_pair_arcsec / kArcsecPerRadian);
+    const double close_chord_squared_limit =
+        4.0 * close_half_chord * close_half_chord * (1.0 + kRelativeMargin);
+    const double close_factor_squared = error_factor * error_factor;
+    const double plain_factor_squared = s.parallax_consistency_sigma * s.parallax_consistency_sigma;
     // The parallaxes alone as well, for the search of where a pixel's usable targets start and stop.
     std::vector<double> parallax_by_pixel(by_pixel.size());
     std::transform(by_pixel.begin(), by_pixel.end(), parallax_by_pixel.begin(),
@@ -242,7 +250,8 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
         const double depth_mas = a.parallax_mas * a.parallax_mas * depth_factor;
         // Cheap necessary conditions, tested before the angle and candidatePair, with no square root or
         // arcsine: the chord |u - v| of a neighbour within radius_rad is at most 2 sin(radius_rad / 2);
-        // and it fails the parallax test when dplx - depth > k f hypot(err_a, err_b), squared.
+        // and it fails the parallax test when dplx - depth > k f hypot(err_a, err_b), squared (f = 1
+        // beyond close_pair_arcsec).
         const double half_chord = std::sin(0.5 * radius_rad);
         const double chord_squared_limit = 4.0 * half_chord * half_chord * (1.0 + kRelativeMargin);
         const double reach_depth_mas = depth_mas * (1.0 + kRelativeMargin);
@@ -274,15 +283,19 @@ std::vector<SystemPair> searchPairs(const std::vector<PairInputs>& inputs,
                     if (j == i || (b.parallax_mas == a.parallax_mas && j < i)) {
                         continue;
                     }
+                    const double chord_squared = detail::chordSquared(position, t->position);
+                    if (chord_squared > chord_squared_limit) {
+                        continue;
+                    }
+                    const double factor_squared = chord_squared <= close_chord_squared_limit
+                                                      ? close_factor_squared
+                                                      : plain_factor_squared;
                     const double excess_mas = (a.parallax_mas - b.parallax_mas) - reach_depth_mas;
                     if (excess_mas > 0.0 && excess_mas * excess_mas >
-                                                error_factor * error_factor *
+                                                factor_squared *
                                                     (error_a_squared_mas2 + b.scaled_parallax_error_mas *
                                                                                 b.scaled_parallax_error_mas) *
                                                     (1.0 + kRelativeMargin)) {
-                        continue;
-                    }
-                    if (detail::chordSquared(position, t->position) > chord_squared_limit) {
                         continue;
                     }
                     const double separation_rad = detail::separationRadians(position, t->position);
