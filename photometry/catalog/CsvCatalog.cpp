@@ -248,7 +248,8 @@ class CsvLines {
 } // namespace
 
 bool isCsvPath(const std::string& path) {
-    return detail::endsWithAnyIgnoringCase(path, {".csv", ".csv.gz", ".ecsv", ".ecsv.gz"});
+    return detail::endsWithAnyIgnoringCase(path,
+                                           {".csv", ".csv.gz", ".csv.bz2", ".ecsv", ".ecsv.gz", ".ecsv.bz2"});
 }
 
 namespace detail {

@@ -16,8 +16,8 @@
 
 namespace starcensus::photometry {
 
-/// True for names ending in ".csv", ".csv.gz", ".ecsv" or ".ecsv.gz" (any case): the files scanCatalogs
-/// reads as CSV or ECSV (which of the two, the first line says).
+/// True for names ending in ".csv" or ".ecsv", also with ".gz" or ".bz2" (any case): the files
+/// scanCatalogs reads as CSV or ECSV (which of the two, the first line says).
 bool isCsvPath(const std::string& path);
 
 namespace detail {

@@ -1,11 +1,13 @@
 #pragma once
-// A file's bytes, plain or gzip-compressed (zlib reads both), in blocks inflated ahead by a thread of its
-// own: the reader that parses the text and the inflate run at once, so a compressed scan takes about
-// as long as the slower of the two instead of their sum (README, Performance). Memory is bounded: a few
-// blocks per open file, never the whole stream.
+// A file's bytes, plain, gzip- or bzip2-compressed (zlib reads plain and gzip; libbz2 the files that
+// start with bzip2's "BZh" magic, also several streams one after another as pbzip2 writes them), in
+// blocks inflated ahead by a thread of its own: the reader that parses the text and the inflate run at
+// once, so a compressed scan takes about as long as the slower of the two instead of their sum (README,
+// Performance). Memory is bounded: a few blocks per open file, never the whole stream.
 #include <condition_variable>
 #include <cstddef>
 #include <deque>
+#include <memory>
 #include <mutex>
 #include <string>
 #include <string_view>
@@ -13,6 +15,8 @@
 #include <vector>
 
 namespace starcensus::photometry::detail {
+
+class BlockDecoder; // gzip/plain or bzip2 (InflatedBlocks.cpp)
 
 class InflatedBlocks {
   public:
@@ -29,12 +33,13 @@ class InflatedBlocks {
     /// failed() true: the stream was damaged or truncated after the bytes already given.
     std::string_view next();
     bool failed() const { return !failure_.empty(); }
-    /// zlib's description of the damage ("" if none).
+    /// The decompressor's description of the damage ("" if none).
     const std::string& failure() const { return failure_; }
 
   private:
-    void inflateAll(void* file);
+    void inflateAll();
 
+    std::unique_ptr<BlockDecoder> decoder_;
     std::mutex mutex_;
     std::condition_variable changed_;
     std::vector<std::vector<char>> buffers_;

@@ -523,8 +523,8 @@ class VoTableStream {
 } // namespace
 
 bool isVoTablePath(const std::string& path) {
-    return detail::endsWithAnyIgnoringCase(path,
-                                           {".vot", ".votable", ".xml", ".vot.gz", ".votable.gz", ".xml.gz"});
+    return detail::endsWithAnyIgnoringCase(path, {".vot", ".votable", ".xml", ".vot.gz", ".votable.gz",
+                                                  ".xml.gz", ".vot.bz2", ".votable.bz2", ".xml.bz2"});
 }
 
 namespace detail {

@@ -14,7 +14,7 @@
 
 namespace starcensus::photometry {
 
-/// True for names ending in ".vot", ".votable" or ".xml", also with ".gz" (any case).
+/// True for names ending in ".vot", ".votable" or ".xml", also with ".gz" or ".bz2" (any case).
 bool isVoTablePath(const std::string& path);
 
 namespace detail {

@@ -13,7 +13,10 @@ astropy's own writers:
   OUTDIR/table_tabledata.vot, table_binary.vot, table_binary2.vot
                          VOTable (astropy.io.votable) in each serialisation, meta.ucd as the FIELD ucd
   OUTDIR/table_binary2.vot.gz  the BINARY2 one, gzip-compressed
+  OUTDIR/table.ecsv.bz2, table_binary2.vot.bz2  bzip2-compressed copies (Python's bz2 module)
+  OUTDIR/table.csv.bz2   the CSV as two bzip2 streams one after the other (as pbzip2 writes them)
 """
+import bz2
 import gzip
 import shutil
 import sys
@@ -42,4 +45,11 @@ for serialisation in ("tabledata", "binary", "binary2"):
                 overwrite=True)
 with open(f"{outdir}/table_binary2.vot", "rb") as source, gzip.open(f"{outdir}/table_binary2.vot.gz", "wb") as target:
     shutil.copyfileobj(source, target)
+for name in ("table.ecsv", "table_binary2.vot"):
+    with open(f"{outdir}/{name}", "rb") as source, bz2.open(f"{outdir}/{name}.bz2", "wb") as target:
+        shutil.copyfileobj(source, target)
+with open(f"{outdir}/table.csv", "rb") as source:
+    text = source.read()
+with open(f"{outdir}/table.csv.bz2", "wb") as target:
+    target.write(bz2.compress(text[: len(text) // 2]) + bz2.compress(text[len(text) // 2 :]))
 print("ok")

@@ -557,7 +557,8 @@ TEST_CASE("inspect's printed mapping, fed back as --config, gives the same run a
 
 TEST_CASE("ECSV, CSV.gz and VOTable written by astropy give the same run as the FITS file") {
     // astropy's writers (tests/python/write_ecsv.py: ascii.ecsv with the TUCDs as meta.ucd, space- and
-    // comma-delimited, gzip copies, ascii.csv, and astropy.io.votable in TABLEDATA, BINARY and BINARY2)
+    // comma-delimited, gzip and bzip2 copies (the CSV's in two bzip2 streams), ascii.csv, and
+    // astropy.io.votable in TABLEDATA, BINARY and BINARY2)
     // from a simulated 12 pc catalogue: every output a run writes from the rows must be byte-identical to
     // the FITS run's (nulls, units and float32 values included).
     const starcensus::testing::ScratchDirectory scratch("starcensus-cli-ecsv");
@@ -574,11 +575,14 @@ TEST_CASE("ECSV, CSV.gz and VOTable written by astropy give the same run as the 
         {"table.ecsv", ""},
         {"table.ecsv.gz", ""},
         {"table_comma.ecsv", ""},
+        {"table.ecsv.bz2", ""},
         {"table.csv.gz", " --unit pmra=mas/yr --unit pmdec=mas/yr --unit ra=deg --unit dec=deg"},
+        {"table.csv.bz2", " --unit pmra=mas/yr --unit pmdec=mas/yr --unit ra=deg --unit dec=deg"},
         {"table_tabledata.vot", ""},
         {"table_binary.vot", ""},
         {"table_binary2.vot", ""},
-        {"table_binary2.vot.gz", ""}};
+        {"table_binary2.vot.gz", ""},
+        {"table_binary2.vot.bz2", ""}};
     for (const auto& [file, units] : runs) {
         CAPTURE(file);
         const std::string out = "out_" + file;
@@ -605,6 +609,9 @@ TEST_CASE("ECSV, CSV.gz and VOTable written by astropy give the same run as the 
     write("short_row.ecsv", ecsv.substr(0, ecsv.rfind(' ')) + "\n");
     const std::string gz = readFile(dir / "table.ecsv.gz");
     write("truncated.ecsv.gz", gz.substr(0, gz.size() / 2));
+    const std::string bz = readFile(dir / "table.ecsv.bz2");
+    write("truncated.ecsv.bz2", bz.substr(0, bz.size() / 2));
+    write("trailing.ecsv.bz2", bz + "not bzip2");
     const std::string tabledata = readFile(dir / "table_tabledata.vot");
     // Pieces joined rather than edited in place (GCC 12 warns, wrongly, on std::string::replace here).
     const auto spliced = [](const std::string& text, std::size_t at, std::size_t removed,
@@ -623,6 +630,8 @@ TEST_CASE("ECSV, CSV.gz and VOTable written by astropy give the same run as the 
         {"yaml.ecsv", "ECSV header is not valid YAML"},
         {"short_row.ecsv", "fields, the header has 20"},
         {"truncated.ecsv.gz", "damaged or truncated compressed data after line"},
+        {"truncated.ecsv.bz2", "(bzip2: the data end inside a stream)"},
+        {"trailing.ecsv.bz2", "(bzip2: not bzip2 data after the end of stream 1)"},
         {"short_row.vot", "VOTable row 1 has 19 cells, the table 20 FIELDs"},
         {"datatype.vot", "has datatype 'quad', not one of VOTable 1.4's"},
         {"truncated.vot", "not a well-formed VOTable"},
