@@ -45,7 +45,7 @@ class GzipDecoder final : public BlockDecoder {
 /// multi-stream file start on the input left after the previous one's end.
 class Bzip2Decoder final : public BlockDecoder {
   public:
-    explicit Bzip2Decoder(std::FILE* file) : file_(file) { start(); }
+    explicit Bzip2Decoder(std::FILE* file) : file_(file) { BZ2_bzDecompressInit(&stream_, 0, 0); }
     ~Bzip2Decoder() override {
         BZ2_bzDecompressEnd(&stream_);
         std::fclose(file_);
@@ -71,17 +71,11 @@ class Bzip2Decoder final : public BlockDecoder {
             between_streams_ = false;
             const int status = BZ2_bzDecompress(&stream_);
             if (status == BZ_STREAM_END) {
-                // The input after this stream's end, and the room left in `out`, carry over to the next.
-                char* next_in = stream_.next_in;
-                const unsigned avail_in = stream_.avail_in;
-                char* next_out = stream_.next_out;
-                const unsigned avail_out = stream_.avail_out;
+                // The next stream starts on the input after this one's end, into the room left in `out`:
+                // ending and initialising a decompressor leave next_in/avail_in and next_out/avail_out as
+                // they are.
                 BZ2_bzDecompressEnd(&stream_);
-                start();
-                stream_.next_in = next_in;
-                stream_.avail_in = avail_in;
-                stream_.next_out = next_out;
-                stream_.avail_out = avail_out;
+                BZ2_bzDecompressInit(&stream_, 0, 0);
                 between_streams_ = true;
                 ++streams_ended_;
             } else if (status != BZ_OK) {
@@ -102,13 +96,8 @@ class Bzip2Decoder final : public BlockDecoder {
     }
 
   private:
-    void start() {
-        stream_ = bz_stream{};
-        BZ2_bzDecompressInit(&stream_, 0, 0);
-    }
-
     std::FILE* file_;
-    bz_stream stream_{};
+    bz_stream stream_{}; // zeroed: libbz2's own allocator
     std::array<char, kCompressedReadBytes> input_{};
     bool between_streams_ = true; // no stream started, or the last one ended: the data may end here
     bool ended_ = false;
