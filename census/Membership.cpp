@@ -42,13 +42,13 @@ double distanceModulusOfParallax(double true_parallax_mas) {
 } // namespace
 
 DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_mas,
-                                     const MembershipSettings& settings) {
+                                     const MembershipSettings& settings, Quantiles quantiles) {
     const double observed = correctedParallax(parallax_mas, settings);
     const double sigma = parallax_error_mas * settings.parallax_error_inflation;
     const double lower_limit = lowerParallaxLimitMas(settings);
     if (observed > 0.0 && sigma <= settings.gaussian_shortcut_max_relative_error * observed &&
         observed - kLikelihoodHalfWidthSigma * sigma > lower_limit) {
-        setGaussian(observed, sigma, settings.prior);
+        setGaussian(observed, sigma, settings.prior, quantiles);
         return;
     }
 
@@ -107,9 +107,31 @@ DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_
         }
         modulus_quantiles_[static_cast<std::size_t>(j)] = static_cast<float>(distanceModulusOfParallax(t));
     }
+    const auto [nearest, farthest] =
+        std::minmax_element(modulus_quantiles_.begin(), modulus_quantiles_.end());
+    nearest_modulus_ = *nearest;
+    farthest_modulus_ = *farthest;
 }
 
-void DistancePosterior::setGaussian(double observed, double sigma, DistancePrior prior) {
+namespace {
+
+/// z_j with P(Z > z_j) = j / (kQuantileNodes - 1): u = P(t' > t) as in the grid's quantiles.
+const std::array<double, DistancePosterior::kQuantileNodes>& standardNormalQuantiles() {
+    constexpr int kNodes = DistancePosterior::kQuantileNodes;
+    static const std::array<double, kNodes> quantiles = [] {
+        std::array<double, kNodes> z{};
+        for (int j = 1; j + 1 < kNodes; ++j) {
+            z[static_cast<std::size_t>(j)] =
+                detail::FastNormal::inverseNormalCdf(1.0 - static_cast<double>(j) / (kNodes - 1));
+        }
+        return z;
+    }();
+    return quantiles;
+}
+
+} // namespace
+
+void DistancePosterior::setGaussian(double observed, double sigma, DistancePrior prior, Quantiles quantiles) {
     // Laplace approximation about the measured parallax u = t - plx: log p = -4 ln t - u^2 / (2 sigma^2)
     // ~ const - 4u / plx + 2u^2 / plx^2 - u^2 / (2 sigma^2), a Gaussian of precision 1/sigma^2 - 4/plx^2
     // centred at plx - (4/plx) / precision (the Lutz-Kelker shift). The neglected cubic term skews the
@@ -124,27 +146,30 @@ void DistancePosterior::setGaussian(double observed, double sigma, DistancePrior
     gaussian_mean_mas_ = mean;
     gaussian_sd_mas_ = 1.0 / std::sqrt(precision);
     // The grid's outermost quantiles are its ends, observed -/+ kLikelihoodHalfWidthSigma sigma; the same
-    // ends here keep the random draws' range.
-    const auto& z = standardNormalQuantiles();
-    for (int j = 0; j < kQuantileNodes; ++j) {
-        const double t = j == 0                    ? observed + kLikelihoodHalfWidthSigma * sigma
-                         : j == kQuantileNodes - 1 ? observed - kLikelihoodHalfWidthSigma * sigma
-                                                   : mean + gaussian_sd_mas_ * z[static_cast<std::size_t>(j)];
-        modulus_quantiles_[static_cast<std::size_t>(j)] = static_cast<float>(distanceModulusOfParallax(t));
+    // ends here keep the random draws' range. The nodes between increase with j (z_j decreases, and the
+    // ends lie 10 sigma out against |z_j| <= 2.2), so the ends are the table's extremes.
+    nearest_modulus_ =
+        static_cast<float>(distanceModulusOfParallax(observed + kLikelihoodHalfWidthSigma * sigma));
+    farthest_modulus_ =
+        static_cast<float>(distanceModulusOfParallax(observed - kLikelihoodHalfWidthSigma * sigma));
+    modulus_quantiles_.front() = nearest_modulus_;
+    modulus_quantiles_.back() = farthest_modulus_;
+    quantiles_tabulated_ = false;
+    if (quantiles == Quantiles::Tabulated) {
+        tabulateQuantiles();
     }
 }
 
-const std::array<double, DistancePosterior::kQuantileNodes>& DistancePosterior::standardNormalQuantiles() {
-    // z_j with P(Z > z_j) = j / (kQuantileNodes - 1): u = P(t' > t) as in the grid's quantiles.
-    static const std::array<double, kQuantileNodes> quantiles = [] {
-        std::array<double, kQuantileNodes> z{};
-        for (int j = 1; j + 1 < kQuantileNodes; ++j) {
-            z[static_cast<std::size_t>(j)] =
-                detail::FastNormal::inverseNormalCdf(1.0 - static_cast<double>(j) / (kQuantileNodes - 1));
-        }
-        return z;
-    }();
-    return quantiles;
+void DistancePosterior::tabulateQuantiles() {
+    if (quantiles_tabulated_) {
+        return;
+    }
+    const auto& z = standardNormalQuantiles();
+    for (std::size_t j = 1; j + 1 < static_cast<std::size_t>(kQuantileNodes); ++j) {
+        modulus_quantiles_[j] =
+            static_cast<float>(distanceModulusOfParallax(gaussian_mean_mas_ + gaussian_sd_mas_ * z[j]));
+    }
+    quantiles_tabulated_ = true;
 }
 
 double DistancePosterior::probabilityWithin(double radius_pc) const {

@@ -39,8 +39,17 @@ class DistancePosterior {
     /// Nodes of the tabulated posterior (see Membership.cpp).
     static constexpr int kGridNodes = 401;
 
+    /// How much of the quantile table the constructor fills: all of it, or (Deferred) on the Gaussian
+    /// shortcut only its two ends until tabulateQuantiles(), for callers that may need no more.
+    enum class Quantiles : std::uint8_t { Tabulated, Deferred };
+
     /// parallax_mas and parallax_error_mas are the catalogue values (before zero point and inflation).
-    DistancePosterior(double parallax_mas, double parallax_error_mas, const MembershipSettings& settings);
+    DistancePosterior(double parallax_mas, double parallax_error_mas, const MembershipSettings& settings,
+                      Quantiles quantiles = Quantiles::Tabulated);
+
+    /// Fills the quantile table of a Deferred posterior (no effect on a tabulated one). The ends below
+    /// are the same before and after.
+    void tabulateQuantiles();
 
     /// P(true distance < radius_pc).
     double probabilityWithin(double radius_pc) const;
@@ -51,17 +60,27 @@ class DistancePosterior {
     /// Distance modulus 5 log10(d / 10 pc) at cumulative probability u in [0, 1], interpolated.
     double distanceModulusAt(double u) const;
 
-    /// The tabulated distance moduli at u = k / (kQuantileNodes - 1), nearest star first.
+    /// The tabulated distance moduli at u = k / (kQuantileNodes - 1), nearest star first (mag); of a
+    /// Deferred posterior, after tabulateQuantiles().
     const std::array<float, kQuantileNodes>& distanceModulusQuantiles() const { return modulus_quantiles_; }
 
+    /// The smallest and largest distance modulus of the table (mag): the range of every draw. Known
+    /// before tabulateQuantiles().
+    float nearestModulus() const { return nearest_modulus_; }
+    float farthestModulus() const { return farthest_modulus_; }
+
   private:
-    void setGaussian(double observed_mas, double sigma_mas, DistancePrior prior);
-    static const std::array<double, kQuantileNodes>& standardNormalQuantiles();
+    void setGaussian(double observed_mas, double sigma_mas, DistancePrior prior, Quantiles quantiles);
 
     double gaussian_mean_mas_ = 0.0; // Gaussian shortcut: posterior mean and sd of the true parallax;
     double gaussian_sd_mas_ = 0.0;   // sd 0 = the grid below is used
-    std::array<double, kGridNodes> true_parallax_mas_{}; // grid, increasing
-    std::array<double, kGridNodes> cdf_in_parallax_{};   // P(t < grid value), increasing from 0 to 1
+    bool quantiles_tabulated_ = true;
+    float nearest_modulus_ = 0.0f;
+    float farthest_modulus_ = 0.0f;
+    // Written in full by the grid path and never read on the Gaussian shortcut, so not zeroed: that was
+    // 6.4 kB of stores for every shortcut star.
+    std::array<double, kGridNodes> true_parallax_mas_; // grid, increasing
+    std::array<double, kGridNodes> cdf_in_parallax_;   // P(t < grid value), increasing from 0 to 1
     std::array<float, kQuantileNodes> modulus_quantiles_{};
 };
 

@@ -58,8 +58,8 @@ bool misnamedByGrid(const photometry::CatalogRow& row, const photometry::Classif
 
 /// What the certainty test reads of one star.
 struct StarDrawInputs {
-    const float* quantiles; // [kQuantiles] distance modulus (mag)
-    const float* within;    // [radii] membership probabilities
+    float nearest_modulus_mag, farthest_modulus_mag; // the range of the distance draws
+    const float* within;                             // [radii] membership probabilities
     std::size_t radii;
     const photometry::Category* tabulated; // [kQuantiles], or nullptr
     photometry::Category fixed;            // or the drawn marker
@@ -91,10 +91,9 @@ certainCategory(const StarDrawInputs& star, const photometry::ClassGrid& grid, f
     }
     // Float rounding in the loop can move a value by a few ulps past these bounds: widen them.
     constexpr float kMarginMag = 1e-3f;
-    const auto [nearest, farthest] = std::minmax_element(star.quantiles, star.quantiles + kQuantiles);
     const float g_reach = star.g_error_mag * largest_deviate + kMarginMag;
-    const float magnitude_low = star.g_mag - g_reach - *farthest;
-    const float magnitude_high = star.g_mag + g_reach - *nearest;
+    const float magnitude_low = star.g_mag - g_reach - star.farthest_modulus_mag;
+    const float magnitude_high = star.g_mag + g_reach - star.nearest_modulus_mag;
     if (!std::isfinite(star.colour_mag)) {
         return grid.uniformMagnitudeOnlyCategory(magnitude_low, magnitude_high);
     }
@@ -134,7 +133,6 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
     block_tables_.resize((n + kBlockStars - 1) / kBlockStars);
     forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
         BlockTables& tables = block_tables_[begin / kBlockStars];
-        std::array<float, kQuantiles> quantiles;
         std::array<photometry::Category, kQuantiles> categories;
         for (std::size_t s = begin; s < end; ++s) {
             const photometry::CatalogRow& row = order.empty() ? rows[s] : rows[order[s]];
@@ -154,34 +152,43 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
             colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
             colour_error_mag_[s] =
                 quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
-            const DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership);
+            // The quantile table only where it is read: a star whose every draw is known keeps none.
+            DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership,
+                                        DistancePosterior::Quantiles::Deferred);
             float* within = &probability_within_[s * radii];
             for (std::size_t r = 0; r < radii; ++r) {
                 within[r] = static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
             }
-            std::copy(posterior.distanceModulusQuantiles().begin(),
-                      posterior.distanceModulusQuantiles().end(), quantiles.begin());
             const bool tabulated =
                 classifier != nullptr && fixed_categories_[s] == kDrawnCategory &&
                 (std::isnan(colour_mag_[s]) || misnamedByGrid(row, *classifier, grid, rules));
             if (tabulated) {
+                posterior.tabulateQuantiles();
+                // The row's bands as sample.fits uses them (photometricInput), at each distance.
+                photometry::PhotometricInput input = photometry::photometricInput(row);
                 for (std::size_t k = 0; k < kQuantiles; ++k) {
-                    // The row's bands as sample.fits uses them (photometricInput), at this distance.
-                    photometry::PhotometricInput input = photometry::photometricInput(row);
                     input.distance_modulus_mag = posterior.distanceModulusQuantiles()[k];
                     categories[k] = photometry::censusCategory(classifier->classify(input));
                 }
             }
             if (grid != nullptr) {
-                const StarDrawInputs star{
-                    quantiles.data(),     within,    radii,           tabulated ? categories.data() : nullptr,
-                    fixed_categories_[s], g_mag_[s], g_error_mag_[s], colour_mag_[s],
-                    colour_error_mag_[s]};
+                const StarDrawInputs star{posterior.nearestModulus(),
+                                          posterior.farthestModulus(),
+                                          within,
+                                          radii,
+                                          tabulated ? categories.data() : nullptr,
+                                          fixed_categories_[s],
+                                          g_mag_[s],
+                                          g_error_mag_[s],
+                                          colour_mag_[s],
+                                          colour_error_mag_[s]};
                 if (const auto category = certainCategory(star, *grid, largest_deviate)) {
                     certain_categories_[s] = *category;
                     continue; // every draw is known: no tables
                 }
             }
+            posterior.tabulateQuantiles();
+            const auto& quantiles = posterior.distanceModulusQuantiles();
             table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
             tables.quantiles.insert(tables.quantiles.end(), quantiles.begin(), quantiles.end());
             if (tabulated) {
@@ -352,9 +359,12 @@ class SampleDrawer {
                     return category == PreparedSample::kDrawnCategory ? std::nullopt
                                                                       : std::optional(category);
                 }
+                // Without a grid in the sample every star keeps its table.
+                const auto [nearest, farthest] =
+                    std::minmax_element(quantiles, quantiles + PreparedSample::kQuantiles);
                 return certainCategory(
-                    {quantiles, within, radii, tabulated, fixed, g, g_error, colour, colour_error}, classes_,
-                    normal_.largestMagnitude());
+                    {*nearest, *farthest, within, radii, tabulated, fixed, g, g_error, colour, colour_error},
+                    classes_, normal_.largestMagnitude());
             };
             if (const auto category = certain()) {
                 // Every draw gives this category, and each radius counts the star in every draw or in

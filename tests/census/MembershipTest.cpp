@@ -4,6 +4,7 @@
 
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 
@@ -94,5 +95,25 @@ TEST_CASE("the Gaussian shortcut for precise parallaxes agrees with the tabulate
                 }
             }
         }
+    }
+}
+
+TEST_CASE("a deferred quantile table is the tabulated one once filled, and its ends are known before") {
+    // Exact equality: both are the same arithmetic, done at construction or later. The ends are the
+    // table's extremes on both paths (the Gaussian shortcut at 1% error, the grid at 10%).
+    const MembershipSettings settings;
+    for (const double relative : {0.01, 0.1}) {
+        CAPTURE(relative);
+        const DistancePosterior tabulated(50.0, relative * 50.0, settings);
+        DistancePosterior deferred(50.0, relative * 50.0, settings, DistancePosterior::Quantiles::Deferred);
+        const auto& table = tabulated.distanceModulusQuantiles();
+        const auto [nearest, farthest] = std::minmax_element(table.begin(), table.end());
+        CHECK(deferred.nearestModulus() == *nearest);
+        CHECK(deferred.farthestModulus() == *farthest);
+        CHECK(deferred.probabilityWithin(20.0) == tabulated.probabilityWithin(20.0));
+        deferred.tabulateQuantiles();
+        CHECK(deferred.distanceModulusQuantiles() == table);
+        CHECK(deferred.nearestModulus() == table.front());
+        CHECK(deferred.farthestModulus() == table.back());
     }
 }
