@@ -4,7 +4,7 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
+#include <charconv>
 
 namespace starcensus::photometry {
 
@@ -66,10 +66,15 @@ StellarClass dwarfClassOfCode(double spectral_code) {
 std::string spectralTypeLabel(double spectral_code) {
     const double clamped = std::clamp(spectral_code, 0.0, 99.9);
     const int letter = static_cast<int>(clamped / 10.0);
+    // "%c%.1fV" by to_chars, which rounds as printf does without its format parsing (sample.fits writes
+    // one label per candidate).
     char buffer[16];
-    std::snprintf(buffer, sizeof buffer, "%c%.1fV", kDwarfLetters[static_cast<std::size_t>(letter)],
-                  clamped - 10.0 * letter);
-    return buffer;
+    buffer[0] = kDwarfLetters[static_cast<std::size_t>(letter)];
+    char* end = std::to_chars(buffer + 1, buffer + sizeof buffer - 1, clamped - 10.0 * letter,
+                              std::chars_format::fixed, 1)
+                    .ptr;
+    *end++ = 'V';
+    return std::string(buffer, end);
 }
 
 std::optional<double> parseSpectralType(std::string_view type) {

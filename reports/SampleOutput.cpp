@@ -236,7 +236,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
                 static_cast<float>(tallies.draws));
         }
         appendSystemMembership(block, c, systems, s);
-        if (block.rowCount() == kBlockRows) {
+        if ((s + 1) % kBlockRows == 0) {
             writer.append(block);
             block.clear();
         }
