@@ -3,8 +3,8 @@
 #include "photometry/SpectralType.h"
 
 #include <algorithm>
-#include <cmath>
 #include <charconv>
+#include <cmath>
 
 namespace starcensus::photometry {
 

@@ -6,6 +6,8 @@
 #include <fitsio.h>
 
 #include <algorithm>
+#include <bit>
+#include <cstring>
 #include <set>
 #include <stdexcept>
 
@@ -92,10 +94,63 @@ FitsColumnData emptyData(FitsColumnType type) {
     throw std::invalid_argument("unknown FITS column type");
 }
 
-// cfitsio wants non-const pointers even for data it only reads.
+// Bytes a value of the column takes in a row (FITS Standard 4.0, Table 18).
+std::size_t byteWidth(const FitsColumn& column) {
+    switch (column.type) {
+    case FitsColumnType::Float64:
+    case FitsColumnType::Int64:
+        return 8;
+    case FitsColumnType::Float32:
+    case FitsColumnType::Int32:
+        return 4;
+    case FitsColumnType::Int16:
+        return 2;
+    case FitsColumnType::UInt8:
+    case FitsColumnType::Logical:
+        return 1;
+    case FitsColumnType::String:
+        return static_cast<std::size_t>(column.string_width);
+    }
+    throw std::invalid_argument("unknown FITS column type");
+}
+
+// A number as the table stores it: big-endian IEEE 754 or two's complement (FITS Standard 4.0, 5.2 and 7.3).
 template <class T>
-void* writable(const std::vector<T>& values, std::size_t first) {
-    return const_cast<T*>(values.data() + first);
+void storeBigEndian(unsigned char* out, T value) {
+    static_assert(std::endian::native == std::endian::little || std::endian::native == std::endian::big);
+    unsigned char bytes[sizeof(T)];
+    std::memcpy(bytes, &value, sizeof(T));
+    if constexpr (std::endian::native == std::endian::little) {
+        std::reverse(bytes, bytes + sizeof(T));
+    }
+    std::memcpy(out, bytes, sizeof(T));
+}
+
+// One column's values [first, first + count) into rows of row_bytes bytes, at byte `offset` of each row.
+// Strings are cut at the width and padded with blanks, logicals are 'T' or 'F': what cfitsio's
+// fits_write_col writes (putcols.c, putcoll.c), so the files are the same byte for byte.
+void storeColumn(const FitsColumnData& data, const FitsColumn& column, std::size_t first, std::size_t count,
+                 unsigned char* rows, std::size_t row_bytes, std::size_t offset) {
+    std::visit(
+        [&](const auto& values) {
+            using T = typename std::decay_t<decltype(values)>::value_type;
+            unsigned char* out = rows + offset;
+            for (std::size_t r = first; r < first + count; ++r, out += row_bytes) {
+                if constexpr (std::is_same_v<T, bool>) {
+                    *out = values[r] ? 'T' : 'F';
+                } else if constexpr (std::is_same_v<T, std::string>) {
+                    const auto width = static_cast<std::size_t>(column.string_width);
+                    const std::size_t length = std::min(width, std::strlen(values[r].c_str()));
+                    std::memcpy(out, values[r].data(), length);
+                    std::memset(out + length, ' ', width - length);
+                } else if constexpr (std::is_same_v<T, std::uint8_t>) {
+                    *out = values[r];
+                } else {
+                    storeBigEndian(out, values[r]);
+                }
+            }
+        },
+        data);
 }
 
 } // namespace
@@ -131,7 +186,9 @@ struct FitsTableWriter::File {
     explicit File(const std::filesystem::path& path) : output(path) {}
     AtomicOutput output;
     fitsfile* fits = nullptr;
-    long rows_per_write = 1; // rows that fit cfitsio's buffers (fits_get_rowsize)
+    std::vector<std::size_t> offsets; // each column's first byte in a row
+    std::size_t row_bytes = 0;        // NAXIS1
+    std::vector<unsigned char> rows;  // rows being assembled for one write
 
     void close() {
         if (fits != nullptr) {
@@ -209,9 +266,11 @@ FitsTableWriter::FitsTableWriter(const std::filesystem::path& path, const std::s
     }
     // Refresh the HDU structure so the TNULLn keywords above take effect.
     fits_set_hdustruc(file_->fits, &status);
-    fits_get_rowsize(file_->fits, &file_->rows_per_write, &status);
     file_->check(status);
-    file_->rows_per_write = std::max(1L, file_->rows_per_write);
+    for (const FitsColumn& column : columns_) {
+        file_->offsets.push_back(file_->row_bytes);
+        file_->row_bytes += byteWidth(column);
+    }
 }
 
 FitsTableWriter::~FitsTableWriter() {
@@ -236,53 +295,20 @@ void FitsTableWriter::append(const FitsRowBlock& block) {
         }
     }
     const std::size_t rows = block.rowCount();
-    std::vector<char> logical;
-    std::vector<char*> strings;
-    // Column by column over slices that fit cfitsio's buffers: the access pattern its manual recommends
-    // ("Optimizing Programs": fits_get_rowsize) so each slice is assembled in memory once.
-    for (std::size_t first = 0; first < rows; first += static_cast<std::size_t>(file_->rows_per_write)) {
-        const std::size_t count = std::min(rows - first, static_cast<std::size_t>(file_->rows_per_write));
-        const LONGLONG first_row = rows_written_ + static_cast<LONGLONG>(first) + 1;
+    // Whole rows in the table's byte layout, ~1 MiB at a time, each written with one
+    // fits_write_tblbytes: one pass over the output, instead of cfitsio's strided pass per column.
+    const std::size_t row_bytes = file_->row_bytes;
+    const std::size_t rows_per_write = std::max<std::size_t>(1, (std::size_t{1} << 20) / row_bytes);
+    for (std::size_t first = 0; first < rows; first += rows_per_write) {
+        const std::size_t count = std::min(rows - first, rows_per_write);
+        file_->rows.resize(count * row_bytes);
         for (std::size_t c = 0; c < columns_.size(); ++c) {
-            int status = 0;
-            const int number = static_cast<int>(c + 1);
-            const auto n = static_cast<LONGLONG>(count);
-            fitsfile* fits = file_->fits;
-            std::visit(
-                [&](const auto& values) {
-                    using T = typename std::decay_t<decltype(values)>::value_type;
-                    if constexpr (std::is_same_v<T, double>) {
-                        fits_write_col(fits, TDOUBLE, number, first_row, 1, n, writable(values, first),
-                                       &status);
-                    } else if constexpr (std::is_same_v<T, float>) {
-                        fits_write_col(fits, TFLOAT, number, first_row, 1, n, writable(values, first),
-                                       &status);
-                    } else if constexpr (std::is_same_v<T, std::int64_t>) {
-                        fits_write_col(fits, TLONGLONG, number, first_row, 1, n, writable(values, first),
-                                       &status);
-                    } else if constexpr (std::is_same_v<T, std::int32_t>) {
-                        fits_write_col(fits, TINT, number, first_row, 1, n, writable(values, first), &status);
-                    } else if constexpr (std::is_same_v<T, std::int16_t>) {
-                        fits_write_col(fits, TSHORT, number, first_row, 1, n, writable(values, first),
-                                       &status);
-                    } else if constexpr (std::is_same_v<T, std::uint8_t>) {
-                        fits_write_col(fits, TBYTE, number, first_row, 1, n, writable(values, first),
-                                       &status);
-                    } else if constexpr (std::is_same_v<T, bool>) {
-                        logical.assign(values.begin() + static_cast<std::ptrdiff_t>(first),
-                                       values.begin() + static_cast<std::ptrdiff_t>(first + count));
-                        fits_write_col(fits, TLOGICAL, number, first_row, 1, n, logical.data(), &status);
-                    } else {
-                        strings.clear();
-                        for (std::size_t r = first; r < first + count; ++r) {
-                            strings.push_back(const_cast<char*>(values[r].c_str()));
-                        }
-                        fits_write_col(fits, TSTRING, number, first_row, 1, n, strings.data(), &status);
-                    }
-                },
-                data[c]);
-            file_->check(status, columns_[c].name);
+            storeColumn(data[c], columns_[c], first, count, file_->rows.data(), row_bytes, file_->offsets[c]);
         }
+        int status = 0;
+        fits_write_tblbytes(file_->fits, rows_written_ + static_cast<LONGLONG>(first) + 1, 1,
+                            static_cast<LONGLONG>(count * row_bytes), file_->rows.data(), &status);
+        file_->check(status);
     }
     rows_written_ += static_cast<std::int64_t>(rows);
 }
