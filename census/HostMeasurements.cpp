@@ -107,8 +107,9 @@ HostUncertainty teffMassUncertainty(const photometry::CatalogRow& row,
     std::vector<double> teff, mass;
     teff.reserve(realisations);
     mass.reserve(realisations);
+    // Each realisation sets the distance and the five perturbed bands; the other fields stay the row's.
+    photometry::PhotometricInput input = photometricInput(row);
     for (std::size_t k = 0; k < realisations; ++k) {
-        photometry::PhotometricInput input = photometricInput(row);
         input.distance_modulus_mag = posterior.distanceModulusAt(random.uniform());
         const std::uint64_t bits = random();
         input.g_mag = perturbed(row.g_mag, row.g_error_mag, normal(static_cast<std::uint32_t>(bits)));
