@@ -23,6 +23,7 @@ std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> 
                                         const photometry::Classifier& classifier,
                                         const CensusSettings& census, double faint_limit_g_mag) {
     std::vector<ClassifiedRow> classified;
+    classified.reserve(rows.size());
     const double zero_point = census.membership.parallax_zero_point_mas;
     const RowClassRules rules = rowClassRules(census);
     for (const auto& row : rows) {
@@ -37,6 +38,7 @@ std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> 
 std::vector<SampleStar> starsWithin(const std::vector<ClassifiedRow>& classified,
                                     const PreparedSample& sample, std::size_t r) {
     std::vector<SampleStar> stars;
+    stars.reserve(classified.size());
     for (std::size_t s = 0; s < classified.size(); ++s) {
         const ClassifiedRow& row = classified[s];
         const double weight = sample.probabilityWithin(s, r);

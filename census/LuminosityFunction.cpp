@@ -37,7 +37,11 @@ std::vector<LfBin> estimateLuminosityFunction(std::span<const SampleStar> stars,
     for (std::size_t p = 0; p < kLfPopulationNames.size(); ++p) {
         const auto population = static_cast<LfPopulation>(p);
         // Bin index = floor(M / width): per bin the summed weights and summed weight / V_max.
-        std::vector<std::pair<double, SampleStar>> members;
+        struct Member {
+            double v_max_pc3, abs_g_mag, weight;
+        };
+        std::vector<Member> members;
+        members.reserve(stars.size());
         double lowest = std::numeric_limits<double>::infinity();
         double highest = -lowest;
         for (const SampleStar& star : stars) {
@@ -48,7 +52,7 @@ std::vector<LfBin> estimateLuminosityFunction(std::span<const SampleStar> stars,
             }
             const double v_max = effectiveVolumePc3(star.abs_g_mag, radius_pc, limits);
             if (v_max > 0.0) {
-                members.emplace_back(v_max, star);
+                members.push_back({v_max, star.abs_g_mag, star.weight});
                 lowest = std::min(lowest, star.abs_g_mag);
                 highest = std::max(highest, star.abs_g_mag);
             }
@@ -60,11 +64,11 @@ std::vector<LfBin> estimateLuminosityFunction(std::span<const SampleStar> stars,
         const auto count =
             static_cast<std::size_t>(static_cast<long>(std::floor(highest / width)) - first + 1);
         std::vector<double> weights(count, 0.0), weighted_density(count, 0.0);
-        for (const auto& [v_max, star] : members) {
+        for (const Member& member : members) {
             const auto bin =
-                static_cast<std::size_t>(static_cast<long>(std::floor(star.abs_g_mag / width)) - first);
-            weights[bin] += star.weight;
-            weighted_density[bin] += star.weight / v_max;
+                static_cast<std::size_t>(static_cast<long>(std::floor(member.abs_g_mag / width)) - first);
+            weights[bin] += member.weight;
+            weighted_density[bin] += member.weight / member.v_max_pc3;
         }
         for (std::size_t b = 0; b < count; ++b) {
             LfBin bin;
