@@ -338,7 +338,7 @@ MergedCatalog mergeCatalogRows(std::vector<CatalogRow> rows, const CatalogMergeS
 
     // 1. The same source_id: one object, folded in argument order into its first row.
     // (source_id, row) pairs sorted as pairs: the rows of one source_id in argument order, as a stable sort
-    // by source_id alone gives, without reaching into the rows (280 bytes each) for every comparison.
+    // by source_id alone gives, without reaching into the rows (256 bytes each) for every comparison.
     std::vector<std::pair<std::int64_t, std::uint32_t>> by_source_id;
     for (std::uint32_t i = 0; i < rows.size(); ++i) {
         if (rows[i].source_id != photometry::kMissingSourceId) {
