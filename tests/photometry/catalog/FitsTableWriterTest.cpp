@@ -112,6 +112,36 @@ TEST_CASE("FITS binary table round trip through astropy: values, units, UCDs, de
     CHECK(columns[7]["values"][3] == "row3");
 }
 
+TEST_CASE("a block of many writes reads back whole through astropy, strings cut at their width") {
+    // Rows of this layout take 34 bytes, so the writer's ~1 MiB writes hold 30,840 rows: 70,000 rows in
+    // one block take three writes. Labels "row1000" and longer are cut to the column's 6 characters, as
+    // FITS fixed-width strings are (FITS Standard 4.0, 7.3.3.1).
+    ScratchDirectory scratch("starcensus-fits-writer-long");
+    const auto path = scratch.path() / "long.fits";
+    constexpr int kRows = 70000;
+    {
+        FitsTableWriter writer(path, "LONG", allTypeColumns());
+        FitsRowBlock block = writer.makeBlock();
+        fillRows(block, 0, kRows);
+        writer.append(block);
+        writer.finish();
+    }
+    const auto dump = nlohmann::json::parse(runReferencePython("dump_fits_table.py", path.string()));
+    REQUIRE(dump["rows"] == kRows);
+    const auto& columns = dump["columns"];
+    for (const int row : {0, 30839, 30840, 30841, 61680, kRows - 1}) {
+        CAPTURE(row);
+        const auto r = static_cast<std::size_t>(row);
+        if (row != 1) {
+            CHECK(columns[0]["values"][r] == 1000000000000LL + row);
+        }
+        CHECK(columns[2]["values"][r].get<double>() == 0.5 * row);
+        CHECK(columns[3]["values"][r] == -row * 1000);
+        CHECK(columns[6]["values"][r] == (row % 2 == 0));
+        CHECK(columns[7]["values"][r] == ("row" + std::to_string(row)).substr(0, 6));
+    }
+}
+
 TEST_CASE("FITS writer errors name the file, and leave nothing behind") {
     ScratchDirectory scratch("starcensus-fits-writer-errors");
     const auto missing_directory = scratch.path() / "no-such-directory" / "table.fits";
