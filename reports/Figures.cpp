@@ -252,9 +252,10 @@ class ChildRendering {
         while (waitpid(child, &status, 0) < 0 && errno == EINTR) {
         }
         if (!WIFEXITED(status) || WEXITSTATUS(status) != 0) {
-            throw InputError(
-                "cannot draw " + path_.string() + ": " +
-                (message.empty() ? std::string("its drawing process ended abnormally") : message));
+            // The child's own message names the file; a child that died without one is named here.
+            throw InputError(message.empty()
+                                 ? "cannot draw " + path_.string() + ": its drawing process ended abnormally"
+                                 : message);
         }
     }
 

@@ -153,6 +153,28 @@ TEST_CASE("the report of a demo run: every figure as SVG, PDF and PNG, and one s
     CHECK(report.uniformity.objects > 100);
 }
 
+TEST_CASE("a figure file the drawing process cannot write fails the report with its name, in one line") {
+    // The PNGs are drawn by a child process (Figures.cpp); its error must reach the caller. A directory
+    // in the PNG's place makes the child's rename onto it fail.
+    const testing::ScratchDirectory scratch("starcensus-report-child-error");
+    const auto directory = testing::copyOfDemoRun(scratch, "run");
+    std::filesystem::create_directories(directory / "figures" / "cmd.png" / "occupied");
+    std::string message;
+    try {
+        writeCensusReport(directory);
+    } catch (const InputError& error) {
+        message = error.what();
+    }
+    CHECK(message.find("cmd.png") != std::string::npos);
+    CHECK(message.find('\n') == std::string::npos);
+    CHECK_FALSE(std::filesystem::exists(directory / "report.html"));
+    // Nothing half-written: no temporary files left beside the figures.
+    for (const auto& entry : std::filesystem::directory_iterator(directory / "figures")) {
+        CAPTURE(entry.path());
+        CHECK(entry.path().filename().string().find(".partial-") == std::string::npos);
+    }
+}
+
 TEST_CASE("the report uses lumfunc.csv, lumfunc_fit.json, completeness.json and provenance.json") {
     const testing::ScratchDirectory scratch("starcensus-report-full");
     const auto directory = testing::copyOfDemoRun(scratch, "run");
