@@ -67,9 +67,8 @@ void appendSystemMembershipColumns(std::vector<photometry::FitsColumn>& columns,
              FitsColumnType::UInt8,
              "",
              "meta.code",
-             "bits: 1 RUWE above the limit, 2 above the binary band (likely unresolved), 4 a pair refused as "
-             "a "
-             "chance alignment, 8 literature components above the members",
+             "bits: 1 RUWE above the limit, 2 above the binary band (likely unresolved), 4 a pair refused "
+             "as a chance alignment, 8 literature components above the members",
              0,
              {}},
         });

@@ -143,8 +143,6 @@ void storeColumn(const FitsColumnData& data, const FitsColumn& column, std::size
                     const std::size_t length = std::min(width, std::strlen(values[r].c_str()));
                     std::memcpy(out, values[r].data(), length);
                     std::memset(out + length, ' ', width - length);
-                } else if constexpr (std::is_same_v<T, std::uint8_t>) {
-                    *out = values[r];
                 } else {
                     storeBigEndian(out, values[r]);
                 }
