@@ -49,8 +49,8 @@ bool measuresBetter(double value, double error, double current_value, double cur
 }
 
 struct Band {
-    double CatalogRow::*value;
-    double CatalogRow::*error;
+    photometry::RowMember value;
+    photometry::RowMember error;
 };
 constexpr std::array<Band, 11> kBands = {{{&CatalogRow::g_mag, &CatalogRow::g_error_mag},
                                           {&CatalogRow::bp_mag, &CatalogRow::bp_error_mag},
@@ -90,9 +90,10 @@ void absorb(CatalogRow& kept, double& kept_epoch_yr, const CatalogRow& other, do
         kept_epoch_yr = other_epoch_yr;
     }
     for (const Band& band : kBands) {
-        if (measuresBetter(other.*band.value, other.*band.error, kept.*band.value, kept.*band.error)) {
-            kept.*band.value = other.*band.value;
-            kept.*band.error = other.*band.error;
+        if (measuresBetter(band.value.get(other), band.error.get(other), band.value.get(kept),
+                           band.error.get(kept))) {
+            band.value.set(kept, band.value.get(other));
+            band.error.set(kept, band.error.get(other));
         }
     }
     if (literatureRank(other.literature_status) > literatureRank(kept.literature_status)) {

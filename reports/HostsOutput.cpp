@@ -96,7 +96,8 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
         const photometry::Classification result = census::classifyRow(row, classifier, rules);
         std::size_t c = 0;
         appendRowIdentity(block, c, row);
-        for (const double value : {row.g_mag, result.abs_g_mag, result.bp_rp_mag}) {
+        for (const double value :
+             std::initializer_list<double>{row.g_mag, result.abs_g_mag, result.bp_rp_mag}) {
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));

@@ -208,8 +208,9 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
             census::applySpectralTypePolicy(photometric, row, classifier, rules);
         std::size_t c = 0;
         appendRowIdentity(block, c, row);
-        for (const double value : {row.g_mag, row.bp_mag, row.rp_mag, result.abs_g_mag,
-                                   result.abs_g_error_mag, result.bp_rp_mag, result.g_rp_mag}) {
+        for (const double value :
+             std::initializer_list<double>{row.g_mag, row.bp_mag, row.rp_mag, result.abs_g_mag,
+                                           result.abs_g_error_mag, result.bp_rp_mag, result.g_rp_mag}) {
             block.values<float>(c++).push_back(static_cast<float>(value));
         }
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));

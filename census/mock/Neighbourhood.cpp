@@ -452,11 +452,12 @@ void MockGenerator::addCompanionRow(ObjectTruth& object, const Component& primar
         // Detection in W2 with the noise in flux, as for G (observeMagnitude), so sources far below the
         // limit cannot scatter in.
         const double true_w2 = abs.w2 + modulus;
-        row.w2_mag = observeMagnitude(true_w2, wiseErrorMag(true_w2, c.w2_limit_mag), random);
-        if (!(row.w2_mag <= c.w2_limit_mag)) {
+        const double w2_mag = observeMagnitude(true_w2, wiseErrorMag(true_w2, c.w2_limit_mag), random);
+        row.w2_mag = static_cast<float>(w2_mag); // the catalogue keeps it as a float
+        if (!(w2_mag <= c.w2_limit_mag)) {
             return; // not detected by the WISE-like survey
         }
-        row.w2_error_mag = wiseErrorMag(row.w2_mag, c.w2_limit_mag);
+        row.w2_error_mag = static_cast<float>(wiseErrorMag(w2_mag, c.w2_limit_mag));
         const double true_w1 = abs.w1 + modulus;
         if (true_w1 <= c.w1_limit_mag) { // fainter: an upper limit, listed as missing
             std::tie(row.w1_mag, row.w1_error_mag) =
@@ -469,7 +470,7 @@ void MockGenerator::addCompanionRow(ObjectTruth& object, const Component& primar
         std::tie(row.ks_mag, row.ks_error_mag) =
             twoMassObservation(abs.ks + modulus, c.followup_ks_limit_mag, random);
         parallax_error_mas = std::min(10.0, c.ultracool_parallax_error_mas *
-                                                std::pow(10.0, 0.2 * std::max(0.0, row.w2_mag - 13.0)));
+                                                std::pow(10.0, 0.2 * std::max(0.0, w2_mag - 13.0)));
         pm_error_mas_per_yr = parallax_error_mas;
         position_error_arcsec = c.ultracool_position_error_arcsec;
         if (random.uniform() < c.spectral_type_share) {

@@ -18,48 +18,81 @@ enum class LiteratureTypeStatus : std::uint8_t {
 inline constexpr std::int64_t kMissingSourceId = std::numeric_limits<std::int64_t>::min();
 inline constexpr double kMissing = std::numeric_limits<double>::quiet_NaN();
 
+inline constexpr float kMissingFloat = std::numeric_limits<float>::quiet_NaN();
+
+// Astrometry (position, parallax and its error, proper motion) and the Gaia band errors, which the readers
+// derive from flux-over-error ratios, are doubles. The magnitudes, their other errors, RUWE and the
+// literature fields are floats: the precision the archives publish them in (Gaia DR3, 2MASS and AllWISE
+// store them as 4-byte floats; 2^-24 relative, about 1 micro-mag at 16 mag, far below any photometric
+// error), so a float column is held exactly and a row takes 176 bytes instead of 256, on the census's
+// largest table (one row per candidate).
 struct CatalogRow {
     std::int64_t source_id = kMissingSourceId;
     double ra_deg = kMissing;
     double dec_deg = kMissing;
     double parallax_mas = kMissing;
-    double parallax_error_mas = kMissing;
     double pmra_mas_per_yr = kMissing;
     double pmdec_mas_per_yr = kMissing;
-    double g_mag = kMissing;  // Gaia G (Vega)
-    double bp_mag = kMissing; // Gaia G_BP
-    double rp_mag = kMissing; // Gaia G_RP
     double g_error_mag = kMissing;
     double bp_error_mag = kMissing;
     double rp_error_mag = kMissing;
-    double j_mag = kMissing;       // 2MASS J
-    double h_mag = kMissing;       // 2MASS H
-    double ks_mag = kMissing;      // 2MASS Ks
-    double ruwe = kMissing;        // renormalised unit weight error (dimensionless)
-    double j_error_mag = kMissing; // 2MASS J, H, Ks uncertainties (mag)
-    double h_error_mag = kMissing;
-    double ks_error_mag = kMissing;
-    double b_mag = kMissing;  // Johnson B (Vega)
-    double v_mag = kMissing;  // Johnson V (Vega)
-    double w1_mag = kMissing; // WISE W1, 3.4 um (Vega)
-    double w2_mag = kMissing; // WISE W2, 4.6 um (Vega)
-    double b_error_mag = kMissing;
-    double v_error_mag = kMissing;
-    double w1_error_mag = kMissing;
-    double w2_error_mag = kMissing;
+    double parallax_error_mas = kMissing; // doubles: quality cuts and --parallax-error-scale rescale it
+    float g_mag = kMissingFloat;          // Gaia G (Vega)
+    float bp_mag = kMissingFloat;         // Gaia G_BP
+    float rp_mag = kMissingFloat;         // Gaia G_RP
+    float j_mag = kMissingFloat;          // 2MASS J
+    float h_mag = kMissingFloat;          // 2MASS H
+    float ks_mag = kMissingFloat;         // 2MASS Ks
+    float ruwe = kMissingFloat;           // renormalised unit weight error (dimensionless)
+    float j_error_mag = kMissingFloat;    // 2MASS J, H, Ks uncertainties (mag)
+    float h_error_mag = kMissingFloat;
+    float ks_error_mag = kMissingFloat;
+    float b_mag = kMissingFloat;  // Johnson B (Vega)
+    float v_mag = kMissingFloat;  // Johnson V (Vega)
+    float w1_mag = kMissingFloat; // WISE W1, 3.4 um (Vega)
+    float w2_mag = kMissingFloat; // WISE W2, 4.6 um (Vega)
+    float b_error_mag = kMissingFloat;
+    float v_error_mag = kMissingFloat;
+    float w1_error_mag = kMissingFloat;
+    float w2_error_mag = kMissingFloat;
     // Components of the object's system in the catalogue's multiplicity column (components field; 1
     // single, 2 double, ...; dimensionless), NaN without one.
-    double literature_components = kMissing;
+    float literature_components = kMissingFloat;
     // The catalogue's spectral type (spectral_type field), parsed at read time by parseLiteratureType()
     // (photometry/SpectralType.h) so the row stays plain numbers. literature_code is the parser's spectral
-    // code (O0 = 0 ... M0 = 60 ... Y0 = 90; dimensionless), NaN when absent or refused, without a subtype
-    // ("M V"), and for white dwarfs; literature_class is Unclassified unless Parsed, Evolved for luminosity
-    // classes I-IV (a range such as "G8IV-V" is read as V), otherwise the type's letter or WD.
-    double literature_code = kMissing;
+    // code (O0 = 0 ... M0 = 60 ... Y0 = 90, in steps of at least 0.1 that a float holds to 1e-5;
+    // dimensionless), NaN when absent or refused, without a subtype ("M V"), and for white dwarfs;
+    // literature_class is Unclassified unless Parsed, Evolved for luminosity classes I-IV (a range such as
+    // "G8IV-V" is read as V), otherwise the type's letter or WD.
+    float literature_code = kMissingFloat;
+    std::uint32_t file_index = 0; // which input file the row came from
     StellarClass literature_class = StellarClass::Unclassified;
     LiteratureTypeStatus literature_status = LiteratureTypeStatus::Absent;
-    std::uint32_t file_index = 0; // which input file the row came from
-    std::int64_t row_index = 0;   // 0-based row within that file's table
+    std::int64_t row_index = 0; // 0-based row within that file's table
+};
+
+/// A floating-point member of CatalogRow, of either width, read and written as a double (a float member
+/// stores the nearest float). Empty for the fields that are not numbers (source_id, spectral_type).
+class RowMember {
+  public:
+    constexpr RowMember() = default;
+    constexpr RowMember(double CatalogRow::*member) : wide_(member) {}
+    constexpr RowMember(float CatalogRow::*member) : narrow_(member) {}
+
+    constexpr explicit operator bool() const { return wide_ != nullptr || narrow_ != nullptr; }
+    constexpr bool isFloat() const { return narrow_ != nullptr; }
+    double get(const CatalogRow& row) const { return wide_ != nullptr ? row.*wide_ : row.*narrow_; }
+    void set(CatalogRow& row, double value) const {
+        if (wide_ != nullptr) {
+            row.*wide_ = value;
+        } else {
+            row.*narrow_ = static_cast<float>(value);
+        }
+    }
+
+  private:
+    double CatalogRow::*wide_ = nullptr;
+    float CatalogRow::*narrow_ = nullptr;
 };
 
 } // namespace starcensus::photometry

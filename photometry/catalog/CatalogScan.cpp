@@ -46,9 +46,9 @@ bool endsWithAnyIgnoringCase(std::string_view path, std::initializer_list<std::s
     });
 }
 
-double CatalogRow::*rowMember(CatalogField field) {
-    static constexpr std::array<double CatalogRow::*, kCatalogFieldCount> members = {
-        nullptr,
+RowMember rowMember(CatalogField field) {
+    static constexpr std::array<RowMember, kCatalogFieldCount> members = {
+        RowMember(),
         &CatalogRow::ra_deg,
         &CatalogRow::dec_deg,
         &CatalogRow::parallax_mas,
@@ -77,7 +77,7 @@ double CatalogRow::*rowMember(CatalogField field) {
         &CatalogRow::w1_error_mag,
         &CatalogRow::w2_error_mag,
         &CatalogRow::literature_components,
-        nullptr,
+        RowMember(),
     };
     return members[static_cast<std::size_t>(field)];
 }
@@ -132,7 +132,7 @@ void ScanAccumulator::countNulls(const CatalogRow& row) {
         ++report.null_counts[static_cast<std::size_t>(CatalogField::SpectralType)];
     }
     for (const auto& mapped : mapped_doubles_) {
-        if (std::isnan(row.*mapped.member)) {
+        if (std::isnan(mapped.member.get(row))) {
             ++report.null_counts[mapped.index];
         }
     }

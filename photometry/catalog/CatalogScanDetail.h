@@ -46,8 +46,8 @@ std::optional<T> parseCellNumber(std::string_view text) {
 /// True when `path` ends in one of `suffixes`, compared without case (how readers claim their files).
 bool endsWithAnyIgnoringCase(std::string_view path, std::initializer_list<std::string_view> suffixes);
 
-/// The CatalogRow member of a floating-point field; nullptr for source_id and spectral_type.
-double CatalogRow::*rowMember(CatalogField field);
+/// The CatalogRow member of a floating-point field; empty for source_id and spectral_type.
+RowMember rowMember(CatalogField field);
 
 /// Fills the row's literature_* members from a spectral_type string as stored (surrounding blanks
 /// ignored): Absent for a blank marker, Refused for a string the parser does not read, else Parsed.
@@ -108,7 +108,7 @@ class ScanAccumulator {
   private:
     struct MappedField {
         std::size_t index;
-        double CatalogRow::*member;
+        RowMember member;
     };
     FileScanResult& result_;
     std::vector<MappedField> mapped_doubles_;

@@ -307,7 +307,7 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
                 fail(field, text);
             }
             const double stored = field.single_precision ? static_cast<float>(*value) : *value;
-            row.*rowMember(field.column->field) = canonicalValue(*field.column, stored);
+            rowMember(field.column->field).set(row, canonicalValue(*field.column, stored));
         }
         accumulator.add(row);
         if (settings.progress != nullptr && report.rows % 65536 == 0) {

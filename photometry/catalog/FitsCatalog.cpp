@@ -988,7 +988,7 @@ enum class NullTest : std::uint8_t {
 struct MappedField {
     FieldDecoder decoder;
     const ResolvedColumn* column;
-    double CatalogRow::*member;
+    RowMember member;
     std::size_t field_index;
     NullTest null_test = NullTest::Decode;
 
@@ -1173,7 +1173,7 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
                     row.source_id = plan.source_id->identifier(at);
                 }
                 for (const MappedField& field : plan.fields) {
-                    row.*field.member = field.value(at);
+                    field.member.set(row, field.value(at));
                 }
                 if (plan.spectral_type) {
                     detail::setLiteratureType(row, plan.spectral_type->text(at));

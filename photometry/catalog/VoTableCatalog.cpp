@@ -576,7 +576,7 @@ FileScanResult scanVoTableFile(const std::string& path, std::uint32_t file_index
                 row.source_id = *cell.integer;
                 continue;
             }
-            row.*rowMember(column->field) = canonicalValue(*column, cell.number);
+            rowMember(column->field).set(row, canonicalValue(*column, cell.number));
         }
         accumulator->add(row);
     };

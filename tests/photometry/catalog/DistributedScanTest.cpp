@@ -57,7 +57,7 @@ bool sameRows(const std::vector<CatalogRow>& a, const std::vector<CatalogRow>& b
     for (std::size_t i = 0; i < a.size(); ++i) {
         for (std::size_t field = 0; field < kCatalogFieldCount; ++field) {
             const auto member = detail::rowMember(static_cast<CatalogField>(field));
-            if (member != nullptr && !sameBits(a[i].*member, b[i].*member)) {
+            if (member && !sameBits(member.get(a[i]), member.get(b[i]))) {
                 return false;
             }
         }

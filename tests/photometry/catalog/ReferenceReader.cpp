@@ -88,7 +88,7 @@ std::vector<CatalogRow> readCatalogReference(const photometry::FileScanReport& r
         check(status, "reading " + resolved->column_name);
         const auto member = photometry::detail::rowMember(resolved->field);
         for (std::size_t i = 0; i < result.size(); ++i) {
-            result[i].*member = photometry::canonicalValue(*resolved, values[i]);
+            member.set(result[i], photometry::canonicalValue(*resolved, values[i]));
         }
     }
     fits_close_file(file, &status);
@@ -117,9 +117,9 @@ void checkSameRows(const std::vector<CatalogRow>& actual, const std::vector<Cata
         const CatalogRow& b = expected[i];
         bool same = a.source_id == b.source_id && a.file_index == b.file_index && a.row_index == b.row_index;
         for (std::size_t f = 0; f < photometry::kCatalogFieldCount; ++f) {
-            // source_id and spectral_type have no double member; they are compared above and below.
+            // source_id and spectral_type have no number member; they are compared above and below.
             if (const auto member = photometry::detail::rowMember(static_cast<CatalogField>(f))) {
-                same = same && sameValue(a.*member, b.*member);
+                same = same && sameValue(member.get(a), member.get(b));
             }
         }
         same = same && a.literature_status == b.literature_status &&
