@@ -165,11 +165,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
             if (tabulated) {
                 posterior.tabulateQuantiles();
                 // The row's bands as sample.fits uses them (photometricInput), at each distance.
-                photometry::PhotometricInput input = photometry::photometricInput(row);
-                for (std::size_t k = 0; k < kQuantiles; ++k) {
-                    input.distance_modulus_mag = posterior.distanceModulusQuantiles()[k];
-                    categories[k] = photometry::censusCategory(classifier->classify(input));
-                }
+                classifier->censusCategoriesAt(photometry::photometricInput(row),
+                                               posterior.distanceModulusQuantiles(), categories);
             }
             if (grid != nullptr) {
                 const StarDrawInputs star{posterior.nearestModulus(),

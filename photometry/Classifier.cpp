@@ -98,7 +98,7 @@ const Classifier& Classifier::shipped() {
     return classifier;
 }
 
-Classification Classifier::classify(const PhotometricInput& input) const {
+Classifier::PlacedPhotometry Classifier::place(const PhotometricInput& input) const {
     double modulus = input.distance_modulus_mag;
     double modulus_error = 0.0;
     std::uint16_t flags = 0;
@@ -132,10 +132,33 @@ Classification Classifier::classify(const PhotometricInput& input) const {
     set(MatchBand::W1, input.w1_mag, input.w1_error_mag);
     set(MatchBand::W2, input.w2_mag, input.w2_error_mag);
     bands.modulus_error_mag = std::isnan(modulus_error) ? 0.0 : modulus_error;
-    Classification result = classifyAbsolute(photometry);
-    result.abs_g_error_mag = std::isnan(result.abs_g_mag) ? kNaN : modulus_error;
-    result.flags |= flags;
+    return {photometry, modulus_error, flags};
+}
+
+Classification Classifier::classify(const PhotometricInput& input) const {
+    const PlacedPhotometry placed = place(input);
+    Classification result = classifyAbsolute(placed.photometry);
+    result.abs_g_error_mag = std::isnan(result.abs_g_mag) ? kNaN : placed.modulus_error_mag;
+    result.flags |= placed.flags;
     return result;
+}
+
+void Classifier::censusCategoriesAt(PhotometricInput input, std::span<const float> moduli,
+                                    std::span<Category> categories) const {
+    // At modulus 0 the "absolute" magnitudes are the apparent ones, so each distance's are apparent -
+    // modulus, computed as place() computes them; a given modulus carries no error and no S/N flag.
+    input.distance_modulus_mag = 0.0;
+    const PlacedPhotometry apparent = place(input);
+    for (std::size_t k = 0; k < moduli.size(); ++k) {
+        AbsolutePhotometry photometry = apparent.photometry;
+        photometry.abs_g_mag -= moduli[k];
+        for (double& abs_mag : photometry.bands.abs_mag) {
+            abs_mag -= moduli[k];
+        }
+        Classification result = classOf(photometry);
+        result.flags |= apparent.flags;
+        categories[k] = censusCategory(result);
+    }
 }
 
 Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, double g_rp_mag,

@@ -43,6 +43,7 @@
 #include <cmath>
 #include <cstdint>
 #include <limits>
+#include <span>
 #include <vector>
 
 namespace starcensus::photometry {
@@ -207,6 +208,11 @@ class Classifier {
 
     /// From apparent magnitudes and a distance (modulus or parallax).
     Classification classify(const PhotometricInput& input) const;
+    /// categories[k] = censusCategory(classify(input)) with input.distance_modulus_mag = moduli[k] (mag): one
+    /// star's category at many distances, without the Teff, mass and white-dwarf parameters the category
+    /// does not depend on, and with the input's bands gathered once. moduli and categories have one size.
+    void censusCategoriesAt(PhotometricInput input, std::span<const float> moduli,
+                            std::span<Category> categories) const;
     /// From absolute magnitudes and colours (any may be NaN).
     Classification classifyAbsolute(const AbsolutePhotometry& photometry) const;
     /// The same from absolute M_G, colours, near and mid infrared, Johnson M_V and V-Ks: M_Ks is
@@ -220,6 +226,14 @@ class Classifier {
 
   private:
     static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+    /// An input's absolute photometry at its distance, the modulus error (mag) and the flags of the
+    /// distance and the bands (LowParallaxSnr, NoUsableBand).
+    struct PlacedPhotometry {
+        AbsolutePhotometry photometry;
+        double modulus_error_mag = 0.0;
+        std::uint16_t flags = 0;
+    };
+    PlacedPhotometry place(const PhotometricInput& input) const;
     /// Class, subtype code and flags; Teff and mass are added by classifyAbsolute().
     Classification classOf(const AbsolutePhotometry& photometry) const;
     /// Step 6 applies: no BP-RP, G absent or a Johnson band present, and bands for a match.

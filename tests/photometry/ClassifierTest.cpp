@@ -6,6 +6,7 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <fstream>
 #include <map>
@@ -524,4 +525,61 @@ TEST_CASE("ultracool dwarfs of Best et al. 2021 classify from the bands each row
     // of this sheet that are not Y stay T; a tenth is allowed for the T9.5/Y0 boundary (chosen here).
     CHECK(late_t > 80);
     CHECK(late_t_as_y <= 0.1 * late_t);
+}
+
+TEST_CASE("a star's categories at many distances are those of its whole classification at each") {
+    // censusCategoriesAt() gathers the bands once and skips the Teff, mass and white-dwarf parameters; the
+    // categories must not move. Inputs over every path: Gaia colours or none, the near and mid infrared,
+    // Johnson B/V for the band match, white dwarfs (blue and faint), and bands too few to classify; each at
+    // eight distance moduli from -2 to 12 mag.
+    const Classifier& classifier = Classifier::shipped();
+    std::mt19937_64 random(12);
+    std::uniform_real_distribution<double> uniform(0.0, 1.0);
+    const auto maybe = [&](double value, double present) { return uniform(random) < present ? value : kNaN; };
+    std::map<Category, int> seen;
+    int mismatches = 0;
+    std::array<float, 8> moduli;
+    std::array<Category, 8> categories;
+    for (int i = 0; i < 50000; ++i) {
+        PhotometricInput input;
+        const double abs_g = -2.0 + 24.0 * uniform(random);
+        const double bp_rp = -0.5 + 5.5 * uniform(random);
+        const double modulus = -2.0 + 10.0 * uniform(random);
+        input.g_mag = maybe(abs_g + modulus, 0.9);
+        input.bp_mag = maybe(input.g_mag + 0.4 * bp_rp, 0.7);
+        input.rp_mag = maybe(input.g_mag - 0.6 * bp_rp, 0.8);
+        const double j = input.g_mag - (0.5 + 1.2 * bp_rp + 2.0 * uniform(random));
+        input.j_mag = maybe(std::isnan(j) ? abs_g + modulus - 3.0 : j, 0.6);
+        input.j_error_mag = 0.03;
+        input.h_mag = maybe(input.j_mag - 0.5 * uniform(random), 0.5);
+        input.h_error_mag = 0.03;
+        input.ks_mag = maybe(input.j_mag - 1.5 * uniform(random), 0.6);
+        input.ks_error_mag = 0.03;
+        input.w1_mag = maybe(abs_g + modulus - 4.0 - 3.0 * uniform(random), 0.3);
+        input.w1_error_mag = 0.05;
+        input.w2_mag = maybe(input.w1_mag - 2.0 * uniform(random), 0.8);
+        input.w2_error_mag = 0.05;
+        input.v_mag = maybe(abs_g + modulus + 0.3 * bp_rp, 0.15);
+        input.v_error_mag = 0.02;
+        input.b_mag = maybe(input.v_mag + 0.5 * bp_rp, 0.5);
+        input.b_error_mag = 0.02;
+        for (std::size_t k = 0; k < moduli.size(); ++k) {
+            moduli[k] = static_cast<float>(modulus - 4.0 + 1.2 * static_cast<double>(k) + 0.3 * uniform(random));
+        }
+        classifier.censusCategoriesAt(input, moduli, categories);
+        for (std::size_t k = 0; k < moduli.size(); ++k) {
+            PhotometricInput at = input;
+            at.distance_modulus_mag = moduli[k];
+            const Category whole = censusCategory(classifier.classify(at));
+            ++seen[whole];
+            if (categories[k] != whole && ++mismatches <= 5) {
+                FAIL_CHECK("input " << i << " modulus " << moduli[k] << ": category " << int(categories[k])
+                                    << ", whole classification " << int(whole));
+            }
+        }
+    }
+    CHECK(mismatches == 0);
+    // The inputs reach the classes and the unclassified reasons: at least 30 categories, white dwarfs among them.
+    CHECK(seen.size() >= 30);
+    CHECK(seen.count(categoryOf(StellarClass::WhiteDwarf, 0.0)) == 1);
 }
