@@ -10,6 +10,8 @@
 #include <numeric>
 #include <optional>
 #include <stdexcept>
+#include <string>
+#include <type_traits>
 
 namespace starcensus::census {
 
@@ -115,8 +117,9 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier,
                                const photometry::ClassGrid* grid)
-    : radii_pc_(std::move(radii_pc)), stream_rows_(order.begin(), order.end()), grid_(grid) {
-    const std::size_t n = order.empty() ? rows.size() : order.size();
+    : stars_(order.empty() ? rows.size() : order.size()), radii_pc_(std::move(radii_pc)),
+      stream_rows_(order.begin(), order.end()), grid_(grid) {
+    const std::size_t n = stars_;
     const std::size_t radii = radii_pc_.size();
     g_mag_.resize(n);
     g_error_mag_.resize(n);
@@ -200,7 +203,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
 }
 
 PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order)
-    : radii_pc_(source.radii_pc_), grid_(source.grid_) {
+    : stars_(order.size()), radii_pc_(source.radii_pc_), grid_(source.grid_) {
+    source.requireDrawTables("selecting stars from a PreparedSample");
     const std::size_t n = order.size();
     const std::size_t radii = radii_pc_.size();
     const auto select = [&](const auto& from, auto& to) {
@@ -260,6 +264,56 @@ std::uint32_t DrawTallies::classCount(int draw, std::size_t r, photometry::Stell
     return total;
 }
 
+void PreparedSample::releaseDrawTables() {
+    const auto release = [](auto& vector) { std::remove_reference_t<decltype(vector)>().swap(vector); };
+    release(g_mag_);
+    release(g_error_mag_);
+    release(colour_mag_);
+    release(colour_error_mag_);
+    release(stream_rows_);
+    release(block_tables_);
+    release(table_row_);
+    release(tabulated_row_);
+    release(fixed_categories_);
+    release(certain_categories_);
+    draw_tables_released_ = true;
+}
+
+void PreparedSample::requireDrawTables(const char* what) const {
+    if (draw_tables_released_) {
+        throw std::logic_error(std::string(what) + ": its draw tables were released");
+    }
+}
+
+StarClassCounts::StarClassCounts(std::size_t stars, int draws) {
+    if (draws <= std::numeric_limits<std::uint16_t>::max()) {
+        narrow_.assign(stars * photometry::kClassCount, 0);
+    } else {
+        wide_.assign(stars * photometry::kClassCount, 0);
+    }
+}
+
+void StarClassCounts::set(std::size_t star,
+                          const std::array<std::uint32_t, photometry::kClassCount>& counts) {
+    const auto at = static_cast<std::ptrdiff_t>(star * photometry::kClassCount);
+    if (narrow_.empty()) {
+        std::copy(counts.begin(), counts.end(), wide_.begin() + at);
+    } else {
+        // Each count is at most the number of draws, which the constructor saw fits.
+        std::transform(counts.begin(), counts.end(), narrow_.begin() + at,
+                       [](std::uint32_t count) { return static_cast<std::uint16_t>(count); });
+    }
+}
+
+void StarClassCounts::append(const StarClassCounts& more) {
+    if (empty()) {
+        *this = more;
+        return;
+    }
+    narrow_.insert(narrow_.end(), more.narrow_.begin(), more.narrow_.end());
+    wide_.insert(wide_.end(), more.wide_.begin(), more.wide_.end());
+}
+
 double PreparedSample::expectedCount(std::size_t r) const {
     double sum = 0.0;
     for (std::size_t s = 0; s < size(); ++s) {
@@ -273,7 +327,9 @@ class SampleDrawer {
   public:
     SampleDrawer(const PreparedSample& sample, const photometry::ClassGrid& classes,
                  const DrawSettings& settings, std::size_t begin, std::size_t end)
-        : sample_(sample), classes_(classes), settings_(settings), begin_(begin), end_(end) {}
+        : sample_(sample), classes_(classes), settings_(settings), begin_(begin), end_(end) {
+        sample.requireDrawTables("drawSample");
+    }
 
     DrawTallies run() const {
         const unsigned threads = resolveThreadCount(settings_.threads);
@@ -290,7 +346,7 @@ class SampleDrawer {
         tallies.radii = radii;
         const std::size_t stars = end_ - begin_;
         if (settings_.per_star_classes) {
-            tallies.star_classes.assign(stars * photometry::kClassCount, 0);
+            tallies.star_classes = StarClassCounts(stars, settings_.draws);
         }
         if (settings_.progress != nullptr) {
             settings_.progress->items_total = static_cast<std::int64_t>(stars) * settings_.draws;
@@ -322,8 +378,7 @@ class SampleDrawer {
 
   private:
     void drawBlock(std::size_t begin, std::size_t end, std::vector<std::uint32_t>& counts,
-                   std::vector<std::uint32_t>& certain_counts,
-                   std::vector<std::uint32_t>& star_classes) const {
+                   std::vector<std::uint32_t>& certain_counts, StarClassCounts& star_classes) const {
         const std::size_t radii = sample_.radii_pc_.size();
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
         for (std::size_t s = begin; s < end; ++s) {
@@ -410,11 +465,9 @@ class SampleDrawer {
 
     /// Star s's class frequencies into star_classes, unless the settings ask for none.
     void keepClasses(std::size_t s, const std::array<std::uint32_t, photometry::kClassCount>& classes_seen,
-                     std::vector<std::uint32_t>& star_classes) const {
+                     StarClassCounts& star_classes) const {
         if (settings_.per_star_classes) {
-            std::copy(classes_seen.begin(), classes_seen.end(),
-                      star_classes.begin() +
-                          static_cast<std::ptrdiff_t>((s - begin_) * photometry::kClassCount));
+            star_classes.set(s - begin_, classes_seen);
         }
     }
 
@@ -441,7 +494,7 @@ DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid
 void appendTallies(DrawTallies& into, const DrawTallies& more) {
     std::transform(into.counts.begin(), into.counts.end(), more.counts.begin(), into.counts.begin(),
                    std::plus<>());
-    into.star_classes.insert(into.star_classes.end(), more.star_classes.begin(), more.star_classes.end());
+    into.star_classes.append(more.star_classes);
 }
 
 } // namespace starcensus::census

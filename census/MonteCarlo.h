@@ -17,6 +17,7 @@
 #include "photometry/base/Progress.h"
 #include "photometry/catalog/CatalogRow.h"
 
+#include <array>
 #include <cstdint>
 #include <span>
 #include <vector>
@@ -74,7 +75,7 @@ class PreparedSample {
     /// draws from its stream in source, so its draws are the ones it has there.
     PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order);
 
-    std::size_t size() const { return g_mag_.size(); }
+    std::size_t size() const { return stars_; }
     const std::vector<double>& radii() const { return radii_pc_; }
     /// P(d < radii()[r]) of star s.
     float probabilityWithin(std::size_t s, std::size_t r) const {
@@ -84,10 +85,17 @@ class PreparedSample {
     double expectedCount(std::size_t r) const;
     /// The grid given to the constructor (nullptr without one).
     const photometry::ClassGrid* grid() const { return grid_; }
+    /// Frees what only the draws read (photometry, quantile and category tables: about 100 bytes a star in
+    /// a 100 pc sample), keeping size(), radii(), probabilityWithin() and expectedCount(). For after the
+    /// last drawSample(); drawing this sample again, or selecting from it, throws std::logic_error.
+    void releaseDrawTables();
 
   private:
     friend class SampleDrawer;
     static constexpr std::uint32_t kNoRow = 0xffffffffu;
+    void requireDrawTables(const char* what) const;
+    std::size_t stars_ = 0;
+    bool draw_tables_released_ = false;
     std::vector<double> radii_pc_;
     std::vector<float> g_mag_;
     std::vector<float> g_error_mag_;
@@ -119,6 +127,30 @@ class PreparedSample {
     const photometry::ClassGrid* grid_ = nullptr;
 };
 
+/// Per star and class, the draws that gave the star that class: 16-bit counters while the draws fit in them
+/// (at most 65,535 draws: 26 bytes a star), 32-bit beyond.
+class StarClassCounts {
+  public:
+    StarClassCounts() = default;
+    /// Zeros for `stars` stars of `draws` draws each.
+    StarClassCounts(std::size_t stars, int draws);
+
+    bool empty() const { return narrow_.empty() && wide_.empty(); }
+    std::uint32_t draws(std::size_t star, photometry::StellarClass c) const {
+        const std::size_t at = star * photometry::kClassCount + static_cast<std::size_t>(c);
+        return narrow_.empty() ? wide_[at] : narrow_[at];
+    }
+    /// Star `star`'s counters, one per class in StellarClass order.
+    void set(std::size_t star, const std::array<std::uint32_t, photometry::kClassCount>& counts);
+    /// The stars of `more` (as many draws) after these.
+    void append(const StarClassCounts& more);
+    bool operator==(const StarClassCounts&) const = default;
+
+  private:
+    std::vector<std::uint16_t> narrow_;
+    std::vector<std::uint32_t> wide_;
+};
+
 /// Member counts per radius, census category and draw, and per-star class frequencies.
 struct DrawTallies {
     int draws = 0;
@@ -126,8 +158,9 @@ struct DrawTallies {
     // [(r * kCategoryCount + category) * draws + draw]: draw-fastest, so a star whose category is stable
     // across draws walks memory sequentially.
     std::vector<std::uint32_t> counts;
-    // [star * kClassCount + class]: draws with that class; empty with DrawSettings::per_star_classes false
-    std::vector<std::uint32_t> star_classes;
+    // Per star (those drawn) and class, the draws with that class; empty with
+    // DrawSettings::per_star_classes false
+    StarClassCounts star_classes;
 
     std::uint32_t count(int draw, std::size_t r, photometry::Category category) const {
         return counts[(r * photometry::kCategoryCount + category) * static_cast<std::size_t>(draws) +

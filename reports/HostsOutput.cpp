@@ -108,8 +108,7 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
         }
         block.values<float>(c++).push_back(sample.probabilityWithin(hosts[h], r));
         block.values<float>(c++).push_back(
-            static_cast<float>(tallies.star_classes[hosts[h] * photometry::kClassCount +
-                                                    static_cast<std::size_t>(result.stellar_class)]) /
+            static_cast<float>(tallies.star_classes.draws(hosts[h], result.stellar_class)) /
             static_cast<float>(tallies.draws));
         appendSystemMembership(block, c, systems, hosts[h]);
     }

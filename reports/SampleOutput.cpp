@@ -233,7 +233,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
         }
         for (std::size_t k = 0; k < photometry::kClassCount; ++k) {
             block.values<float>(c++).push_back(
-                static_cast<float>(tallies.star_classes[s * photometry::kClassCount + k]) /
+                static_cast<float>(tallies.star_classes.draws(s, static_cast<photometry::StellarClass>(k))) /
                 static_cast<float>(tallies.draws));
         }
         appendSystemMembership(block, c, systems, s);

@@ -124,8 +124,9 @@ TEST_CASE("a sample prepared with its grid (no tables for the certain stars) dra
     }
     for (std::size_t k = 0; k < order.size(); ++k) {
         for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
-            REQUIRE(from_selected.star_classes[k * photometry::kClassCount + c] ==
-                    expected.star_classes[order[k] * photometry::kClassCount + c]);
+            const auto stellar_class = static_cast<StellarClass>(c);
+            REQUIRE(from_selected.star_classes.draws(k, stellar_class) ==
+                    expected.star_classes.draws(order[k], stellar_class));
         }
     }
     // Another grid than the one the sample was prepared with is refused.
@@ -209,8 +210,7 @@ TEST_CASE("stars whose draws cannot differ are tallied in every draw; stars on a
         star1_k_within_20 += static_cast<int>(tallies.count(d, 1, k));
         star1_within_20 += static_cast<int>(tallies.count(d, 1, k) + tallies.count(d, 1, m)) - 1;
     }
-    CHECK(tallies.star_classes[static_cast<std::size_t>(StellarClass::M)] ==
-          static_cast<std::uint32_t>(draws));
+    CHECK(tallies.star_classes.draws(0, StellarClass::M) == static_cast<std::uint32_t>(draws));
     // Star 1: about half its draws within 20 pc (binomial, 400 draws: 0.5 +- 0.025; allow 5 sigma), some
     // of them K and some M.
     const auto share = [&](int n) { return static_cast<double>(n) / draws; };
@@ -244,8 +244,7 @@ TEST_CASE("objects without Gaia photometry are drawn with the class sample.fits 
         const photometry::Classification exact = census::classifyRow(rows[i], classifier, {});
         CAPTURE(i);
         CHECK(exact.stellar_class == (i == 0 ? StellarClass::T : StellarClass::L));
-        const std::uint32_t same_class =
-            tallies.star_classes[i * photometry::kClassCount + static_cast<std::size_t>(exact.stellar_class)];
+        const std::uint32_t same_class = tallies.star_classes.draws(i, exact.stellar_class);
         CHECK(same_class >= 100u); // probability of the sample.fits class at least 0.5
     }
     // Both are members in every draw, counted in their own class.
@@ -277,8 +276,7 @@ TEST_CASE("with a parallax S/N above 20, the Monte Carlo gives each object its s
         }
         ++checked;
         const auto exact = census::classifyRow(row, classifier, rules);
-        const std::uint32_t same =
-            tallies.star_classes[s * photometry::kClassCount + static_cast<std::size_t>(exact.stellar_class)];
+        const std::uint32_t same = tallies.star_classes.draws(s, exact.stellar_class);
         // At least half, less the binomial noise of 200 draws for an object exactly on a boundary (true
         // share 0.5, standard deviation 0.035): 0.4 is 2.8 sigma.
         if (same < static_cast<std::uint32_t>(0.4 * kDraws)) {
@@ -289,4 +287,52 @@ TEST_CASE("with a parallax S/N above 20, the Monte Carlo gives each object its s
     }
     CHECK(checked > 1000);
     CHECK(below_half == 0);
+}
+
+TEST_CASE("per-star class counts hold 65,535 draws in 16 bits and more in 32") {
+    // Each star draws from its own stream, so 65,536 draws repeat the 65,535 and add one: per star, the
+    // class counts of the two runs differ by exactly one draw, and each run's counts sum to its draws (a
+    // 16-bit counter would wrap at 65,536).
+    const auto rows = toyStars(12, 5);
+    const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                        {.min_parallax_snr_to_classify = 0.0}, 1);
+    const auto grid = toyGrid();
+    const auto narrow = census::drawSample(sample, grid, {.draws = 65535, .seed = 4, .threads = 2});
+    const auto wide = census::drawSample(sample, grid, {.draws = 65536, .seed = 4, .threads = 2});
+    for (std::size_t s = 0; s < rows.size(); ++s) {
+        CAPTURE(s);
+        std::uint32_t narrow_sum = 0, wide_sum = 0;
+        int classes_one_more = 0, classes_changed = 0;
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            const auto stellar_class = static_cast<StellarClass>(c);
+            const std::uint32_t before = narrow.star_classes.draws(s, stellar_class);
+            const std::uint32_t after = wide.star_classes.draws(s, stellar_class);
+            narrow_sum += before;
+            wide_sum += after;
+            classes_changed += after != before ? 1 : 0;
+            classes_one_more += after == before + 1 ? 1 : 0;
+        }
+        CHECK(narrow_sum == 65535u);
+        CHECK(wide_sum == 65536u);
+        CHECK(classes_changed == 1);
+        CHECK(classes_one_more == 1);
+    }
+}
+
+TEST_CASE("a sample whose draw tables are released keeps its membership and refuses to draw") {
+    const auto rows = toyStars(600, 8);
+    census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                  {.min_parallax_snr_to_classify = 0.0}, 2);
+    const census::PreparedSample kept(rows, {10.0, 20.0}, census::MembershipSettings{},
+                                      {.min_parallax_snr_to_classify = 0.0}, 2);
+    sample.releaseDrawTables();
+    REQUIRE(sample.size() == rows.size());
+    for (std::size_t s = 0; s < rows.size(); ++s) {
+        REQUIRE(sample.probabilityWithin(s, 0) == kept.probabilityWithin(s, 0));
+        REQUIRE(sample.probabilityWithin(s, 1) == kept.probabilityWithin(s, 1));
+    }
+    CHECK(sample.expectedCount(1) == kept.expectedCount(1));
+    CHECK_THROWS_AS(census::drawSample(sample, toyGrid(), {.draws = 10}), std::logic_error);
+    const std::vector<std::uint32_t> order = {3, 1};
+    CHECK_THROWS_AS(census::PreparedSample(sample, order), std::logic_error);
 }

@@ -110,7 +110,7 @@ TEST_CASE("the Monte Carlo gives literature classes and unclassified reasons in 
     constexpr int kDraws = 100;
     const auto tallies = census::drawSample(sample, grid, {.draws = kDraws, .seed = 2, .threads = 1});
     const auto draws_with = [&](std::size_t star, StellarClass c) {
-        return tallies.star_classes[star * photometry::kClassCount + static_cast<std::size_t>(c)];
+        return tallies.star_classes.draws(star, c);
     };
     CHECK(draws_with(0, StellarClass::M) == kDraws);
     CHECK(draws_with(1, StellarClass::Unclassified) == kDraws);
@@ -134,7 +134,7 @@ TEST_CASE("the Monte Carlo gives literature classes and unclassified reasons in 
         rows, {20.0}, {}, {.spectral_types = census::SpectralTypePolicy::Check}, 1, &classifier);
     const auto checked_tallies =
         census::drawSample(checked, grid, {.draws = kDraws, .seed = 2, .threads = 1});
-    CHECK(checked_tallies.star_classes[static_cast<std::size_t>(StellarClass::G)] == kDraws);
+    CHECK(checked_tallies.star_classes.draws(0, StellarClass::G) == kDraws);
 }
 
 TEST_CASE("the agreement table counts members by literature and photometric class") {
@@ -219,9 +219,7 @@ TEST_CASE("rows without BP-RP are drawn with the class sample.fits gives them") 
             continue;
         }
         ++matched;
-        const double share =
-            tallies.star_classes[s * photometry::kClassCount + static_cast<std::size_t>(c.stellar_class)] /
-            static_cast<double>(kDraws);
+        const double share = tallies.star_classes.draws(s, c.stellar_class) / static_cast<double>(kDraws);
         lowest = std::min(lowest, share);
     }
     MESSAGE("rows classified by the best match with parallax S/N > 20: "
