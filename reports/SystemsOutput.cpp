@@ -3,6 +3,8 @@
 #include "reports/FractionsOutput.h"
 #include "reports/PriorsOutput.h"
 
+#include <algorithm>
+#include <span>
 #include <string>
 
 namespace starcensus::reports {
@@ -12,8 +14,9 @@ namespace {
 using photometry::FitsColumnType;
 
 // Widest member list written in full; longer ones end in "..." (the members' own rows in sample.fits
-// carry their system_id either way).
-constexpr int kMembersWidth = 200;
+// carry their system_id either way). The column is as wide as the run's longest list up to this, so a
+// sample of singles does not carry 200 blank bytes a row (4x10^5 systems: 112 MB -> 40 MB).
+constexpr std::size_t kMaxMembersWidth = 200;
 
 nlohmann::json shareJson(const census::MultiplicityShare& share) {
     nlohmann::json json = twoIntervalsJson(share.fraction);
@@ -31,6 +34,21 @@ std::string sourceIdText(const photometry::CatalogRow& row) {
     return row.source_id == photometry::kMissingSourceId
                ? std::to_string(row.file_index) + ":" + std::to_string(row.row_index)
                : std::to_string(row.source_id);
+}
+
+/// The members' ids, primary first, separated by blanks, cut to kMaxMembersWidth with "...".
+std::string membersText(const census::StellarSystem& system, std::span<const photometry::CatalogRow> rows) {
+    std::string members;
+    for (const std::uint32_t member : system.members) {
+        if (!members.empty()) {
+            members += ' ';
+        }
+        members += sourceIdText(rows[member]);
+        if (members.size() > kMaxMembersWidth) {
+            return members.substr(0, kMaxMembersWidth - 3) + "...";
+        }
+    }
+    return members;
 }
 
 } // namespace
@@ -87,6 +105,10 @@ void appendSystemMembership(photometry::FitsRowBlock& block, std::size_t& column
 void writeSystemsTable(const std::filesystem::path& path, std::span<const photometry::CatalogRow> rows,
                        const census::SystemCatalog& systems, const photometry::Classifier& classifier,
                        const census::RowClassRules& rules) {
+    std::size_t members_width = 1;
+    for (const census::StellarSystem& system : systems.systems) {
+        members_width = std::max(members_width, membersText(system, rows).size());
+    }
     std::vector<photometry::FitsColumn> columns = {
         {"system_id", FitsColumnType::Int64, "", "meta.id;meta.main", "system identifier", 0, {}},
         {"n_members", FitsColumnType::Int32, "", "meta.number", "resolved members (objects)", 0, {}},
@@ -99,7 +121,7 @@ void writeSystemsTable(const std::filesystem::path& path, std::span<const photom
          "",
          "meta.id",
          "source_ids of the members, primary first, then by separation (file:row without one)",
-         kMembersWidth,
+         static_cast<int>(members_width),
          {}},
         {"ra", FitsColumnType::Float64, "deg", "pos.eq.ra", "right ascension of the primary", 0, {}},
         {"dec", FitsColumnType::Float64, "deg", "pos.eq.dec", "declination of the primary", 0, {}},
@@ -140,19 +162,11 @@ void writeSystemsTable(const std::filesystem::path& path, std::span<const photom
           "candidate pairs (before the chance test)"},
          {"NSHIFTED", systems.shifted_pairs_per_sky, "mean candidate pairs in one shifted sky"}});
     auto block = writer.makeBlock();
-    for (const census::StellarSystem& system : systems.systems) {
+    constexpr std::size_t kBlockRows = 8192; // the table's memory, whatever its length (as sample.fits)
+    for (std::size_t s = 0; s < systems.systems.size(); ++s) {
+        const census::StellarSystem& system = systems.systems[s];
         const photometry::CatalogRow& primary = rows[system.primary];
         const photometry::Classification result = census::classifyRow(primary, classifier, rules);
-        std::string members;
-        for (const std::uint32_t member : system.members) {
-            if (!members.empty()) {
-                members += ' ';
-            }
-            members += sourceIdText(rows[member]);
-        }
-        if (members.size() > static_cast<std::size_t>(kMembersWidth)) {
-            members = members.substr(0, kMembersWidth - 3) + "...";
-        }
         std::size_t c = 0;
         block.values<std::int64_t>(c++).push_back(system.id);
         block.values<std::int32_t>(c++).push_back(static_cast<std::int32_t>(system.members.size()));
@@ -160,13 +174,17 @@ void writeSystemsTable(const std::filesystem::path& path, std::span<const photom
             primary.source_id == photometry::kMissingSourceId ? -1 : primary.source_id);
         block.values<std::string>(c++).push_back(std::string(photometry::className(result.stellar_class)));
         block.values<float>(c++).push_back(static_cast<float>(result.mass_msun));
-        block.values<std::string>(c++).push_back(members);
+        block.values<std::string>(c++).push_back(membersText(system, rows));
         for (const double value : {primary.ra_deg, primary.dec_deg, primary.parallax_mas,
                                    system.widest_separation_au, system.widest_separation_arcsec}) {
             block.values<double>(c++).push_back(value);
         }
         block.values<float>(c++).push_back(static_cast<float>(system.largest_chance_probability));
         block.values<std::uint8_t>(c++).push_back(system.flags);
+        if ((s + 1) % kBlockRows == 0) {
+            writer.append(block);
+            block.clear();
+        }
     }
     writer.append(block);
     writer.finish();

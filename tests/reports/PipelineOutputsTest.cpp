@@ -77,6 +77,7 @@ TEST_CASE(
     CHECK(checked["systems"]["rows"] == result.systems);
     CHECK(checked["systems"]["members_agree"] == true);
     CHECK(checked["systems"]["roles_agree"] == true);
+    CHECK(checked["systems"]["members_width"] == checked["systems"]["longest_members"]);
     MESSAGE("systems.fits: " << checked["systems"].dump());
     CHECK(checked["hosts"]["units"]["mass"] == "solMass");
     CHECK(checked["hosts"]["hostrad_pc"] == 6.0);
