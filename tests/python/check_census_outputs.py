@@ -1,27 +1,15 @@
-#!/ usr / bin / python3
-""
-    "Independent check of a run's outputs (tests/reports): reads hosts.fits and draws.fits with astropy and
-    checks priors.json against scipy.stats
-        .
+#!/usr/bin/python3
+"""Independent check of a run's outputs (tests/reports): reads hosts.fits and draws.fits with astropy and
+checks priors.json against scipy.stats.
 
-    Usage : check_census_outputs.py DIRECTORY
+Usage: check_census_outputs.py DIRECTORY
 
-                Prints JSON on standard output : {
-    "hosts" : {"rows" : N, "columns" : [...], "units" : {...}, "min_p_member" : x, "hostrad_pc" : R},
-              "draws"
-        : {"rows" : N, "columns" : [...], "members_equal_class_sums" : bool, "fractions_sum_to_one" : bool},
-          "priors" : {"dirichlet_fraction" : x, "group_beta_fraction" : x, "gamma_level" : x},
-                     "systems" : {
-        "rows" : N,
-                 "columns" : [...],
-                             "multiple" : N,
-                                          "members_agree" : bool,
-                                                            "roles_agree" : bool,
-                                                                            "members_width"
-            : N,
-              "longest_members" : N
-    }
-}
+Prints JSON on standard output:
+  {"hosts": {"rows": N, "columns": [...], "units": {...}, "min_p_member": x, "hostrad_pc": R},
+   "draws": {"rows": N, "columns": [...], "members_equal_class_sums": bool, "fractions_sum_to_one": bool},
+   "priors": {"dirichlet_fraction": x, "group_beta_fraction": x, "gamma_level": x},
+   "systems": {"rows": N, "columns": [...], "multiple": N, "members_agree": bool, "roles_agree": bool,
+               "members_width": N, "longest_members": N}}
 where the priors entries are the largest differences between the stored Monte Carlo quantiles and the
 fitted distributions: |scipy.stats.beta.ppf(p, alpha_c, a0 - alpha_c) - stored| for the Dirichlet marginals
 (the aggregation property of the Dirichlet), the same for the groups' Betas, and
@@ -102,7 +90,7 @@ def main(directory):
             "multiple": int(np.sum(np.asarray(systems["n_members"]) > 1)),
             "members_agree": bool(members_agree),
             "roles_agree": bool(roles_agree),
-#the members column is as wide as the longest list(astropy reads the TFORM width)
+            # the members column is as wide as the longest list (astropy reads the TFORM width)
             "members_width": int(systems["members"].dtype.itemsize),
             "longest_members": max((len(str(m)) for m in systems["members"]), default=0),
         },
