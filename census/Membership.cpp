@@ -160,15 +160,27 @@ void DistancePosterior::setGaussian(double observed, double sigma, DistancePrior
     }
 }
 
+void DistancePosterior::GaussianForm::fillQuantiles(std::array<float, kQuantileNodes>& quantiles) const {
+    const auto& z = standardNormalQuantiles();
+    quantiles.front() = nearest_modulus;
+    quantiles.back() = farthest_modulus;
+    for (std::size_t j = 1; j + 1 < static_cast<std::size_t>(kQuantileNodes); ++j) {
+        quantiles[j] = static_cast<float>(distanceModulusOfParallax(mean_mas + sd_mas * z[j]));
+    }
+}
+
+std::optional<DistancePosterior::GaussianForm> DistancePosterior::gaussianForm() const {
+    if (!(gaussian_sd_mas_ > 0.0)) {
+        return std::nullopt;
+    }
+    return GaussianForm{gaussian_mean_mas_, gaussian_sd_mas_, nearest_modulus_, farthest_modulus_};
+}
+
 void DistancePosterior::tabulateQuantiles() {
     if (quantiles_tabulated_) {
         return;
     }
-    const auto& z = standardNormalQuantiles();
-    for (std::size_t j = 1; j + 1 < static_cast<std::size_t>(kQuantileNodes); ++j) {
-        modulus_quantiles_[j] =
-            static_cast<float>(distanceModulusOfParallax(gaussian_mean_mas_ + gaussian_sd_mas_ * z[j]));
-    }
+    gaussianForm()->fillQuantiles(modulus_quantiles_);
     quantiles_tabulated_ = true;
 }
 

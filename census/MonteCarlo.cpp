@@ -187,10 +187,14 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                     continue; // every draw is known: no tables
                 }
             }
-            posterior.tabulateQuantiles();
-            const auto& quantiles = posterior.distanceModulusQuantiles();
-            table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
-            tables.quantiles.insert(tables.quantiles.end(), quantiles.begin(), quantiles.end());
+            if (const auto gaussian = posterior.gaussianForm()) {
+                table_row_[s] = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
+                tables.gaussians.push_back(*gaussian);
+            } else {
+                const auto& quantiles = posterior.distanceModulusQuantiles();
+                table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
+                tables.quantiles.insert(tables.quantiles.end(), quantiles.begin(), quantiles.end());
+            }
             if (tabulated) {
                 tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
                 tables.categories.insert(tables.categories.end(), categories.begin(), categories.end());
@@ -198,6 +202,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
         }
         // Reserve-free growth leaves up to twice the room: give it back.
         tables.quantiles.shrink_to_fit();
+        tables.gaussians.shrink_to_fit();
         tables.categories.shrink_to_fit();
     });
 }
@@ -235,7 +240,10 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
         std::copy_n(&source.probability_within_[from * radii], radii, &probability_within_[s * radii]);
         const BlockTables& source_tables = source.block_tables_[from / kBlockStars];
         BlockTables& tables = block_tables_[s / kBlockStars];
-        if (const std::uint32_t row = source.table_row_[from]; row != kNoRow) {
+        if (const std::uint32_t row = source.table_row_[from]; row != kNoRow && (row & kGaussianRow) != 0) {
+            table_row_[s] = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
+            tables.gaussians.push_back(source_tables.gaussians[row & ~kGaussianRow]);
+        } else if (row != kNoRow) {
             table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
             const auto first =
                 source_tables.quantiles.begin() + static_cast<std::ptrdiff_t>(row * kQuantiles);
@@ -250,6 +258,7 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
     }
     for (BlockTables& tables : block_tables_) {
         tables.quantiles.shrink_to_fit();
+        tables.gaussians.shrink_to_fit();
         tables.categories.shrink_to_fit();
     }
 }
@@ -277,6 +286,19 @@ void PreparedSample::releaseDrawTables() {
     release(fixed_categories_);
     release(certain_categories_);
     draw_tables_released_ = true;
+}
+
+const float* PreparedSample::quantileTable(std::size_t s, std::array<float, kQuantiles>& scratch) const {
+    const std::uint32_t row = table_row_[s];
+    const BlockTables& tables = block_tables_[s / kBlockStars];
+    if (row == kNoRow) {
+        return nullptr;
+    }
+    if ((row & kGaussianRow) != 0) {
+        tables.gaussians[row & ~kGaussianRow].fillQuantiles(scratch);
+        return scratch.data();
+    }
+    return &tables.quantiles[row * kQuantiles];
 }
 
 void PreparedSample::requireDrawTables(const char* what) const {
@@ -381,6 +403,7 @@ class SampleDrawer {
                    std::vector<std::uint32_t>& certain_counts, StarClassCounts& star_classes) const {
         const std::size_t radii = sample_.radii_pc_.size();
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
+        std::array<float, PreparedSample::kQuantiles> refilled_quantiles; // a Gaussian-shortcut star's table
         for (std::size_t s = begin; s < end; ++s) {
             // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
             Xoshiro256 random(settings_.seed, sample_.stream_rows_.empty() ? s : sample_.stream_rows_[s]);
@@ -395,11 +418,8 @@ class SampleDrawer {
             const auto draws = static_cast<std::size_t>(settings_.draws);
             const photometry::Category fixed = sample_.fixed_categories_[s];
             const bool certainty_known = !sample_.certain_categories_.empty();
-            const std::uint32_t table_row = sample_.table_row_[s];
             const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
-            const float* quantiles = table_row == PreparedSample::kNoRow
-                                         ? nullptr
-                                         : &tables.quantiles[table_row * PreparedSample::kQuantiles];
+            const float* quantiles = sample_.quantileTable(s, refilled_quantiles);
             const std::uint32_t tabulated_row = sample_.tabulated_row_[s];
             const photometry::Category* tabulated =
                 tabulated_row == PreparedSample::kNoRow

@@ -117,3 +117,21 @@ TEST_CASE("a deferred quantile table is the tabulated one once filled, and its e
         CHECK(deferred.farthestModulus() == table.back());
     }
 }
+
+TEST_CASE("a Gaussian-shortcut posterior's compact form refills its quantile table exactly") {
+    // What PreparedSample keeps for such a star instead of the table; the grid path has no compact form.
+    const MembershipSettings settings;
+    for (const double parallax_mas : {10.5, 48.0, 250.0}) { // well inside the prior's 200 pc
+        for (const double relative : {0.001, 0.0105, 0.019}) {
+            CAPTURE(parallax_mas);
+            CAPTURE(relative);
+            const DistancePosterior posterior(parallax_mas, relative * parallax_mas, settings);
+            const auto form = posterior.gaussianForm();
+            REQUIRE(form.has_value());
+            std::array<float, DistancePosterior::kQuantileNodes> refilled{};
+            form->fillQuantiles(refilled);
+            CHECK(refilled == posterior.distanceModulusQuantiles());
+        }
+    }
+    CHECK_FALSE(DistancePosterior(50.0, 5.0, settings).gaussianForm().has_value());
+}
