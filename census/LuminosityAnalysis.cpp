@@ -86,7 +86,7 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
     }
     const photometry::ModelPhotometry& models = photometry::shippedModelPhotometry();
     const auto ranges = categoryAbsGRanges(models, completeness);
-    const std::vector<ClassifiedRow> classified =
+    std::vector<ClassifiedRow> classified =
         classifyRows(rows, classifier, census, analysis.limits.faint_g_mag);
     const std::vector<double>& radii = census.radii_pc;
     std::vector<SampleStar> stars;
@@ -95,6 +95,10 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
         analysis.completeness.push_back(
             assessCompleteness(stars, radii[r], census.groups, analysis.limits, ranges, completeness));
     }
+    // What the correction reads of the classified rows; the rows themselves (24 bytes a candidate) are
+    // let go before the luminosity function makes its own copy of the members.
+    const MembersBeyondLimits beyond = membersBeyondLimits(classified, sample);
+    std::vector<ClassifiedRow>().swap(classified);
     // The luminosity function and its fits at the largest radius (`stars` holds its weights).
     analysis.lf_radius_pc = radii.back();
     analysis.complete_abs_g_mag =
@@ -133,9 +137,9 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
         // Only the faint limit is filled in: stars brighter than the bright limit are usually in the
         // input anyway (see README, Methods), and the census counts every member, also those beyond the
         // faint limit that another input file found (taken off the unseen numbers).
-        analysis.corrected = correctForCompleteness(
-            tallies, radii, census.groups, model, fit, {analysis.limits.faint_g_mag, -kInfinity},
-            census.draws.seed, census.draws.threads, membersBeyondLimits(classified, sample));
+        analysis.corrected = correctForCompleteness(tallies, radii, census.groups, model, fit,
+                                                    {analysis.limits.faint_g_mag, -kInfinity},
+                                                    census.draws.seed, census.draws.threads, beyond);
     }
     return analysis;
 }
