@@ -23,9 +23,9 @@ inline constexpr float kMissingFloat = std::numeric_limits<float>::quiet_NaN();
 // Astrometry (position, parallax and its error, proper motion) and the Gaia band errors, which the readers
 // derive from flux-over-error ratios, are doubles. The magnitudes, their other errors, RUWE and the
 // literature fields are floats: the precision the archives publish them in (Gaia DR3, 2MASS and AllWISE
-// store them as 4-byte floats; 2^-24 relative, about 1 micro-mag at 16 mag, far below any photometric
-// error), so a float column is held exactly and a row takes 176 bytes instead of 256, on the census's
-// largest table (one row per candidate).
+// store them as 4-byte floats, from memory; rounding is at most 2^-24 relative, about 1 micro-mag at 16
+// mag, far below any photometric error), so a float column is held exactly and a row takes 176 bytes instead
+// of 256, on the census's largest table (one row per candidate).
 struct CatalogRow {
     std::int64_t source_id = kMissingSourceId;
     double ra_deg = kMissing;
