@@ -85,7 +85,7 @@ class PreparedSample {
     double expectedCount(std::size_t r) const;
     /// The grid given to the constructor (nullptr without one).
     const photometry::ClassGrid* grid() const { return grid_; }
-    /// Frees what only the draws read (photometry, quantile and category tables: about 100 bytes a star in
+    /// Frees what only the draws read (photometry, quantile and category tables: about 80 bytes a star in
     /// a 100 pc sample), keeping size(), radii(), probabilityWithin() and expectedCount(). For after the
     /// last drawSample(); drawing this sample again, or selecting from it, throws std::logic_error.
     void releaseDrawTables();
