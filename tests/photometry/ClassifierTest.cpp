@@ -564,7 +564,8 @@ TEST_CASE("a star's categories at many distances are those of its whole classifi
         input.b_mag = maybe(input.v_mag + 0.5 * bp_rp, 0.5);
         input.b_error_mag = 0.02;
         for (std::size_t k = 0; k < moduli.size(); ++k) {
-            moduli[k] = static_cast<float>(modulus - 4.0 + 1.2 * static_cast<double>(k) + 0.3 * uniform(random));
+            moduli[k] =
+                static_cast<float>(modulus - 4.0 + 1.2 * static_cast<double>(k) + 0.3 * uniform(random));
         }
         classifier.censusCategoriesAt(input, moduli, categories);
         for (std::size_t k = 0; k < moduli.size(); ++k) {
@@ -579,7 +580,8 @@ TEST_CASE("a star's categories at many distances are those of its whole classifi
         }
     }
     CHECK(mismatches == 0);
-    // The inputs reach the classes and the unclassified reasons: at least 30 categories, white dwarfs among them.
+    // The inputs reach the classes and the unclassified reasons: at least 30 categories, white dwarfs among
+    // them.
     CHECK(seen.size() >= 30);
     CHECK(seen.count(categoryOf(StellarClass::WhiteDwarf, 0.0)) == 1);
 }
