@@ -111,6 +111,7 @@ std::size_t writeHostTable(const std::filesystem::path& path, std::span<const ph
             static_cast<float>(tallies.star_classes.draws(hosts[h], result.stellar_class)) /
             static_cast<float>(tallies.draws));
         appendSystemMembership(block, c, systems, hosts[h]);
+        writer.appendIfFull(block, h + 1);
     }
     writer.append(block);
     writer.finish();

@@ -199,7 +199,6 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
         path, "SAMPLE", sampleColumns(sample.radii(), systems),
         {{"ORIGIN", std::string("starcensus"), "software that wrote this file"}});
     auto block = writer.makeBlock();
-    constexpr std::size_t kBlockRows = 8192; // ~2 MB of cells: the table's memory, whatever its length
     const std::size_t radii = sample.radii().size();
     for (std::size_t s = 0; s < rows.size(); ++s) {
         const auto& row = rows[s];
@@ -237,10 +236,7 @@ void writeSampleTable(const std::filesystem::path& path, std::span<const photome
                 static_cast<float>(tallies.draws));
         }
         appendSystemMembership(block, c, systems, s);
-        if ((s + 1) % kBlockRows == 0) {
-            writer.append(block);
-            block.clear();
-        }
+        writer.appendIfFull(block, s + 1);
     }
     writer.append(block);
     writer.finish();

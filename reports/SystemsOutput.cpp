@@ -162,7 +162,6 @@ void writeSystemsTable(const std::filesystem::path& path, std::span<const photom
           "candidate pairs (before the chance test)"},
          {"NSHIFTED", systems.shifted_pairs_per_sky, "mean candidate pairs in one shifted sky"}});
     auto block = writer.makeBlock();
-    constexpr std::size_t kBlockRows = 8192; // the table's memory, whatever its length (as sample.fits)
     for (std::size_t s = 0; s < systems.systems.size(); ++s) {
         const census::StellarSystem& system = systems.systems[s];
         const photometry::CatalogRow& primary = rows[system.primary];
@@ -181,10 +180,7 @@ void writeSystemsTable(const std::filesystem::path& path, std::span<const photom
         }
         block.values<float>(c++).push_back(static_cast<float>(system.largest_chance_probability));
         block.values<std::uint8_t>(c++).push_back(system.flags);
-        if ((s + 1) % kBlockRows == 0) {
-            writer.append(block);
-            block.clear();
-        }
+        writer.appendIfFull(block, s + 1);
     }
     writer.append(block);
     writer.finish();

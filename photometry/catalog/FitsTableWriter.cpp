@@ -277,6 +277,13 @@ FitsTableWriter::~FitsTableWriter() {
     }
 }
 
+void FitsTableWriter::appendIfFull(FitsRowBlock& block, std::size_t rows_added) {
+    if (rows_added % kBlockRows == 0) {
+        append(block);
+        block.clear();
+    }
+}
+
 void FitsTableWriter::append(const FitsRowBlock& block) {
     if (!file_ || file_->fits == nullptr) {
         throw std::logic_error("FitsTableWriter::append after finish()");

@@ -87,6 +87,12 @@ class FitsTableWriter {
     /// Appends the block's rows. Throws InputError (file, column, cfitsio's message) on a write failure,
     /// std::invalid_argument if the block does not match the column layout.
     void append(const FitsRowBlock& block);
+    /// Rows a caller that adds one row at a time keeps in its block (~2 MB of cells for sample.fits's 44
+    /// columns): the table's memory, whatever its length.
+    static constexpr std::size_t kBlockRows = 8192;
+    /// For such a caller, after its rows_added-th row: appends and clears the block when it holds
+    /// kBlockRows rows. The caller appends the rest before finish().
+    void appendIfFull(FitsRowBlock& block, std::size_t rows_added);
     std::int64_t rowCount() const { return rows_written_; }
 
     /// Closes the file and moves it to its final name.
