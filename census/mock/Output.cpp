@@ -162,23 +162,22 @@ MockCatalogWriter::MockCatalogWriter(const std::filesystem::path& path, const Mo
 
 void MockCatalogWriter::append(std::span<const CatalogRow> rows) {
     block_.clear();
-    const auto f = [](double value) { return static_cast<float>(value); };
     for (const CatalogRow& row : rows) {
         block_.values<std::int64_t>(kSourceId).push_back(row.source_id);
         appendAstrometry(block_, kRa, row);
-        block_.values<float>(kG).push_back(f(row.g_mag));
-        block_.values<float>(kBp).push_back(f(row.bp_mag));
-        block_.values<float>(kRp).push_back(f(row.rp_mag));
+        block_.values<float>(kG).push_back(row.g_mag);
+        block_.values<float>(kBp).push_back(row.bp_mag);
+        block_.values<float>(kRp).push_back(row.rp_mag);
         block_.values<float>(kGFluxOverError).push_back(fluxOverError(row.g_error_mag));
         block_.values<float>(kBpFluxOverError).push_back(fluxOverError(row.bp_error_mag));
         block_.values<float>(kRpFluxOverError).push_back(fluxOverError(row.rp_error_mag));
-        block_.values<float>(kJ).push_back(f(row.j_mag));
-        block_.values<float>(kH).push_back(f(row.h_mag));
-        block_.values<float>(kKs).push_back(f(row.ks_mag));
-        block_.values<float>(kRuwe).push_back(f(row.ruwe));
-        block_.values<float>(kJError).push_back(f(row.j_error_mag));
-        block_.values<float>(kHError).push_back(f(row.h_error_mag));
-        block_.values<float>(kKsError).push_back(f(row.ks_error_mag));
+        block_.values<float>(kJ).push_back(row.j_mag);
+        block_.values<float>(kH).push_back(row.h_mag);
+        block_.values<float>(kKs).push_back(row.ks_mag);
+        block_.values<float>(kRuwe).push_back(row.ruwe);
+        block_.values<float>(kJError).push_back(row.j_error_mag);
+        block_.values<float>(kHError).push_back(row.h_error_mag);
+        block_.values<float>(kKsError).push_back(row.ks_error_mag);
     }
     writer_.append(block_);
 }
@@ -242,24 +241,23 @@ void writeCompanionCatalog(const std::filesystem::path& path, const MockResult& 
          {"W2LIMIT", settings.companion.w2_limit_mag, "[mag] ultracool dwarfs: W2 detection limit"},
          {"GBRIGHT", settings.g_bright_limit_mag, "[mag] bright stars: true G below this"}});
     photometry::FitsRowBlock block = writer.makeBlock();
-    const auto f = [](double value) { return static_cast<float>(value); };
     for (const CompanionRow& companion : result.companion_catalog) {
         const CatalogRow& row = companion.row;
         appendAstrometry(block, kCompanionRa, row);
-        block.values<float>(kCompanionB).push_back(f(row.b_mag));
-        block.values<float>(kCompanionBError).push_back(f(row.b_error_mag));
-        block.values<float>(kCompanionV).push_back(f(row.v_mag));
-        block.values<float>(kCompanionVError).push_back(f(row.v_error_mag));
-        block.values<float>(kCompanionJ).push_back(f(row.j_mag));
-        block.values<float>(kCompanionH).push_back(f(row.h_mag));
-        block.values<float>(kCompanionKs).push_back(f(row.ks_mag));
-        block.values<float>(kCompanionJError).push_back(f(row.j_error_mag));
-        block.values<float>(kCompanionHError).push_back(f(row.h_error_mag));
-        block.values<float>(kCompanionKsError).push_back(f(row.ks_error_mag));
-        block.values<float>(kCompanionW1).push_back(f(row.w1_mag));
-        block.values<float>(kCompanionW1Error).push_back(f(row.w1_error_mag));
-        block.values<float>(kCompanionW2).push_back(f(row.w2_mag));
-        block.values<float>(kCompanionW2Error).push_back(f(row.w2_error_mag));
+        block.values<float>(kCompanionB).push_back(row.b_mag);
+        block.values<float>(kCompanionBError).push_back(row.b_error_mag);
+        block.values<float>(kCompanionV).push_back(row.v_mag);
+        block.values<float>(kCompanionVError).push_back(row.v_error_mag);
+        block.values<float>(kCompanionJ).push_back(row.j_mag);
+        block.values<float>(kCompanionH).push_back(row.h_mag);
+        block.values<float>(kCompanionKs).push_back(row.ks_mag);
+        block.values<float>(kCompanionJError).push_back(row.j_error_mag);
+        block.values<float>(kCompanionHError).push_back(row.h_error_mag);
+        block.values<float>(kCompanionKsError).push_back(row.ks_error_mag);
+        block.values<float>(kCompanionW1).push_back(row.w1_mag);
+        block.values<float>(kCompanionW1Error).push_back(row.w1_error_mag);
+        block.values<float>(kCompanionW2).push_back(row.w2_mag);
+        block.values<float>(kCompanionW2Error).push_back(row.w2_error_mag);
         block.values<std::string>(kCompanionSpectralType).push_back(companion.spectral_type);
     }
     writer.append(block);
