@@ -94,26 +94,6 @@ FitsColumnData emptyData(FitsColumnType type) {
     throw std::invalid_argument("unknown FITS column type");
 }
 
-// Bytes a value of the column takes in a row (FITS Standard 4.0, Table 18).
-std::size_t byteWidth(const FitsColumn& column) {
-    switch (column.type) {
-    case FitsColumnType::Float64:
-    case FitsColumnType::Int64:
-        return 8;
-    case FitsColumnType::Float32:
-    case FitsColumnType::Int32:
-        return 4;
-    case FitsColumnType::Int16:
-        return 2;
-    case FitsColumnType::UInt8:
-    case FitsColumnType::Logical:
-        return 1;
-    case FitsColumnType::String:
-        return static_cast<std::size_t>(column.string_width);
-    }
-    throw std::invalid_argument("unknown FITS column type");
-}
-
 // A number as the table stores it: big-endian IEEE 754 or two's complement (FITS Standard 4.0, 5.2 and 7.3).
 template <class T>
 void storeBigEndian(unsigned char* out, T value) {
@@ -265,9 +245,16 @@ FitsTableWriter::FitsTableWriter(const std::filesystem::path& path, const std::s
     // Refresh the HDU structure so the TNULLn keywords above take effect.
     fits_set_hdustruc(file_->fits, &status);
     file_->check(status);
-    for (const FitsColumn& column : columns_) {
+    // Each column's bytes in a row, as cfitsio laid out the TFORMs above: repeat x element width, a
+    // string's repeat being its characters.
+    for (std::size_t i = 0; i < columns_.size(); ++i) {
+        int type_code = 0;
+        long repeat = 0;
+        long width = 0;
+        fits_get_coltype(file_->fits, static_cast<int>(i + 1), &type_code, &repeat, &width, &status);
+        file_->check(status, columns_[i].name);
         file_->offsets.push_back(file_->row_bytes);
-        file_->row_bytes += byteWidth(column);
+        file_->row_bytes += static_cast<std::size_t>(type_code == TSTRING ? repeat : repeat * width);
     }
 }
 
