@@ -1,6 +1,7 @@
 #include "census/Membership.h"
 
 #include "census/detail/FastNormal.h"
+#include "census/detail/VectorMath.h"
 
 #include <algorithm>
 #include <cmath>
@@ -37,6 +38,19 @@ double correctedParallax(double parallax_mas, const MembershipSettings& settings
 double distanceModulusOfParallax(double true_parallax_mas) {
     // mu = 5 log10(d / 10 pc) with d = 1000 / t  =>  mu = 5 log10(100 / t).
     return 5.0 * std::log10(100.0 / true_parallax_mas);
+}
+
+// distanceModulusOfParallax() of each of the quantile table's parallaxes (mas), with the vector log10:
+// the table's moduli (mag).
+void distanceModuliOfParallaxes(std::array<double, DistancePosterior::kQuantileNodes> parallax_mas,
+                                std::array<float, DistancePosterior::kQuantileNodes>& moduli) {
+    for (double& value : parallax_mas) {
+        value = 100.0 / value;
+    }
+    detail::log10InPlace(parallax_mas);
+    for (std::size_t j = 0; j < moduli.size(); ++j) {
+        moduli[j] = static_cast<float>(5.0 * parallax_mas[j]);
+    }
 }
 
 } // namespace
@@ -76,8 +90,9 @@ DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_
     }
     std::array<double, kGridNodes> density;
     for (std::size_t k = 0; k < static_cast<std::size_t>(kGridNodes); ++k) {
-        density[k] = std::exp(log_density[k] - max_log_density);
+        density[k] = log_density[k] - max_log_density;
     }
+    detail::expInPlace(density);
 
     cdf_in_parallax_[0] = 0.0;
     for (std::size_t k = 1; k < static_cast<std::size_t>(kGridNodes); ++k) {
@@ -91,6 +106,7 @@ DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_
     }
 
     // Quantiles of the distance modulus: u = P(mu' < mu) = P(t' > t) = 1 - CDF(t).
+    std::array<double, kQuantileNodes> quantile_parallax_mas;
     std::size_t node = cdf_in_parallax_.size() - 1;
     for (int j = 0; j < kQuantileNodes; ++j) {
         const double target_cdf = 1.0 - static_cast<double>(j) / (kQuantileNodes - 1);
@@ -105,8 +121,9 @@ DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_
             t = true_parallax_mas_[node - 1] +
                 fraction * (true_parallax_mas_[node] - true_parallax_mas_[node - 1]);
         }
-        modulus_quantiles_[static_cast<std::size_t>(j)] = static_cast<float>(distanceModulusOfParallax(t));
+        quantile_parallax_mas[static_cast<std::size_t>(j)] = t;
     }
+    distanceModuliOfParallaxes(quantile_parallax_mas, modulus_quantiles_);
     const auto [nearest, farthest] =
         std::minmax_element(modulus_quantiles_.begin(), modulus_quantiles_.end());
     nearest_modulus_ = *nearest;
@@ -162,11 +179,14 @@ void DistancePosterior::setGaussian(double observed, double sigma, DistancePrior
 
 void DistancePosterior::GaussianForm::fillQuantiles(std::array<float, kQuantileNodes>& quantiles) const {
     const auto& z = standardNormalQuantiles();
+    std::array<double, kQuantileNodes> parallax_mas;
+    for (std::size_t j = 0; j < parallax_mas.size(); ++j) {
+        parallax_mas[j] = mean_mas + sd_mas * z[j];
+    }
+    distanceModuliOfParallaxes(parallax_mas, quantiles);
+    // The ends are the likelihood window's, not z = 0's.
     quantiles.front() = nearest_modulus;
     quantiles.back() = farthest_modulus;
-    for (std::size_t j = 1; j + 1 < static_cast<std::size_t>(kQuantileNodes); ++j) {
-        quantiles[j] = static_cast<float>(distanceModulusOfParallax(mean_mas + sd_mas * z[j]));
-    }
 }
 
 std::optional<DistancePosterior::GaussianForm> DistancePosterior::gaussianForm() const {
