@@ -149,13 +149,14 @@ void Classifier::censusCategoriesAt(PhotometricInput input, std::span<const floa
     // modulus, computed as place() computes them; a given modulus carries no error and no S/N flag.
     input.distance_modulus_mag = 0.0;
     const PlacedPhotometry apparent = place(input);
+    const ColourTerms colour = colourTerms(apparent.photometry.bp_rp_mag); // the same at every distance
     for (std::size_t k = 0; k < moduli.size(); ++k) {
         AbsolutePhotometry photometry = apparent.photometry;
         photometry.abs_g_mag -= moduli[k];
         for (double& abs_mag : photometry.bands.abs_mag) {
             abs_mag -= moduli[k];
         }
-        Classification result = classOf(photometry);
+        Classification result = classOf(photometry, colour);
         result.flags |= apparent.flags;
         categories[k] = censusCategory(result);
     }
@@ -177,7 +178,7 @@ Classification Classifier::classifyAbsolute(double abs_g_mag, double bp_rp_mag, 
 }
 
 Classification Classifier::classifyAbsolute(const AbsolutePhotometry& photometry) const {
-    Classification result = classOf(photometry);
+    Classification result = classOf(photometry, colourTerms(photometry.bp_rp_mag));
     if (result.stellar_class == StellarClass::WhiteDwarf && !std::isnan(result.bp_rp_mag)) {
         // Teff and mass from the hydrogen-atmosphere (DA) grid, the common case (~80% of white dwarfs,
         // from memory); a helium atmosphere would give a somewhat different Teff at the same colour.
@@ -200,10 +201,24 @@ Classification Classifier::classifyClassOnly(double abs_g_mag, double bp_rp_mag)
     AbsolutePhotometry photometry;
     photometry.abs_g_mag = abs_g_mag;
     photometry.bp_rp_mag = bp_rp_mag;
-    return classOf(photometry);
+    return classOf(photometry, colourTerms(bp_rp_mag));
 }
 
-Classification Classifier::classOf(const AbsolutePhotometry& photometry) const {
+Classifier::ColourTerms Classifier::colourTerms(double bp_rp_mag) const {
+    ColourTerms terms;
+    if (std::isnan(bp_rp_mag)) {
+        return terms;
+    }
+    const auto [blue_end, red_end] = locus_bp_rp_range_mag_;
+    terms.colour_code = locus_.codeFromBpRp(std::clamp(bp_rp_mag, blue_end, red_end));
+    terms.locus_abs_g_mag = locus_.valueAtCode(LocusQuantity::AbsGMag, terms.colour_code);
+    if (bp_rp_mag <= settings_.white_dwarf_max_bp_rp_mag) {
+        terms.white_dwarf_boundary_abs_g = white_dwarf_boundary_.absGMag(bp_rp_mag);
+    }
+    return terms;
+}
+
+Classification Classifier::classOf(const AbsolutePhotometry& photometry, const ColourTerms& colour) const {
     Classification result;
     const double abs_g_mag = photometry.abs_g_mag;
     const double bp_rp_mag = photometry.bp_rp_mag;
@@ -226,7 +241,7 @@ Classification Classifier::classOf(const AbsolutePhotometry& photometry) const {
     if (std::isnan(bp_rp_mag)) {
         classifyWithoutColour(result, abs_j_mag);
     } else {
-        classifyWithColour(result);
+        classifyWithColour(result, colour);
     }
     const bool late = result.spectral_code >= 70.0 || abs_g_mag > settings_.late_type_abs_g_mag ||
                       (std::isnan(bp_rp_mag) && result.stellar_class == StellarClass::Unclassified);
@@ -312,15 +327,14 @@ void Classifier::setDwarf(Classification& result, double spectral_code) const {
         std::isnan(spectral_code) ? StellarClass::Unclassified : dwarfClassOfCode(spectral_code);
 }
 
-void Classifier::classifyWithColour(Classification& result) const {
+void Classifier::classifyWithColour(Classification& result, const ColourTerms& terms) const {
     const double abs_g = result.abs_g_mag;
     const double colour = result.bp_rp_mag;
     const auto [blue_end, red_end] = locus_bp_rp_range_mag_;
-    const double colour_on_locus = std::clamp(colour, blue_end, red_end);
-    const double colour_code = locus_.codeFromBpRp(colour_on_locus);
-    result.locus_offset_mag = abs_g - locus_.valueAtCode(LocusQuantity::AbsGMag, colour_code);
+    const double colour_code = terms.colour_code;
+    result.locus_offset_mag = abs_g - terms.locus_abs_g_mag;
 
-    if (colour <= settings_.white_dwarf_max_bp_rp_mag && abs_g > white_dwarf_boundary_.absGMag(colour)) {
+    if (colour <= settings_.white_dwarf_max_bp_rp_mag && abs_g > terms.white_dwarf_boundary_abs_g) {
         result.stellar_class = StellarClass::WhiteDwarf;
         return;
     }

@@ -234,8 +234,18 @@ class Classifier {
         std::uint16_t flags = 0;
     };
     PlacedPhotometry place(const PhotometricInput& input) const;
-    /// Class, subtype code and flags; Teff and mass are added by classifyAbsolute().
-    Classification classOf(const AbsolutePhotometry& photometry) const;
+    /// What classifyWithColour() reads of the locus and the white-dwarf boundary at a BP-RP colour alone,
+    /// found once for the many distances of censusCategoriesAt(). NaN members where the colour is NaN, and
+    /// the boundary's where the colour is too red for a white dwarf.
+    struct ColourTerms {
+        double colour_code = kNaN;                // the locus code at the colour clamped onto the locus
+        double locus_abs_g_mag = kNaN;            // the locus M_G at that code
+        double white_dwarf_boundary_abs_g = kNaN; // the boundary's M_G at the colour
+    };
+    ColourTerms colourTerms(double bp_rp_mag) const;
+    /// Class, subtype code and flags; Teff and mass are added by classifyAbsolute(). `colour` must be
+    /// colourTerms(photometry.bp_rp_mag).
+    Classification classOf(const AbsolutePhotometry& photometry, const ColourTerms& colour) const;
     /// Step 6 applies: no BP-RP, G absent or a Johnson band present, and bands for a match.
     static bool usesBandMatch(const AbsolutePhotometry& photometry);
     /// Step 6.
@@ -243,7 +253,7 @@ class Classifier {
     /// Step 6's white-dwarf and evolved decisions from (V-Ks, M_V); true when one was made (or the colour is
     /// bluer than the locus), false for a dwarf or when V or Ks is missing or V-Ks is redder than the locus.
     bool decideFromJohnsonColour(Classification& result, double abs_v_mag, double v_ks_mag) const;
-    void classifyWithColour(Classification& result) const;
+    void classifyWithColour(Classification& result, const ColourTerms& terms) const;
     void classifyWithoutColour(Classification& result, double abs_j_mag) const;
     /// Step 5: the J-Ks path, or without J-Ks the mid-infrared one.
     void classifyNearInfrared(Classification& result, double abs_j_mag, double j_ks_mag,
