@@ -88,6 +88,27 @@ std::optional<SystemPair> candidatePair(const PairInputs& a, const PairInputs& b
     }
     const double close_factor =
         separation_rad * kArcsecPerRadian < s.close_pair_arcsec ? s.close_pair_error_factor : 1.0;
+    const double to_proper_motion = 1000.0 / (kKmPerSecondPerAuPerYear * distance_pc); // mas/yr per km/s
+    const double projected_au = projected_pc * kAuPerPc;
+    const double escape_mas_per_yr = kEscapeSpeedAtAuKmPerS *
+                                     std::sqrt(s.max_total_mass_msun / std::max(projected_au, 1e-3)) *
+                                     to_proper_motion;
+    const double pm_difference_ra = a.pmra_mas_per_yr - b.pmra_mas_per_yr;
+    const double pm_difference_dec = a.pmdec_mas_per_yr - b.pmdec_mas_per_yr;
+    // Most candidates are chance alignments whose proper motions differ by far more than the test below
+    // allows: refused here against an upper bound of what it allows, with |x| + |y| >= hypot(x, y) for
+    // each of its three hypot calls (a margin covers rounding; NaNs refuse nothing and go on).
+    const double allowed_bound =
+        escape_mas_per_yr +
+        separation_rad * (0.5 * (std::abs(a.pmra_mas_per_yr + b.pmra_mas_per_yr) +
+                                 std::abs(a.pmdec_mas_per_yr + b.pmdec_mas_per_yr)) +
+                          std::abs(s.max_radial_velocity_km_s) * to_proper_motion) +
+        std::abs(s.proper_motion_sigma * s.proper_motion_error_per_parallax_error * close_factor) *
+            (a.scaled_parallax_error_mas + b.scaled_parallax_error_mas);
+    if (pm_difference_ra * pm_difference_ra + pm_difference_dec * pm_difference_dec >
+        allowed_bound * allowed_bound * (1.0 + 1e-9)) {
+        return std::nullopt;
+    }
     const double parallax_error_mas =
         close_factor * std::hypot(a.scaled_parallax_error_mas, b.scaled_parallax_error_mas);
     // A radial separation r s at distance d changes the parallax by plx^2 r s / 1000 (mas; s in pc).
@@ -97,11 +118,6 @@ std::optional<SystemPair> candidatePair(const PairInputs& a, const PairInputs& b
         s.parallax_consistency_sigma * parallax_error_mas + depth_mas) {
         return std::nullopt;
     }
-    const double to_proper_motion = 1000.0 / (kKmPerSecondPerAuPerYear * distance_pc); // mas/yr per km/s
-    const double projected_au = projected_pc * kAuPerPc;
-    const double escape_mas_per_yr = kEscapeSpeedAtAuKmPerS *
-                                     std::sqrt(s.max_total_mass_msun / std::max(projected_au, 1e-3)) *
-                                     to_proper_motion;
     // One space velocity seen in two directions theta apart differs by up to |v| theta (v in proper-motion
     // units: the mean proper motion and the largest radial velocity assumed).
     const double mean_pm =
@@ -111,8 +127,7 @@ std::optional<SystemPair> candidatePair(const PairInputs& a, const PairInputs& b
     // Two axes, two stars: sigma of |dmu| per axis is the hypot of the two stars' errors.
     const double pm_error = s.proper_motion_error_per_parallax_error * parallax_error_mas;
     const double allowed = escape_mas_per_yr + perspective_mas_per_yr + s.proper_motion_sigma * pm_error;
-    const double difference =
-        std::hypot(a.pmra_mas_per_yr - b.pmra_mas_per_yr, a.pmdec_mas_per_yr - b.pmdec_mas_per_yr);
+    const double difference = std::hypot(pm_difference_ra, pm_difference_dec);
     if (difference > allowed) {
         return std::nullopt;
     }
