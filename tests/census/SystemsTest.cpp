@@ -121,6 +121,29 @@ TEST_CASE("Systems: a bound pair is joined, a chance neighbour with another moti
     CHECK((findSystems(rows, masses, band, SystemSettings{}).flags[2] & SystemFlagHighRuwe) != 0);
 }
 
+TEST_CASE("Systems: the proper-motion test refuses a pair just beyond what it allows, not one just inside") {
+    // The allowed difference is reported with each pair (Systems.h); a pair 0.1% inside it is kept and one
+    // 0.1% beyond is refused, so no shortcut refuses pairs inside the test (exact arithmetic, no source).
+    const auto pairWithDifference = [](double pmra_difference) {
+        std::vector<CatalogRow> rows = {
+            star(10.0, 20.0, 100.0, 300.0, -200.0),
+            star(10.0, 20.0 + 20.0 / 3600.0, 100.02, 300.0 + pmra_difference, -200.0)};
+        const std::vector<double> masses = {0.5, 0.3};
+        const std::vector<std::uint8_t> band = {0, 0};
+        return findSystems(rows, masses, band, SystemSettings{}).pairs;
+    };
+    const auto reference = pairWithDifference(1.0);
+    REQUIRE(reference.size() == 1);
+    const double allowed = reference[0].allowed_proper_motion_difference_mas_per_yr;
+    CHECK(allowed > 10.0); // the escape speed at 200 au dominates (~42 mas/yr at 10 pc)
+    const auto inside = pairWithDifference(0.999 * allowed);
+    REQUIRE(inside.size() == 1);
+    CHECK(inside[0].proper_motion_difference_mas_per_yr == doctest::Approx(0.999 * allowed).epsilon(1e-9));
+    CHECK(pairWithDifference(1.001 * allowed).empty());
+    CHECK(pairWithDifference(-0.999 * allowed).size() == 1);
+    CHECK(pairWithDifference(-1.001 * allowed).empty());
+}
+
 TEST_CASE("Systems: bad settings name their option") {
     SystemSettings settings;
     settings.sky_shift_deg = 2.0; // below the 5 deg search cap
