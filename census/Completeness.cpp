@@ -24,14 +24,14 @@ std::array<double, 2> visibleShellPc(double abs_g_mag, double radius_pc, const M
             std::min(radius_pc, limitingDistancePc(limits.faint_g_mag, abs_g_mag))};
 }
 
-// Kolmogorov-Smirnov statistic sqrt(N) D of distances inside radius_pc against (d / r)^3 uniform, from
-// their cubes (pc^3, sorted): D = max_i max((i + 1) / N - u_i, u_i - i / N) with u_i = d_i^3 / r^3.
-double ksUniformVolume(std::span<const double> cubes_pc3, double radius_pc) {
-    const double n = static_cast<double>(cubes_pc3.size());
+// Kolmogorov-Smirnov statistic sqrt(N) D of the distances inside radius_pc against (d / r)^3 uniform:
+// D = max_i max((i + 1) / N - u_i, u_i - i / N) with u_i = d_i^3 / r^3. `distances` must be sorted.
+double ksUniformVolume(std::span<const double> distances, double radius_pc) {
+    const double n = static_cast<double>(distances.size());
     const double inverse_volume = 1.0 / (radius_pc * radius_pc * radius_pc);
     double d = 0.0;
-    for (std::size_t i = 0; i < cubes_pc3.size(); ++i) {
-        const double u = cubes_pc3[i] * inverse_volume;
+    for (std::size_t i = 0; i < distances.size(); ++i) {
+        const double u = distances[i] * distances[i] * distances[i] * inverse_volume;
         d = std::max({d, (static_cast<double>(i) + 1.0) / n - u, u - static_cast<double>(i) / n});
     }
     return std::sqrt(n) * d;
@@ -155,23 +155,26 @@ VOverVmax vOverVmax(std::span<const SampleStar> stars, const ClassGroup& group, 
 
 double completenessRadiusPc(std::span<const SampleStar> stars, const ClassGroup& group, double radius_pc,
                             const CompletenessSettings& settings) {
+    // Counted first so that the vector is allocated once, at its size (it is one of the largest things alive
+    // in the luminosity analysis, which holds the run's peak memory).
+    const auto counts = [&](const SampleStar& star) {
+        return group.categories.test(star.category) && star.weight >= 0.5 && star.distance_pc <= radius_pc;
+    };
     std::vector<double> distances;
+    distances.reserve(static_cast<std::size_t>(std::count_if(stars.begin(), stars.end(), counts)));
     for (const SampleStar& star : stars) {
-        if (group.categories.test(star.category) && star.weight >= 0.5 && star.distance_pc <= radius_pc) {
+        if (counts(star)) {
             distances.push_back(star.distance_pc);
         }
     }
     std::sort(distances.begin(), distances.end());
-    // The cubes once, not at each of the radius grid's steps (40 by default).
-    std::vector<double> cubes_pc3(distances.size());
-    std::transform(distances.begin(), distances.end(), cubes_pc3.begin(), [](double d) { return d * d * d; });
     double last_consistent = radius_pc / settings.radius_grid_steps;
     for (int step = 1; step <= settings.radius_grid_steps; ++step) {
         const double r = radius_pc * step / settings.radius_grid_steps;
         const auto inside = static_cast<std::size_t>(std::upper_bound(distances.begin(), distances.end(), r) -
                                                      distances.begin());
         if (static_cast<int>(inside) >= settings.min_objects_to_test &&
-            ksUniformVolume(std::span(cubes_pc3).first(inside), r) > settings.ks_critical) {
+            ksUniformVolume(std::span(distances).first(inside), r) > settings.ks_critical) {
             break;
         }
         last_consistent = r;

@@ -58,7 +58,8 @@ void validateCompletenessSettings(const CompletenessSettings& settings);
 struct SampleStar {
     double abs_g_mag = 0.0;
     double distance_pc = 0.0;
-    double weight = 1.0; // membership probability within the radius under study
+    float weight = 1.0f; // membership probability within the radius under study (held as a float, as
+                         // PreparedSample::probabilityWithin gives it: 24 bytes a star)
     photometry::Category category = 0;
 };
 

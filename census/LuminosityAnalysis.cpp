@@ -41,7 +41,7 @@ std::vector<SampleStar> starsWithin(const std::vector<ClassifiedRow>& classified
     stars.reserve(classified.size());
     for (std::size_t s = 0; s < classified.size(); ++s) {
         const ClassifiedRow& row = classified[s];
-        const double weight = sample.probabilityWithin(s, r);
+        const float weight = sample.probabilityWithin(s, r);
         if (std::isfinite(row.abs_g_mag) && std::isfinite(row.distance_pc) && weight > 0.0) {
             stars.push_back({row.abs_g_mag, row.distance_pc, weight, row.category});
         }
