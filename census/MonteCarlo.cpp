@@ -308,22 +308,28 @@ void PreparedSample::requireDrawTables(const char* what) const {
 }
 
 StarClassCounts::StarClassCounts(std::size_t stars, int draws) {
-    if (draws <= std::numeric_limits<std::uint16_t>::max()) {
-        narrow_.assign(stars * photometry::kClassCount, 0);
+    const std::size_t counters = stars * photometry::kClassCount;
+    if (draws <= std::numeric_limits<std::uint8_t>::max()) {
+        narrowest_.assign(counters, 0);
+    } else if (draws <= std::numeric_limits<std::uint16_t>::max()) {
+        narrow_.assign(counters, 0);
     } else {
-        wide_.assign(stars * photometry::kClassCount, 0);
+        wide_.assign(counters, 0);
     }
 }
 
 void StarClassCounts::set(std::size_t star,
                           const std::array<std::uint32_t, photometry::kClassCount>& counts) {
     const auto at = static_cast<std::ptrdiff_t>(star * photometry::kClassCount);
-    if (narrow_.empty()) {
-        std::copy(counts.begin(), counts.end(), wide_.begin() + at);
-    } else {
-        // Each count is at most the number of draws, which the constructor saw fits.
+    // Each count is at most the number of draws, which the constructor saw fits the counters it chose.
+    if (!narrowest_.empty()) {
+        std::transform(counts.begin(), counts.end(), narrowest_.begin() + at,
+                       [](std::uint32_t count) { return static_cast<std::uint8_t>(count); });
+    } else if (!narrow_.empty()) {
         std::transform(counts.begin(), counts.end(), narrow_.begin() + at,
                        [](std::uint32_t count) { return static_cast<std::uint16_t>(count); });
+    } else {
+        std::copy(counts.begin(), counts.end(), wide_.begin() + at);
     }
 }
 
@@ -332,6 +338,7 @@ void StarClassCounts::append(const StarClassCounts& more) {
         *this = more;
         return;
     }
+    narrowest_.insert(narrowest_.end(), more.narrowest_.begin(), more.narrowest_.end());
     narrow_.insert(narrow_.end(), more.narrow_.begin(), more.narrow_.end());
     wide_.insert(wide_.end(), more.wide_.begin(), more.wide_.end());
 }

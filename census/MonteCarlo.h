@@ -135,17 +135,20 @@ class PreparedSample {
     const photometry::ClassGrid* grid_ = nullptr;
 };
 
-/// Per star and class, the draws that gave the star that class: 16-bit counters while the draws fit in them
-/// (at most 65,535 draws: 26 bytes a star), 32-bit beyond.
+/// Per star and class, the draws that gave the star that class, in the narrowest counters the draws fit:
+/// 8-bit up to 255 draws (13 bytes a star), 16-bit up to 65,535 (26 bytes), 32-bit beyond.
 class StarClassCounts {
   public:
     StarClassCounts() = default;
     /// Zeros for `stars` stars of `draws` draws each.
     StarClassCounts(std::size_t stars, int draws);
 
-    bool empty() const { return narrow_.empty() && wide_.empty(); }
+    bool empty() const { return narrowest_.empty() && narrow_.empty() && wide_.empty(); }
     std::uint32_t draws(std::size_t star, photometry::StellarClass c) const {
         const std::size_t at = star * photometry::kClassCount + static_cast<std::size_t>(c);
+        if (!narrowest_.empty()) {
+            return narrowest_[at];
+        }
         return narrow_.empty() ? wide_[at] : narrow_[at];
     }
     /// Star `star`'s counters, one per class in StellarClass order.
@@ -155,6 +158,7 @@ class StarClassCounts {
     bool operator==(const StarClassCounts&) const = default;
 
   private:
+    std::vector<std::uint8_t> narrowest_;
     std::vector<std::uint16_t> narrow_;
     std::vector<std::uint32_t> wide_;
 };

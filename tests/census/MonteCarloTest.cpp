@@ -289,33 +289,36 @@ TEST_CASE("with a parallax S/N above 20, the Monte Carlo gives each object its s
     CHECK(below_half == 0);
 }
 
-TEST_CASE("per-star class counts hold 65,535 draws in 16 bits and more in 32") {
-    // Each star draws from its own stream, so 65,536 draws repeat the 65,535 and add one: per star, the
-    // class counts of the two runs differ by exactly one draw, and each run's counts sum to its draws (a
-    // 16-bit counter would wrap at 65,536).
+TEST_CASE("per-star class counts hold 255 draws in 8 bits, 65,535 in 16 and more in 32") {
+    // Each star draws from its own stream, so N + 1 draws repeat the N and add one: per star, the class
+    // counts of the two runs differ by exactly one draw, and each run's counts sum to its draws (a counter
+    // too narrow would wrap at 256 or 65,536).
     const auto rows = toyStars(12, 5);
     const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
                                         {.min_parallax_snr_to_classify = 0.0}, 1);
     const auto grid = toyGrid();
-    const auto narrow = census::drawSample(sample, grid, {.draws = 65535, .seed = 4, .threads = 2});
-    const auto wide = census::drawSample(sample, grid, {.draws = 65536, .seed = 4, .threads = 2});
-    for (std::size_t s = 0; s < rows.size(); ++s) {
-        CAPTURE(s);
-        std::uint32_t narrow_sum = 0, wide_sum = 0;
-        int classes_one_more = 0, classes_changed = 0;
-        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
-            const auto stellar_class = static_cast<StellarClass>(c);
-            const std::uint32_t before = narrow.star_classes.draws(s, stellar_class);
-            const std::uint32_t after = wide.star_classes.draws(s, stellar_class);
-            narrow_sum += before;
-            wide_sum += after;
-            classes_changed += after != before ? 1 : 0;
-            classes_one_more += after == before + 1 ? 1 : 0;
+    for (const int draws : {255, 65535}) {
+        CAPTURE(draws);
+        const auto narrow = census::drawSample(sample, grid, {.draws = draws, .seed = 4, .threads = 2});
+        const auto wide = census::drawSample(sample, grid, {.draws = draws + 1, .seed = 4, .threads = 2});
+        for (std::size_t s = 0; s < rows.size(); ++s) {
+            CAPTURE(s);
+            std::uint32_t narrow_sum = 0, wide_sum = 0;
+            int classes_one_more = 0, classes_changed = 0;
+            for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+                const auto stellar_class = static_cast<StellarClass>(c);
+                const std::uint32_t before = narrow.star_classes.draws(s, stellar_class);
+                const std::uint32_t after = wide.star_classes.draws(s, stellar_class);
+                narrow_sum += before;
+                wide_sum += after;
+                classes_changed += after != before ? 1 : 0;
+                classes_one_more += after == before + 1 ? 1 : 0;
+            }
+            CHECK(narrow_sum == static_cast<std::uint32_t>(draws));
+            CHECK(wide_sum == static_cast<std::uint32_t>(draws + 1));
+            CHECK(classes_changed == 1);
+            CHECK(classes_one_more == 1);
         }
-        CHECK(narrow_sum == 65535u);
-        CHECK(wide_sum == 65536u);
-        CHECK(classes_changed == 1);
-        CHECK(classes_one_more == 1);
     }
 }
 
