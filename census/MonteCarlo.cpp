@@ -118,7 +118,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                unsigned threads, const photometry::Classifier* classifier,
                                const photometry::ClassGrid* grid)
     : stars_(order.empty() ? rows.size() : order.size()), radii_pc_(std::move(radii_pc)),
-      stream_rows_(order.begin(), order.end()), grid_(grid) {
+      membership_(membership), stream_rows_(order.begin(), order.end()), grid_(grid) {
     const std::size_t n = stars_;
     const std::size_t radii = radii_pc_.size();
     g_mag_.resize(n);
@@ -191,9 +191,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                 table_row_[s] = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
                 tables.gaussians.push_back(*gaussian);
             } else {
-                const auto& quantiles = posterior.distanceModulusQuantiles();
-                table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
-                tables.quantiles.insert(tables.quantiles.end(), quantiles.begin(), quantiles.end());
+                table_row_[s] = static_cast<std::uint32_t>(tables.gridded.size());
+                tables.gridded.push_back({row.parallax_mas, row.parallax_error_mas});
             }
             if (tabulated) {
                 tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
@@ -201,14 +200,15 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
             }
         }
         // Reserve-free growth leaves up to twice the room: give it back.
-        tables.quantiles.shrink_to_fit();
+        tables.gridded.shrink_to_fit();
         tables.gaussians.shrink_to_fit();
         tables.categories.shrink_to_fit();
     });
 }
 
 PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order)
-    : stars_(order.size()), radii_pc_(source.radii_pc_), grid_(source.grid_) {
+    : stars_(order.size()), radii_pc_(source.radii_pc_), membership_(source.membership_),
+      grid_(source.grid_) {
     source.requireDrawTables("selecting stars from a PreparedSample");
     const std::size_t n = order.size();
     const std::size_t radii = radii_pc_.size();
@@ -244,10 +244,8 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
             table_row_[s] = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
             tables.gaussians.push_back(source_tables.gaussians[row & ~kGaussianRow]);
         } else if (row != kNoRow) {
-            table_row_[s] = static_cast<std::uint32_t>(tables.quantiles.size() / kQuantiles);
-            const auto first =
-                source_tables.quantiles.begin() + static_cast<std::ptrdiff_t>(row * kQuantiles);
-            tables.quantiles.insert(tables.quantiles.end(), first, first + kQuantiles);
+            table_row_[s] = static_cast<std::uint32_t>(tables.gridded.size());
+            tables.gridded.push_back(source_tables.gridded[row]);
         }
         if (const std::uint32_t row = source.tabulated_row_[from]; row != kNoRow) {
             tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
@@ -257,7 +255,7 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
         }
     }
     for (BlockTables& tables : block_tables_) {
-        tables.quantiles.shrink_to_fit();
+        tables.gridded.shrink_to_fit();
         tables.gaussians.shrink_to_fit();
         tables.categories.shrink_to_fit();
     }
@@ -296,9 +294,12 @@ const float* PreparedSample::quantileTable(std::size_t s, std::array<float, kQua
     }
     if ((row & kGaussianRow) != 0) {
         tables.gaussians[row & ~kGaussianRow].fillQuantiles(scratch);
-        return scratch.data();
+    } else {
+        const GridPosteriorInputs& inputs = tables.gridded[row];
+        scratch = DistancePosterior(inputs.parallax_mas, inputs.parallax_error_mas, membership_)
+                      .distanceModulusQuantiles();
     }
-    return &tables.quantiles[row * kQuantiles];
+    return scratch.data();
 }
 
 void PreparedSample::requireDrawTables(const char* what) const {
@@ -410,7 +411,7 @@ class SampleDrawer {
                    std::vector<std::uint32_t>& certain_counts, StarClassCounts& star_classes) const {
         const std::size_t radii = sample_.radii_pc_.size();
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
-        std::array<float, PreparedSample::kQuantiles> refilled_quantiles; // a Gaussian-shortcut star's table
+        std::array<float, PreparedSample::kQuantiles> refilled_quantiles; // the star's table
         for (std::size_t s = begin; s < end; ++s) {
             // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
             Xoshiro256 random(settings_.seed, sample_.stream_rows_.empty() ? s : sample_.stream_rows_[s]);

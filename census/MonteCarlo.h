@@ -96,12 +96,13 @@ class PreparedSample {
     // In table_row_: the star's table is its block's gaussians[row & ~kGaussianRow], refilled when drawn
     static constexpr std::uint32_t kGaussianRow = 0x80000000u;
     void requireDrawTables(const char* what) const;
-    /// Star s's quantile table: in its block's tables, or refilled into `scratch` from its Gaussian form;
-    /// nullptr without one.
+    /// Star s's quantile table, filled into `scratch` from its gridded or Gaussian form; nullptr without
+    /// one.
     const float* quantileTable(std::size_t s, std::array<float, kQuantiles>& scratch) const;
     std::size_t stars_ = 0;
     bool draw_tables_released_ = false;
     std::vector<double> radii_pc_;
+    MembershipSettings membership_; // what the gridded posteriors are tabulated again with
     std::vector<float> g_mag_;
     std::vector<float> g_error_mag_;
     std::vector<float> colour_mag_; // BP-RP, NaN if either band is missing
@@ -109,15 +110,19 @@ class PreparedSample {
     std::vector<float> probability_within_; // [star][radius]
     // [star]: the row index whose random stream the star draws from; empty: the star's own index
     std::vector<std::uint32_t> stream_rows_;
-    // Per block of kBlockStars stars (MonteCarlo.cpp), the tables of those of its stars that need them:
-    // quantiles [row][kQuantiles], the distance modulus (mag) at each quantile, for the stars whose draws
-    // can differ and whose posterior is on the grid; gaussians, the same stars' on the Gaussian shortcut,
-    // whose tables the draws refill (24 bytes a star instead of 260: over half the tables of a 100 pc
-    // sample); categories [row][kQuantiles], the exact classifier's category at each distance quantile,
-    // for the stars the (BP-RP, M_G) grid cannot stand for (see the constructor). Kept per block, not
-    // joined, so they are never held twice.
+    // A posterior on the grid, by what makes it: the draws tabulate it again from these (16 bytes a star
+    // instead of its 260-byte quantile table; the same arithmetic, so the same table).
+    struct GridPosteriorInputs {
+        double parallax_mas, parallax_error_mas; // the catalogue values
+    };
+    // Per block of kBlockStars stars (MonteCarlo.cpp), the tables of those of its stars that need them,
+    // for the stars whose draws can differ: gridded, the posteriors on the grid; gaussians, those on the
+    // Gaussian shortcut (24 bytes a star); the draws refill each star's distance-modulus quantile table
+    // from either. categories [row][kQuantiles], the exact classifier's category at each distance
+    // quantile, for the stars the (BP-RP, M_G) grid cannot stand for (see the constructor). Kept per
+    // block, not joined, so they are never held twice.
     struct BlockTables {
-        std::vector<float> quantiles;
+        std::vector<GridPosteriorInputs> gridded;
         std::vector<DistancePosterior::GaussianForm> gaussians;
         std::vector<photometry::Category> categories;
     };
