@@ -12,51 +12,73 @@ namespace {
 
 constexpr double kInfinity = std::numeric_limits<double>::infinity();
 
-struct ClassifiedRow {
-    double abs_g_mag;
-    double distance_pc;
-    photometry::Category category;
-    bool beyond_faint_limit; // no G, or fainter than the faint limit: found by another catalogue
+/// Every row as the luminosity analysis reads it: its absolute magnitude, distance and category (the
+/// weight is set per radius), and whether it lies beyond the faint limit (no G, or fainter: found by
+/// another catalogue).
+struct ClassifiedRows {
+    std::vector<SampleStar> stars;
+    std::vector<bool> beyond_faint_limit;
 };
 
-std::vector<ClassifiedRow> classifyRows(std::span<const photometry::CatalogRow> rows,
-                                        const photometry::Classifier& classifier,
-                                        const CensusSettings& census, double faint_limit_g_mag) {
-    std::vector<ClassifiedRow> classified;
-    classified.reserve(rows.size());
+ClassifiedRows classifyRows(std::span<const photometry::CatalogRow> rows,
+                            const photometry::Classifier& classifier, const CensusSettings& census,
+                            double faint_limit_g_mag) {
+    ClassifiedRows classified;
+    classified.stars.reserve(rows.size());
+    classified.beyond_faint_limit.reserve(rows.size());
     const double zero_point = census.membership.parallax_zero_point_mas;
     const RowClassRules rules = rowClassRules(census);
     for (const auto& row : rows) {
         const double parallax_mas = row.parallax_mas - zero_point;
         const photometry::Classification result = classifyRow(row, classifier, rules);
-        classified.push_back({result.abs_g_mag, parallax_mas > 0.0 ? 1000.0 / parallax_mas : kInfinity,
-                              photometry::censusCategory(result), !(row.g_mag <= faint_limit_g_mag)});
+        classified.stars.push_back({result.abs_g_mag, parallax_mas > 0.0 ? 1000.0 / parallax_mas : kInfinity,
+                                    1.0f, photometry::censusCategory(result)});
+        classified.beyond_faint_limit.push_back(!(row.g_mag <= faint_limit_g_mag));
     }
     return classified;
 }
 
-std::vector<SampleStar> starsWithin(const std::vector<ClassifiedRow>& classified,
-                                    const PreparedSample& sample, std::size_t r) {
+/// Whether star s of the sample counts within radii()[r], and its weight there.
+bool weighWithin(SampleStar& star, const PreparedSample& sample, std::size_t s, std::size_t r) {
+    star.weight = sample.probabilityWithin(s, r);
+    return std::isfinite(star.abs_g_mag) && std::isfinite(star.distance_pc) && star.weight > 0.0;
+}
+
+std::vector<SampleStar> starsWithin(const ClassifiedRows& classified, const PreparedSample& sample,
+                                    std::size_t r) {
     std::vector<SampleStar> stars;
-    stars.reserve(classified.size());
-    for (std::size_t s = 0; s < classified.size(); ++s) {
-        const ClassifiedRow& row = classified[s];
-        const float weight = sample.probabilityWithin(s, r);
-        if (std::isfinite(row.abs_g_mag) && std::isfinite(row.distance_pc) && weight > 0.0) {
-            stars.push_back({row.abs_g_mag, row.distance_pc, weight, row.category});
+    stars.reserve(classified.stars.size());
+    for (std::size_t s = 0; s < classified.stars.size(); ++s) {
+        SampleStar star = classified.stars[s];
+        if (weighWithin(star, sample, s, r)) {
+            stars.push_back(star);
         }
     }
     return stars;
 }
 
+/// starsWithin at radius r made of the classified rows themselves, which it uses up: the luminosity
+/// function's stars without a second array of every row (24 bytes a candidate).
+std::vector<SampleStar> takeStarsWithin(ClassifiedRows&& classified, const PreparedSample& sample,
+                                        std::size_t r) {
+    std::vector<SampleStar> stars = std::move(classified.stars);
+    std::size_t kept = 0;
+    for (std::size_t s = 0; s < stars.size(); ++s) {
+        if (weighWithin(stars[s], sample, s, r)) {
+            stars[kept++] = stars[s];
+        }
+    }
+    stars.resize(kept);
+    return stars;
+}
+
 // Per radius, the members beyond the faint limit by category (CompletenessCorrection.h).
-MembersBeyondLimits membersBeyondLimits(const std::vector<ClassifiedRow>& classified,
-                                        const PreparedSample& sample) {
+MembersBeyondLimits membersBeyondLimits(const ClassifiedRows& classified, const PreparedSample& sample) {
     MembersBeyondLimits beyond(sample.radii().size());
-    for (std::size_t s = 0; s < classified.size(); ++s) {
-        if (classified[s].beyond_faint_limit) {
+    for (std::size_t s = 0; s < classified.stars.size(); ++s) {
+        if (classified.beyond_faint_limit[s]) {
             for (std::size_t r = 0; r < beyond.size(); ++r) {
-                beyond[r][classified[s].category] += sample.probabilityWithin(s, r);
+                beyond[r][classified.stars[s].category] += sample.probabilityWithin(s, r);
             }
         }
     }
@@ -86,19 +108,18 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
     }
     const photometry::ModelPhotometry& models = photometry::shippedModelPhotometry();
     const auto ranges = categoryAbsGRanges(models, completeness);
-    std::vector<ClassifiedRow> classified =
-        classifyRows(rows, classifier, census, analysis.limits.faint_g_mag);
+    ClassifiedRows classified = classifyRows(rows, classifier, census, analysis.limits.faint_g_mag);
     const std::vector<double>& radii = census.radii_pc;
-    std::vector<SampleStar> stars;
-    for (std::size_t r = 0; r < radii.size(); ++r) {
-        stars = starsWithin(classified, sample, r);
-        analysis.completeness.push_back(
-            assessCompleteness(stars, radii[r], census.groups, analysis.limits, ranges, completeness));
+    const MembersBeyondLimits beyond = membersBeyondLimits(classified, sample); // for the correction
+    const std::size_t last = radii.size() - 1;
+    for (std::size_t r = 0; r < last; ++r) {
+        analysis.completeness.push_back(assessCompleteness(starsWithin(classified, sample, r), radii[r],
+                                                           census.groups, analysis.limits, ranges,
+                                                           completeness));
     }
-    // What the correction reads of the classified rows; the rows themselves (24 bytes a candidate) are
-    // let go before the luminosity function makes its own copy of the members.
-    const MembersBeyondLimits beyond = membersBeyondLimits(classified, sample);
-    std::vector<ClassifiedRow>().swap(classified);
+    const std::vector<SampleStar> stars = takeStarsWithin(std::move(classified), sample, last);
+    analysis.completeness.push_back(
+        assessCompleteness(stars, radii[last], census.groups, analysis.limits, ranges, completeness));
     // The luminosity function and its fits at the largest radius (`stars` holds its weights).
     analysis.lf_radius_pc = radii.back();
     analysis.complete_abs_g_mag =

@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <span>
 
 namespace starcensus::census {
 
@@ -36,12 +37,13 @@ std::vector<LfBin> estimateLuminosityFunction(std::span<const SampleStar> stars,
     std::vector<LfBin> table;
     for (std::size_t p = 0; p < kLfPopulationNames.size(); ++p) {
         const auto population = static_cast<LfPopulation>(p);
-        // Bin index = floor(M / width): per bin the summed weights and summed weight / V_max.
-        struct Member {
-            double v_max_pc3, abs_g_mag, weight;
-        };
-        std::vector<Member> members;
-        members.reserve(stars.size());
+        // Bin index = floor(M / width): per bin the summed weights and summed weight / V_max, over the
+        // bins the settings' M_G range can hold (summed in star order, one pass, no copy of the members);
+        // the table keeps those from the brightest to the faintest member.
+        const auto range_first = static_cast<long>(std::floor(settings.abs_g_min_mag / width));
+        const auto range_count = static_cast<std::size_t>(
+            static_cast<long>(std::floor(settings.abs_g_max_mag / width)) - range_first + 1);
+        std::vector<double> range_weights(range_count, 0.0), range_density(range_count, 0.0);
         double lowest = std::numeric_limits<double>::infinity();
         double highest = -lowest;
         for (const SampleStar& star : stars) {
@@ -52,24 +54,24 @@ std::vector<LfBin> estimateLuminosityFunction(std::span<const SampleStar> stars,
             }
             const double v_max = effectiveVolumePc3(star.abs_g_mag, radius_pc, limits);
             if (v_max > 0.0) {
-                members.push_back({v_max, star.abs_g_mag, star.weight});
+                const double weight = star.weight;
+                const auto bin = static_cast<std::size_t>(
+                    static_cast<long>(std::floor(star.abs_g_mag / width)) - range_first);
+                range_weights[bin] += weight;
+                range_density[bin] += weight / v_max;
                 lowest = std::min(lowest, star.abs_g_mag);
                 highest = std::max(highest, star.abs_g_mag);
             }
         }
-        if (members.empty()) {
-            continue;
+        if (!(lowest <= highest)) {
+            continue; // no member
         }
         const auto first = static_cast<long>(std::floor(lowest / width));
         const auto count =
             static_cast<std::size_t>(static_cast<long>(std::floor(highest / width)) - first + 1);
-        std::vector<double> weights(count, 0.0), weighted_density(count, 0.0);
-        for (const Member& member : members) {
-            const auto bin =
-                static_cast<std::size_t>(static_cast<long>(std::floor(member.abs_g_mag / width)) - first);
-            weights[bin] += member.weight;
-            weighted_density[bin] += member.weight / member.v_max_pc3;
-        }
+        const auto offset = static_cast<std::ptrdiff_t>(first - range_first);
+        const std::span<const double> weights(range_weights.data() + offset, count);
+        const std::span<const double> weighted_density(range_density.data() + offset, count);
         for (std::size_t b = 0; b < count; ++b) {
             LfBin bin;
             bin.population = population;
