@@ -3,6 +3,7 @@
 // NaN (floating point) or kMissingSourceId.
 #include "photometry/StellarClass.h"
 
+#include <cstddef>
 #include <cstdint>
 #include <limits>
 
@@ -20,11 +21,19 @@ inline constexpr double kMissing = std::numeric_limits<double>::quiet_NaN();
 
 inline constexpr float kMissingFloat = std::numeric_limits<float>::quiet_NaN();
 
+/// A row's input file (0-based, in the order given) and its 0-based row in that file's table, in the
+/// widths that keep CatalogRow at 168 bytes: the scans refuse more files, or longer tables, than these
+/// hold (Gaia DR3's whole gaia_source, 1.8 billion rows, fits one table; from memory).
+using FileIndex = std::uint16_t;
+using RowIndex = std::uint32_t;
+inline constexpr std::size_t kMaxInputFiles = std::size_t{std::numeric_limits<FileIndex>::max()} + 1;
+inline constexpr std::int64_t kMaxTableRows = std::int64_t{std::numeric_limits<RowIndex>::max()} + 1;
+
 // Astrometry (position, parallax and its error, proper motion) and the Gaia band errors, which the readers
 // derive from flux-over-error ratios, are doubles. The magnitudes, their other errors, RUWE and the
 // literature fields are floats: the precision the archives publish them in (Gaia DR3, 2MASS and AllWISE
 // store them as 4-byte floats, from memory; rounding is at most 2^-24 relative, about 1 micro-mag at 16
-// mag, far below any photometric error), so a float column is held exactly and a row takes 176 bytes instead
+// mag, far below any photometric error), so a float column is held exactly and a row takes 168 bytes instead
 // of 256, on the census's largest table (one row per candidate).
 struct CatalogRow {
     std::int64_t source_id = kMissingSourceId;
@@ -65,11 +74,12 @@ struct CatalogRow {
     // literature_class is Unclassified unless Parsed, Evolved for luminosity classes I-IV (a range such as
     // "G8IV-V" is read as V), otherwise the type's letter or WD.
     float literature_code = kMissingFloat;
-    std::uint32_t file_index = 0; // which input file the row came from
+    RowIndex row_index = 0;   // 0-based row within that file's table
+    FileIndex file_index = 0; // which input file the row came from
     StellarClass literature_class = StellarClass::Unclassified;
     LiteratureTypeStatus literature_status = LiteratureTypeStatus::Absent;
-    std::int64_t row_index = 0; // 0-based row within that file's table
 };
+static_assert(sizeof(CatalogRow) == 168, "CatalogRow's member order packs it into 168 bytes");
 
 /// A floating-point member of CatalogRow, of either width, read and written as a double (a float member
 /// stores the nearest float). Empty for the fields that are not numbers (source_id, spectral_type).

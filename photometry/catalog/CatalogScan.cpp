@@ -1,6 +1,7 @@
 #include "photometry/catalog/CatalogScan.h"
 
 #include "photometry/SpectralType.h"
+#include "photometry/base/InputError.h"
 #include "photometry/base/Threads.h"
 #include "photometry/catalog/CatalogScanDetail.h"
 #include "photometry/catalog/CsvCatalog.h"
@@ -199,7 +200,22 @@ unsigned scanThreads(const ScanSettings& settings) {
     return fits_is_reentrant() == 0 ? 1 : resolveThreadCount(settings.threads);
 }
 
-FileScanResult scanFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+void requireInputFileCount(std::size_t files) {
+    if (files > kMaxInputFiles) {
+        throw InputError(std::to_string(files) + " input files: at most " + std::to_string(kMaxInputFiles) +
+                         " in one run (join some of them first)");
+    }
+}
+
+RowIndex tableRowIndex(const std::string& path, std::int64_t row) {
+    if (row >= kMaxTableRows) {
+        throw InputError(path + ": more than " + std::to_string(kMaxTableRows) +
+                         " rows in one table (split it into several files)");
+    }
+    return static_cast<RowIndex>(row);
+}
+
+FileScanResult scanFile(const std::string& path, FileIndex file_index, const ScanSettings& settings,
                         unsigned threads, RowShare share) {
     if (isCsvPath(path) || isVoTablePath(path)) {
         if (share.part > 0) { // read whole by part 0 (RowShare)
@@ -232,6 +248,7 @@ CatalogScan assembleScan(std::vector<FileScanResult>&& files) {
 } // namespace detail
 
 CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettings& settings) {
+    detail::requireInputFileCount(paths.size());
     std::vector<detail::FileScanResult> results(paths.size());
     const unsigned threads = detail::scanThreads(settings);
     const unsigned file_threads =
@@ -243,7 +260,7 @@ CatalogScan scanCatalogs(const std::vector<std::string>& paths, const ScanSettin
     // Files are claimed in order; the error of the first failing file in `paths` is the one thrown.
     forEachIndex(paths.size(), file_threads, [&](std::size_t index) {
         results[index] =
-            detail::scanFile(paths[index], static_cast<std::uint32_t>(index), settings, threads_per_file, {});
+            detail::scanFile(paths[index], static_cast<FileIndex>(index), settings, threads_per_file, {});
         if (settings.progress != nullptr) {
             ++settings.progress->parts_done;
         }

@@ -125,8 +125,15 @@ unsigned scanThreads(const ScanSettings& settings);
 
 /// Scans the rows `share` selects of one file with the reader its name claims (CSV/ECSV, VOTable, else
 /// FITS); rows get `file_index`.
-FileScanResult scanFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+FileScanResult scanFile(const std::string& path, FileIndex file_index, const ScanSettings& settings,
                         unsigned threads, RowShare share);
+
+/// Throws InputError when a run is given more input files than CatalogRow::file_index holds.
+void requireInputFileCount(std::size_t files);
+
+/// Row `row` (0-based) of the table in `path` as a CatalogRow::row_index; throws InputError for a
+/// table longer than it holds.
+RowIndex tableRowIndex(const std::string& path, std::int64_t row);
 
 /// The scan of whole files, in the order given: candidates concatenated, counts summed.
 CatalogScan assembleScan(std::vector<FileScanResult>&& files);

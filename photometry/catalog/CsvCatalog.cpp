@@ -254,7 +254,7 @@ bool isCsvPath(const std::string& path) {
 
 namespace detail {
 
-FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings) {
+FileScanResult scanCsvFile(const std::string& path, FileIndex file_index, const ScanSettings& settings) {
     CsvLines lines(path);
     FileScanResult result;
     FileScanReport& report = result.report;
@@ -284,7 +284,7 @@ FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, co
         lines.split(fields, columns.size());
         CatalogRow row;
         row.file_index = file_index;
-        row.row_index = report.rows++;
+        row.row_index = detail::tableRowIndex(path, report.rows++);
         for (const auto& field : mapped) {
             const std::string_view text = trimmed(fields[field.position]);
             if (isMissing(text, lines.isEcsv())) {

@@ -22,7 +22,7 @@ bool isCsvPath(const std::string& path);
 
 namespace detail {
 /// Scans one CSV file (see CatalogScan.h); rows get `file_index` and their 0-based data-row index.
-FileScanResult scanCsvFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings);
+FileScanResult scanCsvFile(const std::string& path, FileIndex file_index, const ScanSettings& settings);
 /// Profiles every column of a CSV file (see ColumnProfile.h).
 TableProfile profileCsvTable(const std::string& path);
 } // namespace detail

@@ -223,6 +223,7 @@ CatalogScan scanCatalogsAcross(ProcessGroup& group, const std::vector<std::strin
     if (group.size() == 1) {
         return scanCatalogs(paths, settings);
     }
+    detail::requireInputFileCount(paths.size());
     const std::vector<ScanUnit> units = planUnits(paths, group.size());
     std::vector<std::size_t> mine;
     for (std::size_t u = 0; u < units.size(); ++u) {
@@ -239,7 +240,7 @@ CatalogScan scanCatalogsAcross(ProcessGroup& group, const std::vector<std::strin
     forEachIndex(mine.size(), part_threads, [&](std::size_t k) {
         const ScanUnit& unit = units[mine[k]];
         try {
-            outcomes[k].result = detail::scanFile(paths[unit.file], static_cast<std::uint32_t>(unit.file),
+            outcomes[k].result = detail::scanFile(paths[unit.file], static_cast<FileIndex>(unit.file),
                                                   settings, std::max(1U, threads / part_threads), unit.share);
         } catch (const InputError& error) {
             outcomes[k] = {PartStatus::InputFailure, error.what(), {}};

@@ -1090,7 +1090,7 @@ std::int64_t decodeColumn(const MappedField& field, const unsigned char* raw, st
 /// What every thread scanning a file shares: the table layout and the decoding plan.
 struct TablePlan {
     std::string where; // "path [HDU n NAME]", for errors
-    std::uint32_t file_index = 0;
+    FileIndex file_index = 0;
     std::size_t row_bytes = 0;
     std::vector<MappedField> fields;
     std::optional<FieldDecoder> source_id;
@@ -1168,7 +1168,7 @@ void scanRows(const TablePlan& plan, const ReadRows& read, LONGLONG first, LONGL
                 const unsigned char* at = slice_raw + r * row_bytes;
                 CatalogRow row;
                 row.file_index = plan.file_index;
-                row.row_index = block_first + static_cast<LONGLONG>(slice_first + r);
+                row.row_index = static_cast<RowIndex>(block_first + static_cast<LONGLONG>(slice_first + r));
                 if (plan.source_id) {
                     row.source_id = plan.source_id->identifier(at);
                 }
@@ -1348,7 +1348,7 @@ TableProfile profileFitsTable(const std::string& path, const std::string& hdu) {
     return profile;
 }
 
-FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+FileScanResult scanFitsFile(const std::string& path, FileIndex file_index, const ScanSettings& settings,
                             unsigned threads, RowShare share) {
     OpenedFits opened(path, settings.hdu);
     const Storage storage = opened.storage;
@@ -1402,6 +1402,9 @@ FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, c
     fits_get_num_rowsll(file.get(), &rows, &status);
     file.check(status, "cannot read the number of rows");
     report.rows = rows;
+    if (rows > 0) {
+        detail::tableRowIndex(path, rows - 1); // every row's index fits CatalogRow::row_index
+    }
     plan.row_bytes = columns.empty() ? 0 : columns.back().offset + columns.back().bytes;
     LONGLONG data_start = 0;
     LONGLONG data_end = 0;

@@ -37,7 +37,7 @@ namespace detail {
 TableProfile profileFitsTable(const std::string& path, const std::string& hdu);
 /// Scans one FITS file (see CatalogScan.h), or the rows of it `share` selects, with up to `threads`
 /// threads; rows get `file_index`. The whole-file warnings are added only when `share` is the whole file.
-FileScanResult scanFitsFile(const std::string& path, std::uint32_t file_index, const ScanSettings& settings,
+FileScanResult scanFitsFile(const std::string& path, FileIndex file_index, const ScanSettings& settings,
                             unsigned threads, RowShare share = {});
 } // namespace detail
 

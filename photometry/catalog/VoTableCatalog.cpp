@@ -529,8 +529,7 @@ bool isVoTablePath(const std::string& path) {
 
 namespace detail {
 
-FileScanResult scanVoTableFile(const std::string& path, std::uint32_t file_index,
-                               const ScanSettings& settings) {
+FileScanResult scanVoTableFile(const std::string& path, FileIndex file_index, const ScanSettings& settings) {
     FileScanResult result;
     FileScanReport& report = result.report;
     report.path = path;
@@ -554,7 +553,7 @@ FileScanResult scanVoTableFile(const std::string& path, std::uint32_t file_index
     const auto on_row = [&](const std::vector<Cell>& cells) {
         CatalogRow row;
         row.file_index = file_index;
-        row.row_index = report.rows++;
+        row.row_index = detail::tableRowIndex(path, report.rows++);
         for (const ResolvedColumn* column : mapped) {
             const Cell& cell = cells[column->column_index];
             if (cell.kind == Cell::Kind::Null) {

@@ -19,8 +19,7 @@ bool isVoTablePath(const std::string& path);
 
 namespace detail {
 /// Scans one VOTable file (see CatalogScan.h); rows get `file_index` and their 0-based row index.
-FileScanResult scanVoTableFile(const std::string& path, std::uint32_t file_index,
-                               const ScanSettings& settings);
+FileScanResult scanVoTableFile(const std::string& path, FileIndex file_index, const ScanSettings& settings);
 /// Profiles every column of the file's first TABLE (see ColumnProfile.h).
 TableProfile profileVoTable(const std::string& path);
 } // namespace detail

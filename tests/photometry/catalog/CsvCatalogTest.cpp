@@ -1,6 +1,8 @@
 #include "FitsFixture.h"
 
+#include "photometry/base/InputError.h"
 #include "photometry/catalog/CatalogScan.h"
+#include "photometry/catalog/CatalogScanDetail.h"
 #include "photometry/catalog/CsvCatalog.h"
 
 #include <doctest/doctest.h>
@@ -170,4 +172,16 @@ TEST_CASE("CSV lines across inflated blocks: plain and gzip give every row, a NU
     const std::string binary = directory.file("nul.csv");
     writeText(binary, std::string("parallax,parallax_error\n1,0.1\n2,0.") + '\0' + "1\n");
     CHECK(scanError(binary, settings) == binary + " line 3: a NUL byte (binary data, not text)");
+}
+
+TEST_CASE("row and file indices beyond CatalogRow's widths are refused with the file named") {
+    // CatalogRow holds file_index in 16 bits and row_index in 32 (CatalogRow.h).
+    CHECK(detail::tableRowIndex("big.csv", kMaxTableRows - 1) == 4294967295u);
+    CHECK_THROWS_WITH_AS(detail::tableRowIndex("big.csv", kMaxTableRows),
+                         "big.csv: more than 4294967296 rows in one table (split it into several files)",
+                         starcensus::InputError);
+    CHECK_NOTHROW(detail::requireInputFileCount(65536));
+    CHECK_THROWS_WITH_AS(detail::requireInputFileCount(65537),
+                         "65537 input files: at most 65536 in one run (join some of them first)",
+                         starcensus::InputError);
 }
