@@ -381,10 +381,13 @@ void MockGenerator::addObject(Component primary, Component companion, const Plac
     row.g_mag = g_obs;
     row.g_error_mag = gMagErrorMag(g_obs);
     if (random.uniform() >= bpRpLossProbability(g_obs, s.bp_rp_loss_start_g_mag, s.bp_rp_loss_end_g_mag)) {
-        row.bp_error_mag = bpMagErrorMag(g_obs);
-        row.rp_error_mag = rpMagErrorMag(g_obs);
-        row.bp_mag = observeMagnitude(abs.bp + modulus, row.bp_error_mag, random);
-        row.rp_mag = observeMagnitude(abs.rp + modulus, row.rp_error_mag, random);
+        // The draws use the unrounded errors, as the magnitudes' (CatalogRow holds floats).
+        const double bp_error_mag = bpMagErrorMag(g_obs);
+        const double rp_error_mag = rpMagErrorMag(g_obs);
+        row.bp_error_mag = bp_error_mag;
+        row.rp_error_mag = rp_error_mag;
+        row.bp_mag = observeMagnitude(abs.bp + modulus, bp_error_mag, random);
+        row.rp_mag = observeMagnitude(abs.rp + modulus, rp_error_mag, random);
         if (std::isnan(row.bp_mag)) {
             row.bp_error_mag = kNaN;
         }

@@ -84,10 +84,10 @@ TEST_CASE("each quantity with an error comes, with its error, from the row that 
     const CatalogRow first{.ra_deg = 10.0,
                            .dec_deg = 20.0,
                            .parallax_mas = 100.0,
+                           .parallax_error_mas = 0.5,
                            .pmra_mas_per_yr = 10.0,
                            .g_error_mag = 0.01,
                            .rp_error_mag = 0.02,
-                           .parallax_error_mas = 0.5,
                            .g_mag = 12.0,
                            .bp_mag = 13.0,
                            .rp_mag = 11.0,
@@ -99,10 +99,10 @@ TEST_CASE("each quantity with an error comes, with its error, from the row that 
                             .ra_deg = nearby.ra_deg,
                             .dec_deg = nearby.dec_deg,
                             .parallax_mas = 100.2,
+                            .parallax_error_mas = 0.1,
                             .pmra_mas_per_yr = 11.0,
                             .g_error_mag = 0.03,
                             .bp_error_mag = 0.05,
-                            .parallax_error_mas = 0.1,
                             .g_mag = 12.1,
                             .bp_mag = 13.2,
                             .rp_mag = 11.1,
@@ -126,9 +126,9 @@ TEST_CASE("each quantity with an error comes, with its error, from the row that 
     CHECK(row.pmra_mas_per_yr == 11.0);
     CHECK(row.ruwe == 1.3f);
     CHECK(row.g_mag == 12.0);
-    CHECK(row.g_error_mag == 0.01);
+    CHECK(row.g_error_mag == 0.01f);
     CHECK(row.bp_mag == 13.2f);
-    CHECK(row.bp_error_mag == 0.05);
+    CHECK(row.bp_error_mag == 0.05f);
     CHECK(row.rp_mag == 11.0); // the later RP has no error: the earlier one with an error stays
     CHECK(row.h_mag == 8.5);   // equal errors: the earlier row
     CHECK(row.j_mag == 9.0);
