@@ -20,8 +20,9 @@ namespace {
 const photometry::Category kUnclassified =
     photometry::categoryOf(photometry::StellarClass::Unclassified, 0.0);
 
-// Stars per random stream and per unit of work handed to a thread.
-constexpr std::size_t kBlockStars = 256;
+// Stars per random stream and per unit of work handed to a thread; one thread sets a block's class
+// counts, as StarClassCounts requires.
+constexpr std::size_t kBlockStars = StarClassCounts::kChunkStars;
 
 /// Runs body(begin, end, worker) over [0, count) in blocks of kBlockStars stars, the project's thread
 /// loop handing out the blocks.
@@ -121,14 +122,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
       membership_(membership), stream_rows_(order.begin(), order.end()), grid_(grid) {
     const std::size_t n = stars_;
     const std::size_t radii = radii_pc_.size();
-    g_mag_.resize(n);
-    g_error_mag_.resize(n);
-    colour_mag_.resize(n);
-    colour_error_mag_.resize(n);
     probability_within_.resize(n * radii);
-    fixed_categories_.assign(n, kDrawnCategory);
-    table_row_.assign(n, kNoRow);
-    tabulated_row_.assign(n, kNoRow);
+    drawn_row_.assign(n, kNoRow);
     if (grid != nullptr) {
         certain_categories_.assign(n, kDrawnCategory);
     }
@@ -141,19 +136,19 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
             const photometry::CatalogRow& row = order.empty() ? rows[s] : rows[order[s]];
             const bool classifiable =
                 row.parallax_mas >= rules.min_parallax_snr_to_classify * row.parallax_error_mas;
+            DrawnStar star{};
+            star.fixed = kDrawnCategory;
             if (classifier != nullptr && usesLiteratureType(row, rules)) {
-                fixed_categories_[s] = photometry::censusCategory(classifyRow(row, *classifier, rules));
+                star.fixed = photometry::censusCategory(classifyRow(row, *classifier, rules));
             } else if (!classifiable) {
-                fixed_categories_[s] =
-                    photometry::unclassifiedCategory(photometry::UnclassifiedReason::LowParallaxSnr);
+                star.fixed = photometry::unclassifiedCategory(photometry::UnclassifiedReason::LowParallaxSnr);
             } else if (!photometry::hasClassifiableBands(photometry::photometricInput(row))) {
-                fixed_categories_[s] =
-                    photometry::unclassifiedCategory(photometry::UnclassifiedReason::NoPhotometry);
+                star.fixed = photometry::unclassifiedCategory(photometry::UnclassifiedReason::NoPhotometry);
             }
-            g_mag_[s] = static_cast<float>(row.g_mag);
-            g_error_mag_[s] = finiteOrZero(row.g_error_mag);
-            colour_mag_[s] = static_cast<float>(row.bp_mag - row.rp_mag);
-            colour_error_mag_[s] =
+            star.g_mag = static_cast<float>(row.g_mag);
+            star.g_error_mag = finiteOrZero(row.g_error_mag);
+            star.colour_mag = static_cast<float>(row.bp_mag - row.rp_mag);
+            star.colour_error_mag =
                 quadratureSum(finiteOrZero(row.bp_error_mag), finiteOrZero(row.rp_error_mag));
             // The quantile table only where it is read: a star whose every draw is known keeps none.
             DistancePosterior posterior(row.parallax_mas, row.parallax_error_mas, membership,
@@ -163,8 +158,8 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                 within[r] = static_cast<float>(posterior.probabilityWithin(radii_pc_[r]));
             }
             const bool tabulated =
-                classifier != nullptr && fixed_categories_[s] == kDrawnCategory &&
-                (std::isnan(colour_mag_[s]) || misnamedByGrid(row, *classifier, grid, rules));
+                classifier != nullptr && star.fixed == kDrawnCategory &&
+                (std::isnan(star.colour_mag) || misnamedByGrid(row, *classifier, grid, rules));
             if (tabulated) {
                 posterior.tabulateQuantiles();
                 // The row's bands as sample.fits uses them (photometricInput), at each distance.
@@ -172,34 +167,38 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                                posterior.distanceModulusQuantiles(), categories);
             }
             if (grid != nullptr) {
-                const StarDrawInputs star{posterior.nearestModulus(),
-                                          posterior.farthestModulus(),
-                                          within,
-                                          radii,
-                                          tabulated ? categories.data() : nullptr,
-                                          fixed_categories_[s],
-                                          g_mag_[s],
-                                          g_error_mag_[s],
-                                          colour_mag_[s],
-                                          colour_error_mag_[s]};
-                if (const auto category = certainCategory(star, *grid, largest_deviate)) {
+                const StarDrawInputs inputs{posterior.nearestModulus(),
+                                            posterior.farthestModulus(),
+                                            within,
+                                            radii,
+                                            tabulated ? categories.data() : nullptr,
+                                            star.fixed,
+                                            star.g_mag,
+                                            star.g_error_mag,
+                                            star.colour_mag,
+                                            star.colour_error_mag};
+                if (const auto category = certainCategory(inputs, *grid, largest_deviate)) {
                     certain_categories_[s] = *category;
                     continue; // every draw is known: no tables
                 }
             }
             if (const auto gaussian = posterior.gaussianForm()) {
-                table_row_[s] = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
+                star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
                 tables.gaussians.push_back(*gaussian);
             } else {
-                table_row_[s] = static_cast<std::uint32_t>(tables.gridded.size());
+                star.posterior = static_cast<std::uint32_t>(tables.gridded.size());
                 tables.gridded.push_back({row.parallax_mas, row.parallax_error_mas});
             }
+            star.categories = kNoRow;
             if (tabulated) {
-                tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
+                star.categories = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
                 tables.categories.insert(tables.categories.end(), categories.begin(), categories.end());
             }
+            drawn_row_[s] = static_cast<std::uint32_t>(tables.drawn.size());
+            tables.drawn.push_back(star);
         }
         // Reserve-free growth leaves up to twice the room: give it back.
+        tables.drawn.shrink_to_fit();
         tables.gridded.shrink_to_fit();
         tables.gaussians.shrink_to_fit();
         tables.categories.shrink_to_fit();
@@ -212,49 +211,50 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
     source.requireDrawTables("selecting stars from a PreparedSample");
     const std::size_t n = order.size();
     const std::size_t radii = radii_pc_.size();
-    const auto select = [&](const auto& from, auto& to) {
-        to.resize(n);
-        for (std::size_t s = 0; s < n; ++s) {
-            to[s] = from[order[s]];
-        }
-    };
-    select(source.g_mag_, g_mag_);
-    select(source.g_error_mag_, g_error_mag_);
-    select(source.colour_mag_, colour_mag_);
-    select(source.colour_error_mag_, colour_error_mag_);
-    select(source.fixed_categories_, fixed_categories_);
     if (source.stream_rows_.empty()) {
         stream_rows_.assign(order.begin(), order.end());
     } else {
-        select(source.stream_rows_, stream_rows_);
+        stream_rows_.resize(n);
+        for (std::size_t s = 0; s < n; ++s) {
+            stream_rows_[s] = source.stream_rows_[order[s]];
+        }
     }
     if (!source.certain_categories_.empty()) {
-        select(source.certain_categories_, certain_categories_);
+        certain_categories_.resize(n);
+        for (std::size_t s = 0; s < n; ++s) {
+            certain_categories_[s] = source.certain_categories_[order[s]];
+        }
     }
     probability_within_.resize(n * radii);
-    table_row_.assign(n, kNoRow);
-    tabulated_row_.assign(n, kNoRow);
+    drawn_row_.assign(n, kNoRow);
     block_tables_.resize((n + kBlockStars - 1) / kBlockStars);
     for (std::size_t s = 0; s < n; ++s) {
         const std::size_t from = order[s];
         std::copy_n(&source.probability_within_[from * radii], radii, &probability_within_[s * radii]);
+        if (source.drawn_row_[from] == kNoRow) {
+            continue;
+        }
         const BlockTables& source_tables = source.block_tables_[from / kBlockStars];
         BlockTables& tables = block_tables_[s / kBlockStars];
-        if (const std::uint32_t row = source.table_row_[from]; row != kNoRow && (row & kGaussianRow) != 0) {
-            table_row_[s] = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
-            tables.gaussians.push_back(source_tables.gaussians[row & ~kGaussianRow]);
-        } else if (row != kNoRow) {
-            table_row_[s] = static_cast<std::uint32_t>(tables.gridded.size());
-            tables.gridded.push_back(source_tables.gridded[row]);
+        DrawnStar star = source_tables.drawn[source.drawn_row_[from]];
+        if ((star.posterior & kGaussianRow) != 0) {
+            tables.gaussians.push_back(source_tables.gaussians[star.posterior & ~kGaussianRow]);
+            star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size() - 1);
+        } else {
+            tables.gridded.push_back(source_tables.gridded[star.posterior]);
+            star.posterior = static_cast<std::uint32_t>(tables.gridded.size() - 1);
         }
-        if (const std::uint32_t row = source.tabulated_row_[from]; row != kNoRow) {
-            tabulated_row_[s] = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
+        if (star.categories != kNoRow) {
             const auto first =
-                source_tables.categories.begin() + static_cast<std::ptrdiff_t>(row * kQuantiles);
+                source_tables.categories.begin() + static_cast<std::ptrdiff_t>(star.categories * kQuantiles);
+            star.categories = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
             tables.categories.insert(tables.categories.end(), first, first + kQuantiles);
         }
+        drawn_row_[s] = static_cast<std::uint32_t>(tables.drawn.size());
+        tables.drawn.push_back(star);
     }
     for (BlockTables& tables : block_tables_) {
+        tables.drawn.shrink_to_fit();
         tables.gridded.shrink_to_fit();
         tables.gaussians.shrink_to_fit();
         tables.categories.shrink_to_fit();
@@ -273,29 +273,19 @@ std::uint32_t DrawTallies::classCount(int draw, std::size_t r, photometry::Stell
 
 void PreparedSample::releaseDrawTables() {
     const auto release = [](auto& vector) { std::remove_reference_t<decltype(vector)>().swap(vector); };
-    release(g_mag_);
-    release(g_error_mag_);
-    release(colour_mag_);
-    release(colour_error_mag_);
     release(stream_rows_);
     release(block_tables_);
-    release(table_row_);
-    release(tabulated_row_);
-    release(fixed_categories_);
+    release(drawn_row_);
     release(certain_categories_);
     draw_tables_released_ = true;
 }
 
-const float* PreparedSample::quantileTable(std::size_t s, std::array<float, kQuantiles>& scratch) const {
-    const std::uint32_t row = table_row_[s];
-    const BlockTables& tables = block_tables_[s / kBlockStars];
-    if (row == kNoRow) {
-        return nullptr;
-    }
-    if ((row & kGaussianRow) != 0) {
-        tables.gaussians[row & ~kGaussianRow].fillQuantiles(scratch);
+const float* PreparedSample::quantileTable(const BlockTables& tables, const DrawnStar& star,
+                                           std::array<float, kQuantiles>& scratch) const {
+    if ((star.posterior & kGaussianRow) != 0) {
+        tables.gaussians[star.posterior & ~kGaussianRow].fillQuantiles(scratch);
     } else {
-        const GridPosteriorInputs& inputs = tables.gridded[row];
+        const GridPosteriorInputs& inputs = tables.gridded[star.posterior];
         scratch = DistancePosterior(inputs.parallax_mas, inputs.parallax_error_mas, membership_)
                       .distanceModulusQuantiles();
     }
@@ -308,30 +298,25 @@ void PreparedSample::requireDrawTables(const char* what) const {
     }
 }
 
-StarClassCounts::StarClassCounts(std::size_t stars, int draws) {
-    const std::size_t counters = stars * photometry::kClassCount;
-    if (draws <= std::numeric_limits<std::uint8_t>::max()) {
-        narrowest_.assign(counters, 0);
-    } else if (draws <= std::numeric_limits<std::uint16_t>::max()) {
-        narrow_.assign(counters, 0);
-    } else {
-        wide_.assign(counters, 0);
-    }
-}
+StarClassCounts::StarClassCounts(std::size_t stars, int draws)
+    : draws_(draws), only_class_(stars, kNone), mixed_slot_(stars, 0),
+      chunks_((stars + kChunkStars - 1) / kChunkStars) {}
 
-void StarClassCounts::set(std::size_t star,
-                          const std::array<std::uint32_t, photometry::kClassCount>& counts) {
-    const auto at = static_cast<std::ptrdiff_t>(star * photometry::kClassCount);
-    // Each count is at most the number of draws, which the constructor saw fits the counters it chose.
-    if (!narrowest_.empty()) {
-        std::transform(counts.begin(), counts.end(), narrowest_.begin() + at,
-                       [](std::uint32_t count) { return static_cast<std::uint8_t>(count); });
-    } else if (!narrow_.empty()) {
-        std::transform(counts.begin(), counts.end(), narrow_.begin() + at,
-                       [](std::uint32_t count) { return static_cast<std::uint16_t>(count); });
-    } else {
-        std::copy(counts.begin(), counts.end(), wide_.begin() + at);
+void StarClassCounts::set(std::size_t star, const Counters& counts) {
+    const auto counted = std::count_if(counts.begin(), counts.end(), [](std::uint32_t n) { return n > 0; });
+    if (counted == 0) {
+        only_class_[star] = kNone;
+        return;
     }
+    const auto first = std::find_if(counts.begin(), counts.end(), [](std::uint32_t n) { return n > 0; });
+    if (counted == 1 && *first == static_cast<std::uint32_t>(draws_)) {
+        only_class_[star] = static_cast<std::uint8_t>(first - counts.begin());
+        return;
+    }
+    std::vector<Counters>& chunk = chunks_[star / kChunkStars];
+    only_class_[star] = kMixed;
+    mixed_slot_[star] = static_cast<std::uint8_t>(chunk.size()); // at most kChunkStars per chunk
+    chunk.push_back(counts);
 }
 
 void StarClassCounts::append(const StarClassCounts& more) {
@@ -339,9 +324,32 @@ void StarClassCounts::append(const StarClassCounts& more) {
         *this = more;
         return;
     }
-    narrowest_.insert(narrowest_.end(), more.narrowest_.begin(), more.narrowest_.end());
-    narrow_.insert(narrow_.end(), more.narrow_.begin(), more.narrow_.end());
-    wide_.insert(wide_.end(), more.wide_.begin(), more.wide_.end());
+    const std::size_t first = size();
+    only_class_.resize(first + more.size(), kNone);
+    mixed_slot_.resize(first + more.size(), 0);
+    chunks_.resize((size() + kChunkStars - 1) / kChunkStars);
+    Counters counts;
+    for (std::size_t s = 0; s < more.size(); ++s) {
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            counts[c] = more.draws(s, static_cast<photometry::StellarClass>(c));
+        }
+        set(first + s, counts);
+    }
+}
+
+bool StarClassCounts::operator==(const StarClassCounts& other) const {
+    if (size() != other.size() || draws_ != other.draws_) {
+        return false;
+    }
+    for (std::size_t s = 0; s < size(); ++s) {
+        for (std::size_t c = 0; c < photometry::kClassCount; ++c) {
+            const auto stellar_class = static_cast<photometry::StellarClass>(c);
+            if (draws(s, stellar_class) != other.draws(s, stellar_class)) {
+                return false;
+            }
+        }
+    }
+    return true;
 }
 
 double PreparedSample::expectedCount(std::size_t r) const {
@@ -416,46 +424,47 @@ class SampleDrawer {
             // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
             Xoshiro256 random(settings_.seed, sample_.stream_rows_.empty() ? s : sample_.stream_rows_[s]);
             const float* within = &sample_.probability_within_[s * radii];
-            const float g = sample_.g_mag_[s];
-            const float g_error = sample_.g_error_mag_[s];
-            const float colour = sample_.colour_mag_[s];
-            const float colour_error = sample_.colour_error_mag_[s];
-            const bool has_colour = std::isfinite(colour);
-            const bool has_magnitude = std::isfinite(g);
             std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
             const auto draws = static_cast<std::size_t>(settings_.draws);
-            const photometry::Category fixed = sample_.fixed_categories_[s];
-            const bool certainty_known = !sample_.certain_categories_.empty();
-            const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
-            const float* quantiles = sample_.quantileTable(s, refilled_quantiles);
-            const std::uint32_t tabulated_row = sample_.tabulated_row_[s];
-            const photometry::Category* tabulated =
-                tabulated_row == PreparedSample::kNoRow
-                    ? nullptr
-                    : &tables.categories[tabulated_row * PreparedSample::kQuantiles];
-            const auto certain = [&]() -> std::optional<photometry::Category> {
-                if (certainty_known) {
-                    const photometry::Category category = sample_.certain_categories_[s];
-                    return category == PreparedSample::kDrawnCategory ? std::nullopt
-                                                                      : std::optional(category);
-                }
-                // Without a grid in the sample every star keeps its table.
-                const auto [nearest, farthest] =
-                    std::minmax_element(quantiles, quantiles + PreparedSample::kQuantiles);
-                return certainCategory(
-                    {*nearest, *farthest, within, radii, tabulated, fixed, g, g_error, colour, colour_error},
-                    classes_, normal_.largestMagnitude());
-            };
-            if (const auto category = certain()) {
+            const auto tallyCertain = [&](photometry::Category category) {
                 // Every draw gives this category, and each radius counts the star in every draw or in
                 // none: the tallies follow without drawing (the same numbers the loop below would give).
                 for (std::size_t r = 0; r < radii; ++r) {
-                    certain_counts[r * photometry::kCategoryCount + *category] += within[r] >= 1.0f ? 1u : 0u;
+                    certain_counts[r * photometry::kCategoryCount + category] += within[r] >= 1.0f ? 1u : 0u;
                 }
-                classes_seen[static_cast<std::size_t>(photometry::classOfCategory(*category))] =
+                classes_seen[static_cast<std::size_t>(photometry::classOfCategory(category))] =
                     static_cast<std::uint32_t>(draws);
                 keepClasses(s, classes_seen, star_classes);
+            };
+            const bool certainty_known = !sample_.certain_categories_.empty();
+            if (certainty_known && sample_.certain_categories_[s] != PreparedSample::kDrawnCategory) {
+                tallyCertain(sample_.certain_categories_[s]);
                 continue;
+            }
+            // Without a grid in the sample every star is drawn, and tested for certainty here.
+            const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
+            const PreparedSample::DrawnStar& star = tables.drawn[sample_.drawn_row_[s]];
+            const float g = star.g_mag;
+            const float g_error = star.g_error_mag;
+            const float colour = star.colour_mag;
+            const float colour_error = star.colour_error_mag;
+            const bool has_colour = std::isfinite(colour);
+            const bool has_magnitude = std::isfinite(g);
+            const photometry::Category fixed = star.fixed;
+            const float* quantiles = sample_.quantileTable(tables, star, refilled_quantiles);
+            const photometry::Category* tabulated =
+                star.categories == PreparedSample::kNoRow
+                    ? nullptr
+                    : &tables.categories[star.categories * PreparedSample::kQuantiles];
+            if (!certainty_known) {
+                const auto [nearest, farthest] =
+                    std::minmax_element(quantiles, quantiles + PreparedSample::kQuantiles);
+                if (const auto category = certainCategory({*nearest, *farthest, within, radii, tabulated,
+                                                           fixed, g, g_error, colour, colour_error},
+                                                          classes_, normal_.largestMagnitude())) {
+                    tallyCertain(*category);
+                    continue;
+                }
             }
             for (int d = 0; d < settings_.draws; ++d) {
                 const std::uint64_t bits_distance = random();
