@@ -7,6 +7,8 @@
 
 #include "photometry/base/InputError.h"
 
+#include <malloc.h>
+
 #include <iostream>
 #include <memory>
 #include <sstream>
@@ -62,6 +64,11 @@ int runArguments(const std::vector<std::string>& arguments, starcensus::ProcessG
 } // namespace
 
 int main(int argc, char** argv) {
+    // Blocks of 128 KiB or more in mappings of their own, handed back when freed: glibc's adaptive
+    // threshold otherwise grows past the census's large vectors after the first is freed and keeps each
+    // stage's freed ones for the next (399,783-candidate fractions-only run: peak RSS 97 -> 94 MiB, no
+    // slower).
+    mallopt(M_MMAP_THRESHOLD, 128 * 1024);
     // Under mpirun every rank runs this and only rank 0 prints an error. A `run` rank that fails before
     // the scan's gather takes part in it with its error, so that no rank waits for it; rank 0 then
     // prints the lowest failed rank's error (the ranks see the same options and files, so usually its
