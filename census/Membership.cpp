@@ -77,13 +77,13 @@ DistancePosterior::DistancePosterior(double parallax_mas, double parallax_error_
     const double log_step = std::log(upper / lower) / (kGridNodes - 1);
     const double step_factor = std::exp(log_step);
     const double inverse_sigma = 1.0 / sigma;
+    // One loop for the grid and the log density: the grid's running product and the running maximum are
+    // two serial chains of 401 steps, which then overlap (the same arithmetic as two loops).
     double grid_parallax = lower;
-    for (int k = 0; k < kGridNodes; ++k, grid_parallax *= step_factor) {
-        true_parallax_mas_[static_cast<std::size_t>(k)] = grid_parallax;
-    }
     double max_log_density = -std::numeric_limits<double>::infinity();
-    for (std::size_t k = 0; k < static_cast<std::size_t>(kGridNodes); ++k) {
-        const double z = (observed - true_parallax_mas_[k]) * inverse_sigma;
+    for (std::size_t k = 0; k < static_cast<std::size_t>(kGridNodes); ++k, grid_parallax *= step_factor) {
+        true_parallax_mas_[k] = grid_parallax;
+        const double z = (observed - grid_parallax) * inverse_sigma;
         log_density[k] =
             logPrior(log_lower + static_cast<double>(k) * log_step, settings.prior) - 0.5 * z * z;
         max_log_density = std::max(max_log_density, log_density[k]);
