@@ -38,34 +38,17 @@ ClassifiedRows classifyRows(std::span<const photometry::CatalogRow> rows,
     return classified;
 }
 
-/// Whether star s of the sample counts within radii()[r], and its weight there.
-bool weighWithin(SampleStar& star, const PreparedSample& sample, std::size_t s, std::size_t r) {
-    star.weight = sample.probabilityWithin(s, r);
-    return std::isfinite(star.abs_g_mag) && std::isfinite(star.distance_pc) && star.weight > 0.0;
-}
-
-std::vector<SampleStar> starsWithin(const ClassifiedRows& classified, const PreparedSample& sample,
+/// The classified rows' stars that count within radii()[r], with their weights there: from a copy of
+/// the classified stars for the smaller radii, from the stars themselves (moved in) for the last, so the
+/// luminosity function's stars are not a second array of every row (24 bytes a candidate).
+std::vector<SampleStar> starsWithin(std::vector<SampleStar> stars, const PreparedSample& sample,
                                     std::size_t r) {
-    std::vector<SampleStar> stars;
-    stars.reserve(classified.stars.size());
-    for (std::size_t s = 0; s < classified.stars.size(); ++s) {
-        SampleStar star = classified.stars[s];
-        if (weighWithin(star, sample, s, r)) {
-            stars.push_back(star);
-        }
-    }
-    return stars;
-}
-
-/// starsWithin at radius r made of the classified rows themselves, which it uses up: the luminosity
-/// function's stars without a second array of every row (24 bytes a candidate).
-std::vector<SampleStar> takeStarsWithin(ClassifiedRows&& classified, const PreparedSample& sample,
-                                        std::size_t r) {
-    std::vector<SampleStar> stars = std::move(classified.stars);
     std::size_t kept = 0;
     for (std::size_t s = 0; s < stars.size(); ++s) {
-        if (weighWithin(stars[s], sample, s, r)) {
-            stars[kept++] = stars[s];
+        SampleStar& star = stars[s];
+        star.weight = sample.probabilityWithin(s, r);
+        if (std::isfinite(star.abs_g_mag) && std::isfinite(star.distance_pc) && star.weight > 0.0) {
+            stars[kept++] = star;
         }
     }
     stars.resize(kept);
@@ -113,11 +96,11 @@ LuminosityAnalysis analyseLuminosity(std::span<const photometry::CatalogRow> row
     const MembersBeyondLimits beyond = membersBeyondLimits(classified, sample); // for the correction
     const std::size_t last = radii.size() - 1;
     for (std::size_t r = 0; r < last; ++r) {
-        analysis.completeness.push_back(assessCompleteness(starsWithin(classified, sample, r), radii[r],
+        analysis.completeness.push_back(assessCompleteness(starsWithin(classified.stars, sample, r), radii[r],
                                                            census.groups, analysis.limits, ranges,
                                                            completeness));
     }
-    const std::vector<SampleStar> stars = takeStarsWithin(std::move(classified), sample, last);
+    const std::vector<SampleStar> stars = starsWithin(std::move(classified.stars), sample, last);
     analysis.completeness.push_back(
         assessCompleteness(stars, radii[last], census.groups, analysis.limits, ranges, completeness));
     // The luminosity function and its fits at the largest radius (`stars` holds its weights).

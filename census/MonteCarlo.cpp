@@ -136,8 +136,7 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
             const photometry::CatalogRow& row = order.empty() ? rows[s] : rows[order[s]];
             const bool classifiable =
                 row.parallax_mas >= rules.min_parallax_snr_to_classify * row.parallax_error_mas;
-            DrawnStar star{};
-            star.fixed = kDrawnCategory;
+            DrawnStar star;
             if (classifier != nullptr && usesLiteratureType(row, rules)) {
                 star.fixed = photometry::censusCategory(classifyRow(row, *classifier, rules));
             } else if (!classifiable) {
@@ -189,7 +188,6 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                 star.posterior = static_cast<std::uint32_t>(tables.gridded.size());
                 tables.gridded.push_back({row.parallax_mas, row.parallax_error_mas});
             }
-            star.categories = kNoRow;
             if (tabulated) {
                 star.categories = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
                 tables.categories.insert(tables.categories.end(), categories.begin(), categories.end());
@@ -211,19 +209,19 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
     source.requireDrawTables("selecting stars from a PreparedSample");
     const std::size_t n = order.size();
     const std::size_t radii = radii_pc_.size();
+    const auto select = [&](const auto& from, auto& to) {
+        to.resize(n);
+        for (std::size_t s = 0; s < n; ++s) {
+            to[s] = from[order[s]];
+        }
+    };
     if (source.stream_rows_.empty()) {
         stream_rows_.assign(order.begin(), order.end());
     } else {
-        stream_rows_.resize(n);
-        for (std::size_t s = 0; s < n; ++s) {
-            stream_rows_[s] = source.stream_rows_[order[s]];
-        }
+        select(source.stream_rows_, stream_rows_);
     }
     if (!source.certain_categories_.empty()) {
-        certain_categories_.resize(n);
-        for (std::size_t s = 0; s < n; ++s) {
-            certain_categories_[s] = source.certain_categories_[order[s]];
-        }
+        select(source.certain_categories_, certain_categories_);
     }
     probability_within_.resize(n * radii);
     drawn_row_.assign(n, kNoRow);

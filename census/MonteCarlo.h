@@ -103,11 +103,11 @@ class PreparedSample {
     // What the draws read of a star whose draws can differ (28 bytes; the other stars of a 100 pc sample,
     // about 70% of them, keep none).
     struct DrawnStar {
-        float g_mag, g_error_mag;
-        float colour_mag, colour_error_mag; // BP-RP, NaN if either band is missing
-        std::uint32_t posterior;            // row in the block's gridded, or kGaussianRow | row in gaussians
-        std::uint32_t categories;           // row in the block's categories, kNoRow without
-        photometry::Category fixed;         // the category of every draw, or kDrawnCategory
+        float g_mag = 0.0f, g_error_mag = 0.0f;
+        float colour_mag = 0.0f, colour_error_mag = 0.0f; // BP-RP, NaN if either band is missing
+        std::uint32_t posterior = 0;       // row in the block's gridded, or kGaussianRow | row in gaussians
+        std::uint32_t categories = kNoRow; // row in the block's categories, kNoRow without
+        photometry::Category fixed = kDrawnCategory; // the category of every draw, or kDrawnCategory
     };
     // Per block of kBlockStars stars (MonteCarlo.cpp), the stars whose draws can differ and their tables:
     // gridded, the posteriors on the grid; gaussians, those on the Gaussian shortcut (24 bytes a star); the
