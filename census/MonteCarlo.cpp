@@ -107,6 +107,208 @@ certainCategory(const StarDrawInputs& star, const photometry::ClassGrid& grid, f
 
 } // namespace
 
+/// The draws' tallies while they are made: per worker thread, the counts [draw][radius][category] (as
+/// DrawTallies) and, per [radius][category], the stars tallied without drawing; the per-star class counts
+/// are shared (one thread sets each block's stars). finish() sums the threads' parts.
+struct DrawAccumulators {
+    DrawAccumulators(std::size_t stars, std::size_t radii, const DrawSettings& settings, unsigned threads)
+        : counts(threads,
+                 std::vector<std::uint32_t>(
+                     static_cast<std::size_t>(settings.draws) * radii * photometry::kCategoryCount, 0)),
+          certain(threads, std::vector<std::uint32_t>(radii * photometry::kCategoryCount, 0)) {
+        tallies.draws = settings.draws;
+        tallies.radii = radii;
+        if (settings.per_star_classes) {
+            tallies.star_classes = StarClassCounts(stars, settings.draws);
+        }
+    }
+
+    DrawTallies finish() {
+        tallies.counts.assign(counts.front().size(), 0);
+        for (const auto& partial : counts) {
+            std::transform(partial.begin(), partial.end(), tallies.counts.begin(), tallies.counts.begin(),
+                           std::plus<>());
+        }
+        const auto draws = static_cast<std::size_t>(tallies.draws);
+        for (const auto& certain_counts : certain) {
+            for (std::size_t slot = 0; slot < certain_counts.size(); ++slot) {
+                if (certain_counts[slot] != 0) {
+                    std::uint32_t* run = &tallies.counts[slot * draws];
+                    std::for_each(run, run + draws,
+                                  [&](std::uint32_t& count) { count += certain_counts[slot]; });
+                }
+            }
+        }
+        return std::move(tallies);
+    }
+
+    std::vector<std::vector<std::uint32_t>> counts;  // [thread]
+    std::vector<std::vector<std::uint32_t>> certain; // [thread]
+    DrawTallies tallies;
+};
+
+/// The hot loop, with access to PreparedSample's arrays: the draws of stars [begin, end) of a sample, from
+/// its draw tables (run()), or of one star at a time while the sample is prepared (prepareAndDraw).
+class SampleDrawer {
+  public:
+    /// What one star's draws read besides its membership probabilities.
+    struct StarInputs {
+        const float* quantiles;                // [kQuantiles] distance moduli
+        const photometry::Category* tabulated; // [kQuantiles] categories, or nullptr
+        photometry::Category fixed;            // or kDrawnCategory
+        float g_mag, g_error_mag, colour_mag, colour_error_mag;
+    };
+
+    SampleDrawer(const PreparedSample& sample, const photometry::ClassGrid& classes,
+                 const DrawSettings& settings, std::size_t begin, std::size_t end)
+        : sample_(sample), classes_(classes), settings_(settings), begin_(begin), end_(end) {
+        sample.requireDrawTables("drawSample");
+    }
+
+    DrawTallies run() const {
+        const unsigned threads = resolveThreadCount(settings_.threads);
+        const std::size_t stars = end_ - begin_;
+        DrawAccumulators accumulators(stars, sample_.radii_pc_.size(), settings_, threads);
+        startProgress();
+        forEachBlock(stars, threads, [&](std::size_t begin, std::size_t end, unsigned t) {
+            drawBlock(begin_ + begin, begin_ + end, t, accumulators);
+            blockDone(end - begin);
+        });
+        return accumulators.finish();
+    }
+
+    void startProgress() const {
+        if (settings_.progress != nullptr) {
+            settings_.progress->items_total = static_cast<std::int64_t>(end_ - begin_) * settings_.draws;
+        }
+    }
+
+    void blockDone(std::size_t stars) const {
+        if (settings_.progress != nullptr) {
+            settings_.progress->items_done.fetch_add(static_cast<std::int64_t>(stars) * settings_.draws,
+                                                     std::memory_order_relaxed);
+        }
+    }
+
+    /// Star s tallied without drawing: every draw gives `category`, and each radius counts the star in every
+    /// draw or in none (the numbers the draws would give).
+    void tallyCertain(std::size_t s, photometry::Category category, unsigned thread,
+                      DrawAccumulators& accumulators) const {
+        const std::size_t radii = sample_.radii_pc_.size();
+        const float* within = &sample_.probability_within_[s * radii];
+        std::vector<std::uint32_t>& certain_counts = accumulators.certain[thread];
+        for (std::size_t r = 0; r < radii; ++r) {
+            certain_counts[r * photometry::kCategoryCount + category] += within[r] >= 1.0f ? 1u : 0u;
+        }
+        std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
+        classes_seen[static_cast<std::size_t>(photometry::classOfCategory(category))] =
+            static_cast<std::uint32_t>(settings_.draws);
+        keepClasses(s, classes_seen, accumulators.tallies.star_classes);
+    }
+
+    /// Star s's draws, from its own random stream.
+    void drawStar(std::size_t s, const StarInputs& star, unsigned thread,
+                  DrawAccumulators& accumulators) const {
+        const std::size_t radii = sample_.radii_pc_.size();
+        constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
+        // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
+        Xoshiro256 random(settings_.seed, sample_.stream_rows_.empty() ? s : sample_.stream_rows_[s]);
+        const float* within = &sample_.probability_within_[s * radii];
+        std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
+        const auto draws = static_cast<std::size_t>(settings_.draws);
+        const bool has_colour = std::isfinite(star.colour_mag);
+        const bool has_magnitude = std::isfinite(star.g_mag);
+        const float* quantiles = star.quantiles;
+        std::vector<std::uint32_t>& counts = accumulators.counts[thread];
+        for (int d = 0; d < settings_.draws; ++d) {
+            const std::uint64_t bits_distance = random();
+            const std::uint64_t bits_photometry = random();
+            // 24 bits of u: the same u decides membership (u < P(d < R), exact) and the distance modulus
+            // (quantile function at u), so both come from one consistent distance.
+            const float u = static_cast<float>(bits_distance >> 40) * 0x1.0p-24f;
+            const float position = u * kQuantileSteps;
+            const int node = std::min(static_cast<int>(position), PreparedSample::kQuantiles - 2);
+            const float modulus = quantiles[node] + (position - static_cast<float>(node)) *
+                                                        (quantiles[node + 1] - quantiles[node]);
+            const float abs_g = star.g_mag +
+                                star.g_error_mag * normal_(static_cast<std::uint32_t>(bits_photometry)) -
+                                modulus;
+            photometry::Category assigned = kUnclassified;
+            if (star.fixed != PreparedSample::kDrawnCategory) {
+                assigned = star.fixed;
+            } else if (star.tabulated != nullptr) {
+                assigned = star.tabulated[static_cast<int>(position + 0.5f)];
+            } else if (has_colour && has_magnitude) {
+                const float drawn_colour =
+                    star.colour_mag +
+                    star.colour_error_mag * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
+                assigned = classes_.lookup(drawn_colour, abs_g);
+            } else if (has_magnitude) {
+                assigned = classes_.lookupMagnitudeOnly(abs_g);
+            }
+            ++classes_seen[static_cast<std::size_t>(photometry::classOfCategory(assigned))];
+            std::uint32_t* draw_counts = &counts[assigned * draws + static_cast<std::size_t>(d)];
+            for (std::size_t r = 0; r < radii; ++r) {
+                draw_counts[r * photometry::kCategoryCount * draws] += u < within[r] ? 1u : 0u;
+            }
+        }
+        keepClasses(s, classes_seen, accumulators.tallies.star_classes);
+    }
+
+  private:
+    void drawBlock(std::size_t begin, std::size_t end, unsigned thread,
+                   DrawAccumulators& accumulators) const {
+        const std::size_t radii = sample_.radii_pc_.size();
+        std::array<float, PreparedSample::kQuantiles> refilled_quantiles; // the star's table
+        const bool certainty_known = !sample_.certain_categories_.empty();
+        for (std::size_t s = begin; s < end; ++s) {
+            if (certainty_known && sample_.certain_categories_[s] != PreparedSample::kDrawnCategory) {
+                tallyCertain(s, sample_.certain_categories_[s], thread, accumulators);
+                continue;
+            }
+            // Without a grid in the sample every star is drawn, and tested for certainty here.
+            const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
+            const PreparedSample::DrawnStar& star = tables.drawn[sample_.drawn_row_[s]];
+            const StarInputs inputs{sample_.quantileTable(tables, star, refilled_quantiles),
+                                    star.categories == PreparedSample::kNoRow
+                                        ? nullptr
+                                        : &tables.categories[star.categories * PreparedSample::kQuantiles],
+                                    star.fixed,
+                                    star.g_mag,
+                                    star.g_error_mag,
+                                    star.colour_mag,
+                                    star.colour_error_mag};
+            if (!certainty_known) {
+                const auto [nearest, farthest] =
+                    std::minmax_element(inputs.quantiles, inputs.quantiles + PreparedSample::kQuantiles);
+                if (const auto category =
+                        certainCategory({*nearest, *farthest, &sample_.probability_within_[s * radii], radii,
+                                         inputs.tabulated, inputs.fixed, inputs.g_mag, inputs.g_error_mag,
+                                         inputs.colour_mag, inputs.colour_error_mag},
+                                        classes_, normal_.largestMagnitude())) {
+                    tallyCertain(s, *category, thread, accumulators);
+                    continue;
+                }
+            }
+            drawStar(s, inputs, thread, accumulators);
+        }
+    }
+
+    /// Star s's class frequencies into star_classes, unless the settings ask for none.
+    void keepClasses(std::size_t s, const std::array<std::uint32_t, photometry::kClassCount>& classes_seen,
+                     StarClassCounts& star_classes) const {
+        if (settings_.per_star_classes) {
+            star_classes.set(s - begin_, classes_seen);
+        }
+    }
+
+    const PreparedSample& sample_;
+    const photometry::ClassGrid& classes_;
+    const DrawSettings& settings_;
+    std::size_t begin_, end_; // the stars drawn
+    detail::FastNormal normal_;
+};
+
 PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
                                const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier,
@@ -118,19 +320,38 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                const MembershipSettings& membership, const RowClassRules& rules,
                                unsigned threads, const photometry::Classifier* classifier,
                                const photometry::ClassGrid* grid)
+    : PreparedSample(rows, order, std::move(radii_pc), membership, rules, threads, classifier, grid, nullptr,
+                     nullptr) {}
+
+PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
+                               std::span<const std::uint32_t> order, std::vector<double> radii_pc,
+                               const MembershipSettings& membership, const RowClassRules& rules,
+                               unsigned threads, const photometry::Classifier* classifier,
+                               const photometry::ClassGrid* grid, const DrawSettings* draw_now,
+                               DrawTallies* tallies)
     : stars_(order.empty() ? rows.size() : order.size()), radii_pc_(std::move(radii_pc)),
       membership_(membership), stream_rows_(order.begin(), order.end()), grid_(grid) {
     const std::size_t n = stars_;
     const std::size_t radii = radii_pc_.size();
     probability_within_.resize(n * radii);
-    drawn_row_.assign(n, kNoRow);
-    if (grid != nullptr) {
-        certain_categories_.assign(n, kDrawnCategory);
+    if (draw_now == nullptr) {
+        drawn_row_.assign(n, kNoRow);
+        if (grid != nullptr) {
+            certain_categories_.assign(n, kDrawnCategory);
+        }
+        block_tables_.resize((n + kBlockStars - 1) / kBlockStars);
     }
     const float largest_deviate = detail::FastNormal().largestMagnitude();
-    block_tables_.resize((n + kBlockStars - 1) / kBlockStars);
-    forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned) {
-        BlockTables& tables = block_tables_[begin / kBlockStars];
+    std::optional<SampleDrawer> drawer;
+    std::optional<DrawAccumulators> accumulators;
+    if (draw_now != nullptr) {
+        threads = resolveThreadCount(threads);
+        drawer.emplace(*this, *grid, *draw_now, 0, n);
+        accumulators.emplace(n, radii, *draw_now, threads);
+        drawer->startProgress();
+    }
+    forEachBlock(n, threads, [&](std::size_t begin, std::size_t end, unsigned thread) {
+        BlockTables* tables = drawer ? nullptr : &block_tables_[begin / kBlockStars]; // none when drawing now
         std::array<photometry::Category, kQuantiles> categories;
         for (std::size_t s = begin; s < end; ++s) {
             const photometry::CatalogRow& row = order.empty() ? rows[s] : rows[order[s]];
@@ -177,30 +398,61 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                             star.colour_mag,
                                             star.colour_error_mag};
                 if (const auto category = certainCategory(inputs, *grid, largest_deviate)) {
-                    certain_categories_[s] = *category;
+                    if (drawer) {
+                        drawer->tallyCertain(s, *category, thread, *accumulators);
+                    } else {
+                        certain_categories_[s] = *category;
+                    }
                     continue; // every draw is known: no tables
                 }
             }
+            if (drawer) {
+                posterior.tabulateQuantiles();
+                drawer->drawStar(s,
+                                 {posterior.distanceModulusQuantiles().data(),
+                                  tabulated ? categories.data() : nullptr, star.fixed, star.g_mag,
+                                  star.g_error_mag, star.colour_mag, star.colour_error_mag},
+                                 thread, *accumulators);
+                continue;
+            }
             if (const auto gaussian = posterior.gaussianForm()) {
-                star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size());
-                tables.gaussians.push_back(*gaussian);
+                star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables->gaussians.size());
+                tables->gaussians.push_back(*gaussian);
             } else {
-                star.posterior = static_cast<std::uint32_t>(tables.gridded.size());
-                tables.gridded.push_back({row.parallax_mas, row.parallax_error_mas});
+                star.posterior = static_cast<std::uint32_t>(tables->gridded.size());
+                tables->gridded.push_back({row.parallax_mas, row.parallax_error_mas});
             }
             if (tabulated) {
-                star.categories = static_cast<std::uint32_t>(tables.categories.size() / kQuantiles);
-                tables.categories.insert(tables.categories.end(), categories.begin(), categories.end());
+                star.categories = static_cast<std::uint32_t>(tables->categories.size() / kQuantiles);
+                tables->categories.insert(tables->categories.end(), categories.begin(), categories.end());
             }
-            drawn_row_[s] = static_cast<std::uint32_t>(tables.drawn.size());
-            tables.drawn.push_back(star);
+            drawn_row_[s] = static_cast<std::uint32_t>(tables->drawn.size());
+            tables->drawn.push_back(star);
+        }
+        if (drawer) {
+            drawer->blockDone(end - begin);
+            return;
         }
         // Reserve-free growth leaves up to twice the room: give it back.
-        tables.drawn.shrink_to_fit();
-        tables.gridded.shrink_to_fit();
-        tables.gaussians.shrink_to_fit();
-        tables.categories.shrink_to_fit();
+        tables->drawn.shrink_to_fit();
+        tables->gridded.shrink_to_fit();
+        tables->gaussians.shrink_to_fit();
+        tables->categories.shrink_to_fit();
     });
+    if (drawer) {
+        *tallies = accumulators->finish();
+        releaseDrawTables();
+    }
+}
+
+DrawnSample prepareAndDraw(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
+                           const MembershipSettings& membership, const RowClassRules& rules,
+                           const photometry::Classifier& classifier, const photometry::ClassGrid& grid,
+                           const DrawSettings& settings) {
+    DrawTallies tallies;
+    PreparedSample sample(rows, {}, std::move(radii_pc), membership, rules, settings.threads, &classifier,
+                          &grid, &settings, &tallies);
+    return {std::move(sample), std::move(tallies)};
 }
 
 PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std::uint32_t> order)
@@ -357,161 +609,6 @@ double PreparedSample::expectedCount(std::size_t r) const {
     }
     return sum;
 }
-
-/// The hot loop, with access to PreparedSample's arrays.
-class SampleDrawer {
-  public:
-    SampleDrawer(const PreparedSample& sample, const photometry::ClassGrid& classes,
-                 const DrawSettings& settings, std::size_t begin, std::size_t end)
-        : sample_(sample), classes_(classes), settings_(settings), begin_(begin), end_(end) {
-        sample.requireDrawTables("drawSample");
-    }
-
-    DrawTallies run() const {
-        const unsigned threads = resolveThreadCount(settings_.threads);
-        const std::size_t radii = sample_.radii_pc_.size();
-        const std::size_t tally_size =
-            static_cast<std::size_t>(settings_.draws) * radii * photometry::kCategoryCount;
-        std::vector<std::vector<std::uint32_t>> per_thread(threads,
-                                                           std::vector<std::uint32_t>(tally_size, 0));
-        // Stars tallied without drawing, per [radius][category]: the same count in every draw.
-        std::vector<std::vector<std::uint32_t>> certain_per_thread(
-            threads, std::vector<std::uint32_t>(radii * photometry::kCategoryCount, 0));
-        DrawTallies tallies;
-        tallies.draws = settings_.draws;
-        tallies.radii = radii;
-        const std::size_t stars = end_ - begin_;
-        if (settings_.per_star_classes) {
-            tallies.star_classes = StarClassCounts(stars, settings_.draws);
-        }
-        if (settings_.progress != nullptr) {
-            settings_.progress->items_total = static_cast<std::int64_t>(stars) * settings_.draws;
-        }
-        forEachBlock(stars, threads, [&](std::size_t begin, std::size_t end, unsigned t) {
-            drawBlock(begin_ + begin, begin_ + end, per_thread[t], certain_per_thread[t],
-                      tallies.star_classes);
-            if (settings_.progress != nullptr) {
-                settings_.progress->items_done.fetch_add(
-                    static_cast<std::int64_t>(end - begin) * settings_.draws, std::memory_order_relaxed);
-            }
-        });
-        tallies.counts.assign(tally_size, 0);
-        for (const auto& partial : per_thread) {
-            std::transform(partial.begin(), partial.end(), tallies.counts.begin(), tallies.counts.begin(),
-                           std::plus<>());
-        }
-        const auto draws = static_cast<std::size_t>(settings_.draws);
-        for (const auto& certain : certain_per_thread) {
-            for (std::size_t slot = 0; slot < certain.size(); ++slot) {
-                if (certain[slot] != 0) {
-                    std::uint32_t* run = &tallies.counts[slot * draws];
-                    std::for_each(run, run + draws, [&](std::uint32_t& count) { count += certain[slot]; });
-                }
-            }
-        }
-        return tallies;
-    }
-
-  private:
-    void drawBlock(std::size_t begin, std::size_t end, std::vector<std::uint32_t>& counts,
-                   std::vector<std::uint32_t>& certain_counts, StarClassCounts& star_classes) const {
-        const std::size_t radii = sample_.radii_pc_.size();
-        constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
-        std::array<float, PreparedSample::kQuantiles> refilled_quantiles; // the star's table
-        for (std::size_t s = begin; s < end; ++s) {
-            // The star's own stream: a star tallied without drawing leaves the others' draws unchanged.
-            Xoshiro256 random(settings_.seed, sample_.stream_rows_.empty() ? s : sample_.stream_rows_[s]);
-            const float* within = &sample_.probability_within_[s * radii];
-            std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
-            const auto draws = static_cast<std::size_t>(settings_.draws);
-            const auto tallyCertain = [&](photometry::Category category) {
-                // Every draw gives this category, and each radius counts the star in every draw or in
-                // none: the tallies follow without drawing (the same numbers the loop below would give).
-                for (std::size_t r = 0; r < radii; ++r) {
-                    certain_counts[r * photometry::kCategoryCount + category] += within[r] >= 1.0f ? 1u : 0u;
-                }
-                classes_seen[static_cast<std::size_t>(photometry::classOfCategory(category))] =
-                    static_cast<std::uint32_t>(draws);
-                keepClasses(s, classes_seen, star_classes);
-            };
-            const bool certainty_known = !sample_.certain_categories_.empty();
-            if (certainty_known && sample_.certain_categories_[s] != PreparedSample::kDrawnCategory) {
-                tallyCertain(sample_.certain_categories_[s]);
-                continue;
-            }
-            // Without a grid in the sample every star is drawn, and tested for certainty here.
-            const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
-            const PreparedSample::DrawnStar& star = tables.drawn[sample_.drawn_row_[s]];
-            const float g = star.g_mag;
-            const float g_error = star.g_error_mag;
-            const float colour = star.colour_mag;
-            const float colour_error = star.colour_error_mag;
-            const bool has_colour = std::isfinite(colour);
-            const bool has_magnitude = std::isfinite(g);
-            const photometry::Category fixed = star.fixed;
-            const float* quantiles = sample_.quantileTable(tables, star, refilled_quantiles);
-            const photometry::Category* tabulated =
-                star.categories == PreparedSample::kNoRow
-                    ? nullptr
-                    : &tables.categories[star.categories * PreparedSample::kQuantiles];
-            if (!certainty_known) {
-                const auto [nearest, farthest] =
-                    std::minmax_element(quantiles, quantiles + PreparedSample::kQuantiles);
-                if (const auto category = certainCategory({*nearest, *farthest, within, radii, tabulated,
-                                                           fixed, g, g_error, colour, colour_error},
-                                                          classes_, normal_.largestMagnitude())) {
-                    tallyCertain(*category);
-                    continue;
-                }
-            }
-            for (int d = 0; d < settings_.draws; ++d) {
-                const std::uint64_t bits_distance = random();
-                const std::uint64_t bits_photometry = random();
-                // 24 bits of u: the same u decides membership (u < P(d < R), exact) and the distance modulus
-                // (quantile function at u), so both come from one consistent distance.
-                const float u = static_cast<float>(bits_distance >> 40) * 0x1.0p-24f;
-                const float position = u * kQuantileSteps;
-                const int node = std::min(static_cast<int>(position), PreparedSample::kQuantiles - 2);
-                const float modulus = quantiles[node] + (position - static_cast<float>(node)) *
-                                                            (quantiles[node + 1] - quantiles[node]);
-                const float abs_g =
-                    g + g_error * normal_(static_cast<std::uint32_t>(bits_photometry)) - modulus;
-                photometry::Category assigned = kUnclassified;
-                if (fixed != PreparedSample::kDrawnCategory) {
-                    assigned = fixed;
-                } else if (tabulated != nullptr) {
-                    assigned = tabulated[static_cast<int>(position + 0.5f)];
-                } else if (has_colour && has_magnitude) {
-                    const float drawn_colour =
-                        colour + colour_error * normal_(static_cast<std::uint32_t>(bits_photometry >> 32));
-                    assigned = classes_.lookup(drawn_colour, abs_g);
-                } else if (has_magnitude) {
-                    assigned = classes_.lookupMagnitudeOnly(abs_g);
-                }
-                ++classes_seen[static_cast<std::size_t>(photometry::classOfCategory(assigned))];
-                std::uint32_t* draw_counts = &counts[assigned * draws + static_cast<std::size_t>(d)];
-                for (std::size_t r = 0; r < radii; ++r) {
-                    draw_counts[r * photometry::kCategoryCount * draws] += u < within[r] ? 1u : 0u;
-                }
-            }
-            keepClasses(s, classes_seen, star_classes);
-        }
-    }
-
-    /// Star s's class frequencies into star_classes, unless the settings ask for none.
-    void keepClasses(std::size_t s, const std::array<std::uint32_t, photometry::kClassCount>& classes_seen,
-                     StarClassCounts& star_classes) const {
-        if (settings_.per_star_classes) {
-            star_classes.set(s - begin_, classes_seen);
-        }
-    }
-
-    const PreparedSample& sample_;
-    const photometry::ClassGrid& classes_;
-    const DrawSettings& settings_;
-    std::size_t begin_, end_; // the stars drawn
-    detail::FastNormal normal_;
-};
 
 DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
                        const DrawSettings& settings) {

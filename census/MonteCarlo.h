@@ -8,7 +8,9 @@
 // its own random stream (seed, row index), so the result is identical for any thread count, and the stars of
 // a sample selected from another (the order constructors) draw what they drew there. A star whose
 // draws cannot differ (membership probability exactly 0 or 1 at every radius, and every outcome its errors
-// allow inside cells of one category) is tallied without drawing: the numbers the draws would give.
+// allow inside cells of one category) is tallied without drawing: the numbers the draws would give. A
+// sample that is drawn only once is best drawn as it is prepared (prepareAndDraw): no table is then kept for
+// the draws, or tabulated a second time for them.
 #include "census/Membership.h"
 #include "census/RowClassification.h"
 #include "photometry/ClassGrid.h"
@@ -36,6 +38,9 @@ struct DrawSettings {
     // hosts.fits read)
     bool per_star_classes = true;
 };
+
+struct DrawTallies;
+struct DrawnSample;
 
 /// The per-star inputs of the Monte Carlo, as a structure of arrays.
 class PreparedSample {
@@ -92,6 +97,16 @@ class PreparedSample {
 
   private:
     friend class SampleDrawer;
+    friend DrawnSample prepareAndDraw(std::span<const photometry::CatalogRow> rows,
+                                      std::vector<double> radii_pc, const MembershipSettings& membership,
+                                      const RowClassRules& rules, const photometry::Classifier& classifier,
+                                      const photometry::ClassGrid& grid, const DrawSettings& settings);
+    // The order constructor; with draw_now, each star's draws are made as soon as its posterior and
+    // categories are, into *tallies, and no draw tables are kept.
+    PreparedSample(std::span<const photometry::CatalogRow> rows, std::span<const std::uint32_t> order,
+                   std::vector<double> radii_pc, const MembershipSettings& membership,
+                   const RowClassRules& rules, unsigned threads, const photometry::Classifier* classifier,
+                   const photometry::ClassGrid* grid, const DrawSettings* draw_now, DrawTallies* tallies);
     static constexpr std::uint32_t kNoRow = 0xffffffffu;
     // In DrawnStar::posterior: the star's table is its block's gaussians[posterior & ~kGaussianRow]
     static constexpr std::uint32_t kGaussianRow = 0x80000000u;
@@ -210,6 +225,21 @@ DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid
 /// those rows alone.
 DrawTallies drawSample(const PreparedSample& sample, const photometry::ClassGrid& classes,
                        const DrawSettings& settings, std::size_t begin, std::size_t end);
+
+/// A sample and its draws.
+struct DrawnSample {
+    PreparedSample sample;
+    DrawTallies tallies;
+};
+
+/// PreparedSample (with the classifier and grid) and drawSample in one pass, for a sample drawn only once
+/// (no system census): each star is drawn while its posterior and category table are at hand, so no table
+/// is kept for the draws or tabulated again for them. The tallies are drawSample's; the sample is as after
+/// releaseDrawTables().
+DrawnSample prepareAndDraw(std::span<const photometry::CatalogRow> rows, std::vector<double> radii_pc,
+                           const MembershipSettings& membership, const RowClassRules& rules,
+                           const photometry::Classifier& classifier, const photometry::ClassGrid& grid,
+                           const DrawSettings& settings);
 
 /// Adds the tallies of further stars (`more`: same draws and radii, the stars after those of `into`).
 void appendTallies(DrawTallies& into, const DrawTallies& more);

@@ -19,8 +19,6 @@
 #include "reports/SampleOutput.h"
 #include "reports/SystemsOutput.h"
 
-#include <malloc.h>
-
 #include <chrono>
 #include <ctime>
 #include <future>
@@ -156,7 +154,7 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     hosts.seed = census.draws.seed;
     hosts.threads = census.draws.threads;
     census::hostRadiusIndex(hosts, census.radii_pc); // a bad --hosts-radius fails before any work
-    StageProgress progress(log, settings.show_progress, 4);
+    StageProgress progress(log, settings.show_progress, census.find_systems ? 4 : 3);
 
     auto start = Clock::now();
     progress.begin("scan");
@@ -215,35 +213,39 @@ PipelineResult runCensusPipeline(const PipelineSettings& settings, std::ostream&
     result.candidates_after_cuts = rows.size();
 
     start = Clock::now();
-    progress.begin("posteriors");
+    // Only the system census draws the sample again: without it, each star is drawn as it is prepared
+    // (prepareAndDraw), so no draw table is kept or tabulated twice, and the draws are timed with the
+    // posteriors.
+    progress.begin(census.find_systems ? "posteriors" : "posteriors and draws");
     const photometry::Classifier& classifier = photometry::Classifier::shipped();
     const auto grid = photometry::ClassGrid::fromClassifier(classifier);
     const census::RowClassRules class_rules = census::rowClassRules(census);
-    census::PreparedSample sample(rows, census.radii_pc, census.membership, class_rules, census.draws.threads,
-                                  &classifier, &grid);
-    result.timings.posteriors_s = secondsSince(start);
-
-    start = Clock::now();
-    progress.begin("draws");
     ProgressCounters draw_progress;
     census::DrawSettings draw_settings = census.draws;
     draw_settings.progress = &draw_progress;
-    const census::DrawTallies tallies = [&] {
+    census::DrawnSample drawn = [&] {
+        if (!census.find_systems) {
+            const TerminalProgress display("Monte Carlo", "star-draws", draw_progress,
+                                           settings.show_progress);
+            return census::prepareAndDraw(rows, census.radii_pc, census.membership, class_rules, classifier,
+                                          grid, draw_settings);
+        }
+        census::PreparedSample prepared(rows, census.radii_pc, census.membership, class_rules,
+                                        census.draws.threads, &classifier, &grid);
+        result.timings.posteriors_s = secondsSince(start);
+        start = Clock::now();
+        progress.begin("draws");
         const TerminalProgress display("Monte Carlo", "star-draws", draw_progress, settings.show_progress);
-        return census::drawSample(sample, grid, draw_settings);
+        census::DrawTallies drawn_tallies = census::drawSample(prepared, grid, draw_settings);
+        return census::DrawnSample{std::move(prepared), std::move(drawn_tallies)};
     }();
-    if (!census.find_systems) {
-        // Only the system census draws again. The tables are many block-sized vectors in the worker
-        // threads' malloc arenas, which keep freed pages: trimming hands them back (399,783-candidate
-        // fractions-only run: peak RSS 187 -> 161 MiB; without the trim, 183).
-        sample.releaseDrawTables();
-        malloc_trim(0);
-    }
+    const census::PreparedSample& sample = drawn.sample;
+    const census::DrawTallies& tallies = drawn.tallies;
     std::vector<double> expected;
     for (std::size_t r = 0; r < census.radii_pc.size(); ++r) {
         expected.push_back(sample.expectedCount(r));
     }
-    result.timings.draws_s = secondsSince(start);
+    (census.find_systems ? result.timings.draws_s : result.timings.posteriors_s) = secondsSince(start);
 
     start = Clock::now();
     progress.begin("outputs");

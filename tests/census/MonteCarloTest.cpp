@@ -44,6 +44,20 @@ std::vector<photometry::CatalogRow> toyStars(int n, std::uint64_t seed) {
     return rows;
 }
 
+/// A simulated neighbourhood out to radius_max_pc (injection and recovery) with the shipped classifier and
+/// its grid, as the pipeline classifies it.
+struct ShippedNeighbourhood {
+    census::mock::MockResult mock;
+    const photometry::Classifier& classifier = photometry::Classifier::shipped();
+    photometry::ClassGrid grid = photometry::ClassGrid::fromClassifier(classifier);
+};
+
+ShippedNeighbourhood shippedNeighbourhood(double radius_max_pc, std::uint64_t seed) {
+    census::mock::MockSettings settings;
+    settings.radius_max_pc = radius_max_pc;
+    return {census::mock::simulateNeighbourhood(settings, seed)};
+}
+
 } // namespace
 
 TEST_CASE("Monte Carlo results do not depend on the thread count") {
@@ -258,11 +272,7 @@ TEST_CASE("with a parallax S/N above 20, the Monte Carlo gives each object its s
     // (exact classifier for sample.fits; grid, quantile tables and fixed classes in the draws). Objects on a
     // class boundary with small errors, or late M/L dwarfs the near infrared names, used to get the grid
     // cell's class instead.
-    census::mock::MockSettings settings;
-    settings.radius_max_pc = 20.0;
-    const auto mock = census::mock::simulateNeighbourhood(settings, 21);
-    const photometry::Classifier& classifier = photometry::Classifier::shipped();
-    const auto grid = photometry::ClassGrid::fromClassifier(classifier);
+    const auto [mock, classifier, grid] = shippedNeighbourhood(20.0, 21);
     const census::RowClassRules rules;
     const census::PreparedSample sample(mock.catalog, {20.0}, {}, rules, 2, &classifier, &grid);
     constexpr int kDraws = 200;
@@ -338,4 +348,41 @@ TEST_CASE("a sample whose draw tables are released keeps its membership and refu
     CHECK_THROWS_AS(census::drawSample(sample, toyGrid(), {.draws = 10}), std::logic_error);
     const std::vector<std::uint32_t> order = {3, 1};
     CHECK_THROWS_AS(census::PreparedSample(sample, order), std::logic_error);
+}
+
+TEST_CASE("a sample drawn as it is prepared gives drawSample's tallies for any thread count and keeps no "
+          "draw tables") {
+    // A simulated 30 pc neighbourhood (seed 23) with the shipped classifier and grid, at 10, 20 and 30 pc:
+    // certain stars, Gaussian and gridded posteriors, tabulated categories (near-infrared and boundary
+    // stars) and fixed classes all occur.
+    const auto [mock, classifier, grid] = shippedNeighbourhood(30.0, 23);
+    const census::RowClassRules rules;
+    const std::vector<double> radii = {10.0, 20.0, 30.0};
+    const census::PreparedSample prepared(mock.catalog, radii, {}, rules, 2, &classifier, &grid);
+    const census::DrawSettings settings{.draws = 60, .seed = 5, .threads = 1};
+    const auto expected = census::drawSample(prepared, grid, settings);
+    REQUIRE(mock.catalog.size() > 2000);
+    for (const unsigned threads : {1u, 2u, 3u}) {
+        CAPTURE(threads);
+        ProgressCounters progress;
+        census::DrawSettings threaded = settings;
+        threaded.threads = threads;
+        threaded.progress = &progress;
+        const census::DrawnSample drawn =
+            census::prepareAndDraw(mock.catalog, radii, {}, rules, classifier, grid, threaded);
+        CHECK(drawn.tallies.counts == expected.counts);
+        CHECK(drawn.tallies.star_classes == expected.star_classes);
+        CHECK(progress.items_done == static_cast<std::int64_t>(mock.catalog.size()) * settings.draws);
+        REQUIRE(drawn.sample.size() == prepared.size());
+        for (std::size_t r = 0; r < radii.size(); ++r) {
+            CHECK(drawn.sample.expectedCount(r) == prepared.expectedCount(r));
+        }
+        CHECK_THROWS_AS(census::drawSample(drawn.sample, grid, settings), std::logic_error);
+    }
+    census::DrawSettings without_classes = settings;
+    without_classes.per_star_classes = false;
+    const census::DrawnSample drawn =
+        census::prepareAndDraw(mock.catalog, radii, {}, rules, classifier, grid, without_classes);
+    CHECK(drawn.tallies.counts == expected.counts);
+    CHECK(drawn.tallies.star_classes.empty());
 }
