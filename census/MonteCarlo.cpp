@@ -69,18 +69,18 @@ struct StarDrawInputs {
     float g_mag, g_error_mag, colour_mag, colour_error_mag;
 };
 
-/// The category every draw of a star must give, when no draw can change it: membership certain at
-/// every radius (probability exactly 0 or 1) and the star's whole range of outcomes (the extreme
-/// distance quantiles, normal deviates up to FastNormal's largest, `largest_deviate`) inside cells of one
-/// category.
+/// True when the star's membership is certain at every radius: probability exactly 0 or 1.
+bool membershipCertain(const StarDrawInputs& star) {
+    return std::none_of(star.within, star.within + star.radii, [](float p) { return p > 0.0f && p < 1.0f; });
+}
+
+/// The category every draw of a star must give, when no draw can change it: its fixed category, or the
+/// star's whole range of outcomes (the extreme distance quantiles, normal deviates up to FastNormal's
+/// largest, `largest_deviate`) inside cells of one category. With its membership certain too, the star
+/// is tallied without drawing; without, its draws decide only the membership.
 std::optional<photometry::Category>
-certainCategory(const StarDrawInputs& star, const photometry::ClassGrid& grid, float largest_deviate) {
+categoryOfEveryDraw(const StarDrawInputs& star, const photometry::ClassGrid& grid, float largest_deviate) {
     constexpr int kQuantiles = PreparedSample::kQuantiles;
-    for (std::size_t r = 0; r < star.radii; ++r) {
-        if (star.within[r] > 0.0f && star.within[r] < 1.0f) {
-            return std::nullopt;
-        }
-    }
     if (star.fixed != PreparedSample::kDrawnCategory) {
         return star.fixed;
     }
@@ -200,13 +200,11 @@ class SampleDrawer {
         for (std::size_t r = 0; r < radii; ++r) {
             certain_counts[r * photometry::kCategoryCount + category] += within[r] >= 1.0f ? 1u : 0u;
         }
-        std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
-        classes_seen[static_cast<std::size_t>(photometry::classOfCategory(category))] =
-            static_cast<std::uint32_t>(settings_.draws);
-        keepClasses(s, classes_seen, accumulators.tallies.star_classes);
+        keepSingleClass(s, category, accumulators);
     }
 
-    /// Star s's draws, from its own random stream.
+    /// Star s's draws, from its own random stream. A star of fixed category (star.quantiles may then be
+    /// nullptr) draws only its membership, from the same numbers of the stream as the full draw.
     void drawStar(std::size_t s, const StarInputs& star, unsigned thread,
                   DrawAccumulators& accumulators) const {
         const std::size_t radii = sample_.radii_pc_.size();
@@ -216,16 +214,32 @@ class SampleDrawer {
         const float* within = &sample_.probability_within_[s * radii];
         std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
         const auto draws = static_cast<std::size_t>(settings_.draws);
+        std::vector<std::uint32_t>& counts = accumulators.counts[thread];
+        // Draw d's count of the star in `category` at each radius whose membership probability exceeds u.
+        const auto countMember = [&](photometry::Category category, std::size_t d, float u) {
+            std::uint32_t* draw_counts = &counts[category * draws + d];
+            for (std::size_t r = 0; r < radii; ++r) {
+                draw_counts[r * photometry::kCategoryCount * draws] += u < within[r] ? 1u : 0u;
+            }
+        };
+        // 24 bits of u: the same u decides membership (u < P(d < R), exact) and the distance modulus
+        // (quantile function at u), so both come from one consistent distance.
+        const auto uniform = [](std::uint64_t bits) { return static_cast<float>(bits >> 40) * 0x1.0p-24f; };
+        if (star.fixed != PreparedSample::kDrawnCategory) {
+            for (std::size_t d = 0; d < draws; ++d) {
+                const float u = uniform(random());
+                random(); // the photometry's bits, unread: the next draw takes the full loop's numbers
+                countMember(star.fixed, d, u);
+            }
+            keepSingleClass(s, star.fixed, accumulators);
+            return;
+        }
         const bool has_colour = std::isfinite(star.colour_mag);
         const bool has_magnitude = std::isfinite(star.g_mag);
         const float* quantiles = star.quantiles;
-        std::vector<std::uint32_t>& counts = accumulators.counts[thread];
-        for (int d = 0; d < settings_.draws; ++d) {
-            const std::uint64_t bits_distance = random();
+        for (std::size_t d = 0; d < draws; ++d) {
+            const float u = uniform(random());
             const std::uint64_t bits_photometry = random();
-            // 24 bits of u: the same u decides membership (u < P(d < R), exact) and the distance modulus
-            // (quantile function at u), so both come from one consistent distance.
-            const float u = static_cast<float>(bits_distance >> 40) * 0x1.0p-24f;
             const float position = u * kQuantileSteps;
             const int node = std::min(static_cast<int>(position), PreparedSample::kQuantiles - 2);
             const float modulus = quantiles[node] + (position - static_cast<float>(node)) *
@@ -234,9 +248,7 @@ class SampleDrawer {
                                 star.g_error_mag * normal_(static_cast<std::uint32_t>(bits_photometry)) -
                                 modulus;
             photometry::Category assigned = kUnclassified;
-            if (star.fixed != PreparedSample::kDrawnCategory) {
-                assigned = star.fixed;
-            } else if (star.tabulated != nullptr) {
+            if (star.tabulated != nullptr) {
                 assigned = star.tabulated[static_cast<int>(position + 0.5f)];
             } else if (has_colour && has_magnitude) {
                 const float drawn_colour =
@@ -247,10 +259,7 @@ class SampleDrawer {
                 assigned = classes_.lookupMagnitudeOnly(abs_g);
             }
             ++classes_seen[static_cast<std::size_t>(photometry::classOfCategory(assigned))];
-            std::uint32_t* draw_counts = &counts[assigned * draws + static_cast<std::size_t>(d)];
-            for (std::size_t r = 0; r < radii; ++r) {
-                draw_counts[r * photometry::kCategoryCount * draws] += u < within[r] ? 1u : 0u;
-            }
+            countMember(assigned, d, u);
         }
         keepClasses(s, classes_seen, accumulators.tallies.star_classes);
     }
@@ -269,29 +278,54 @@ class SampleDrawer {
             // Without a grid in the sample every star is drawn, and tested for certainty here.
             const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
             const PreparedSample::DrawnStar& star = tables.drawn[sample_.drawn_row_[s]];
-            const StarInputs inputs{sample_.quantileTable(tables, star, refilled_quantiles),
-                                    star.categories == PreparedSample::kNoRow
-                                        ? nullptr
-                                        : &tables.categories[star.categories * PreparedSample::kQuantiles],
-                                    star.fixed,
-                                    star.g_mag,
-                                    star.g_error_mag,
-                                    star.colour_mag,
-                                    star.colour_error_mag};
+            StarInputs inputs{nullptr, // a fixed category needs no distance modulus, and keeps no table
+                              star.categories == PreparedSample::kNoRow
+                                  ? nullptr
+                                  : &tables.categories[star.categories * PreparedSample::kQuantiles],
+                              star.fixed,
+                              star.g_mag,
+                              star.g_error_mag,
+                              star.colour_mag,
+                              star.colour_error_mag};
+            if (star.fixed == PreparedSample::kDrawnCategory) {
+                inputs.quantiles = sample_.quantileTable(tables, star, refilled_quantiles);
+            }
             if (!certainty_known) {
                 const auto [nearest, farthest] =
-                    std::minmax_element(inputs.quantiles, inputs.quantiles + PreparedSample::kQuantiles);
-                if (const auto category =
-                        certainCategory({*nearest, *farthest, &sample_.probability_within_[s * radii], radii,
-                                         inputs.tabulated, inputs.fixed, inputs.g_mag, inputs.g_error_mag,
-                                         inputs.colour_mag, inputs.colour_error_mag},
-                                        classes_, normal_.largestMagnitude())) {
-                    tallyCertain(s, *category, thread, accumulators);
-                    continue;
+                    inputs.quantiles == nullptr
+                        ? std::pair(0.0f, 0.0f)
+                        : std::pair(*std::min_element(inputs.quantiles,
+                                                      inputs.quantiles + PreparedSample::kQuantiles),
+                                    *std::max_element(inputs.quantiles,
+                                                      inputs.quantiles + PreparedSample::kQuantiles));
+                const StarDrawInputs test{nearest,
+                                          farthest,
+                                          &sample_.probability_within_[s * radii],
+                                          radii,
+                                          inputs.tabulated,
+                                          inputs.fixed,
+                                          inputs.g_mag,
+                                          inputs.g_error_mag,
+                                          inputs.colour_mag,
+                                          inputs.colour_error_mag};
+                if (const auto category = categoryOfEveryDraw(test, classes_, normal_.largestMagnitude())) {
+                    if (membershipCertain(test)) {
+                        tallyCertain(s, *category, thread, accumulators);
+                        continue;
+                    }
+                    inputs.fixed = *category;
                 }
             }
             drawStar(s, inputs, thread, accumulators);
         }
+    }
+
+    /// Star s's class frequencies when every draw gave `category`.
+    void keepSingleClass(std::size_t s, photometry::Category category, DrawAccumulators& accumulators) const {
+        std::array<std::uint32_t, photometry::kClassCount> classes_seen{};
+        classes_seen[static_cast<std::size_t>(photometry::classOfCategory(category))] =
+            static_cast<std::uint32_t>(settings_.draws);
+        keepClasses(s, classes_seen, accumulators.tallies.star_classes);
     }
 
     /// Star s's class frequencies into star_classes, unless the settings ask for none.
@@ -397,32 +431,41 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                             star.g_error_mag,
                                             star.colour_mag,
                                             star.colour_error_mag};
-                if (const auto category = certainCategory(inputs, *grid, largest_deviate)) {
-                    if (drawer) {
-                        drawer->tallyCertain(s, *category, thread, *accumulators);
-                    } else {
-                        certain_categories_[s] = *category;
+                if (const auto category = categoryOfEveryDraw(inputs, *grid, largest_deviate)) {
+                    if (membershipCertain(inputs)) {
+                        if (drawer) {
+                            drawer->tallyCertain(s, *category, thread, *accumulators);
+                        } else {
+                            certain_categories_[s] = *category;
+                        }
+                        continue; // every draw is known: no tables
                     }
-                    continue; // every draw is known: no tables
+                    star.fixed = *category; // the draws decide the membership alone
                 }
             }
+            // A star of fixed category draws its membership alone: it keeps no quantile or category table.
+            const bool keeps_tables = star.fixed == kDrawnCategory;
             if (drawer) {
-                posterior.tabulateQuantiles();
+                if (keeps_tables) {
+                    posterior.tabulateQuantiles();
+                }
                 drawer->drawStar(s,
-                                 {posterior.distanceModulusQuantiles().data(),
-                                  tabulated ? categories.data() : nullptr, star.fixed, star.g_mag,
-                                  star.g_error_mag, star.colour_mag, star.colour_error_mag},
+                                 {keeps_tables ? posterior.distanceModulusQuantiles().data() : nullptr,
+                                  keeps_tables && tabulated ? categories.data() : nullptr, star.fixed,
+                                  star.g_mag, star.g_error_mag, star.colour_mag, star.colour_error_mag},
                                  thread, *accumulators);
                 continue;
             }
-            if (const auto gaussian = posterior.gaussianForm()) {
+            if (!keeps_tables) {
+                star.posterior = kNoRow;
+            } else if (const auto gaussian = posterior.gaussianForm()) {
                 star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables->gaussians.size());
                 tables->gaussians.push_back(*gaussian);
             } else {
                 star.posterior = static_cast<std::uint32_t>(tables->gridded.size());
                 tables->gridded.push_back({row.parallax_mas, row.parallax_error_mas});
             }
-            if (tabulated) {
+            if (tabulated && keeps_tables) {
                 star.categories = static_cast<std::uint32_t>(tables->categories.size() / kQuantiles);
                 tables->categories.insert(tables->categories.end(), categories.begin(), categories.end());
             }
@@ -487,12 +530,14 @@ PreparedSample::PreparedSample(const PreparedSample& source, std::span<const std
         const BlockTables& source_tables = source.block_tables_[from / kBlockStars];
         BlockTables& tables = block_tables_[s / kBlockStars];
         DrawnStar star = source_tables.drawn[source.drawn_row_[from]];
-        if ((star.posterior & kGaussianRow) != 0) {
-            tables.gaussians.push_back(source_tables.gaussians[star.posterior & ~kGaussianRow]);
-            star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size() - 1);
-        } else {
-            tables.gridded.push_back(source_tables.gridded[star.posterior]);
-            star.posterior = static_cast<std::uint32_t>(tables.gridded.size() - 1);
+        if (star.posterior != kNoRow) { // kNoRow: a fixed category, without a table
+            if ((star.posterior & kGaussianRow) != 0) {
+                tables.gaussians.push_back(source_tables.gaussians[star.posterior & ~kGaussianRow]);
+                star.posterior = kGaussianRow | static_cast<std::uint32_t>(tables.gaussians.size() - 1);
+            } else {
+                tables.gridded.push_back(source_tables.gridded[star.posterior]);
+                star.posterior = static_cast<std::uint32_t>(tables.gridded.size() - 1);
+            }
         }
         if (star.categories != kNoRow) {
             const auto first =

@@ -120,8 +120,10 @@ class PreparedSample {
     struct DrawnStar {
         float g_mag = 0.0f, g_error_mag = 0.0f;
         float colour_mag = 0.0f, colour_error_mag = 0.0f; // BP-RP, NaN if either band is missing
-        std::uint32_t posterior = 0;       // row in the block's gridded, or kGaussianRow | row in gaussians
-        std::uint32_t categories = kNoRow; // row in the block's categories, kNoRow without
+        // row in the block's gridded, or kGaussianRow | row in gaussians; kNoRow with a fixed category,
+        // whose draws read no distance modulus
+        std::uint32_t posterior = 0;
+        std::uint32_t categories = kNoRow;           // row in the block's categories, kNoRow without
         photometry::Category fixed = kDrawnCategory; // the category of every draw, or kDrawnCategory
     };
     // Per block of kBlockStars stars (MonteCarlo.cpp), the stars whose draws can differ and their tables:

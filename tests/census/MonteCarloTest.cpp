@@ -44,6 +44,21 @@ std::vector<photometry::CatalogRow> toyStars(int n, std::uint64_t seed) {
     return rows;
 }
 
+/// A star for the toy grid: BP-RP 1.3 with 1 mmag errors in BP and RP.
+photometry::CatalogRow toyStar(double parallax_mas, double parallax_error_mas, double g_mag,
+                               double g_error_mag) {
+    photometry::CatalogRow row;
+    row.parallax_mas = parallax_mas;
+    row.parallax_error_mas = parallax_error_mas;
+    row.g_mag = g_mag;
+    row.g_error_mag = g_error_mag;
+    row.bp_mag = g_mag + 0.5;
+    row.rp_mag = g_mag - 0.8;
+    row.bp_error_mag = 0.001;
+    row.rp_error_mag = 0.001;
+    return row;
+}
+
 /// A simulated neighbourhood out to radius_max_pc (injection and recovery) with the shipped classifier and
 /// its grid, as the pipeline classifies it.
 struct ShippedNeighbourhood {
@@ -194,20 +209,9 @@ TEST_CASE("stars whose draws cannot differ are tallied in every draw; stars on a
     // at both radii (the tallies the shortcut writes). Star 1 sits at 50 +- 2 mas (the 20 pc boundary;
     // 25 sigma beyond 10 pc) and on the K/M boundary (M_G 8.0) with 0.3 mag errors: it is drawn, and splits
     // between inside and outside 20 pc and between K and M.
-    std::vector<photometry::CatalogRow> rows(2);
-    rows[0].parallax_mas = 200.0;
-    rows[0].parallax_error_mas = 0.01;
-    rows[0].g_mag = 10.0;
-    rows[0].g_error_mag = 0.001;
-    rows[0].bp_mag = 10.5;
-    rows[0].rp_mag = 9.2;
-    rows[0].bp_error_mag = 0.001;
-    rows[0].rp_error_mag = 0.001;
-    rows[1] = rows[0];
-    rows[1].parallax_mas = 50.0; // 20 pc: M_G = g - 5 log10(20 / 10) = g - 1.505
-    rows[1].parallax_error_mas = 2.0;
-    rows[1].g_mag = 9.505;
-    rows[1].g_error_mag = 0.3;
+    // Star 1 at 20 pc: M_G = g - 5 log10(20 / 10) = g - 1.505.
+    const std::vector<photometry::CatalogRow> rows = {toyStar(200.0, 0.01, 10.0, 0.001),
+                                                      toyStar(50.0, 2.0, 9.505, 0.3)};
     const census::PreparedSample sample(rows, {10.0, 20.0}, census::MembershipSettings{},
                                         {.min_parallax_snr_to_classify = 0.0}, 1);
     REQUIRE(sample.probabilityWithin(0, 0) == 1.0f);
@@ -385,4 +389,34 @@ TEST_CASE("a sample drawn as it is prepared gives drawSample's tallies for any t
         census::prepareAndDraw(mock.catalog, radii, {}, rules, classifier, grid, without_classes);
     CHECK(drawn.tallies.counts == expected.counts);
     CHECK(drawn.tallies.star_classes.empty());
+}
+
+TEST_CASE("a star whose every draw gives one category draws only its membership") {
+    // Toy grid (K brighter than M_G = 8, M fainter). At 50 +- 2 mas (the 20 pc boundary), M_G ~ 11.5 with
+    // 1 mmag errors: every outcome its errors allow is M, so the draws decide only whether it is inside
+    // 20 pc. It must be M in every draw, inside in about half (binomial, 2000 draws: 0.5 +- 0.011; the
+    // posterior's own P(d < 20 pc) within 5 sigma), and draw the same with or without the grid given to
+    // the sample (the two ways the certainty test is made).
+    const std::vector<photometry::CatalogRow> rows = {toyStar(50.0, 2.0, 13.0, 0.001)};
+    const auto grid = toyGrid();
+    const census::RowClassRules rules{.min_parallax_snr_to_classify = 0.0};
+    const census::PreparedSample with_grid(rows, {20.0}, census::MembershipSettings{}, rules, 1, nullptr,
+                                           &grid);
+    const census::PreparedSample without_grid(rows, {20.0}, census::MembershipSettings{}, rules, 1);
+    const float within = with_grid.probabilityWithin(0, 0);
+    REQUIRE(within > 0.3f);
+    REQUIRE(within < 0.7f);
+    const int draws = 2000;
+    const census::DrawSettings settings{.draws = draws, .seed = 17, .threads = 1};
+    const auto tallies = census::drawSample(with_grid, grid, settings);
+    CHECK(tallies.counts == census::drawSample(without_grid, grid, settings).counts);
+    const auto m = photometry::categoryOf(StellarClass::M, 63.0);
+    int inside = 0;
+    for (int d = 0; d < draws; ++d) {
+        CHECK(tallies.classCount(d, 0, StellarClass::K) == 0u);
+        inside += static_cast<int>(tallies.count(d, 0, m));
+    }
+    CHECK(tallies.star_classes.draws(0, StellarClass::M) == static_cast<std::uint32_t>(draws));
+    const double sigma = std::sqrt(within * (1.0 - within) / draws);
+    CHECK(std::abs(static_cast<double>(inside) / draws - within) < 5.0 * sigma);
 }
