@@ -59,27 +59,27 @@ bool misnamedByGrid(const photometry::CatalogRow& row, const photometry::Classif
     return infrared || photometry::classOfCategory(cell) != exact.stellar_class;
 }
 
-/// What the certainty test reads of one star.
+/// What one star's draws, and the test whether they can differ, read besides its membership probabilities.
 struct StarDrawInputs {
-    float nearest_modulus_mag, farthest_modulus_mag; // the range of the distance draws
-    const float* within;                             // [radii] membership probabilities
-    std::size_t radii;
-    const photometry::Category* tabulated; // [kQuantiles], or nullptr
-    photometry::Category fixed;            // or the drawn marker
+    const float* quantiles;                // [kQuantiles] distance moduli; nullptr with a fixed category
+    const photometry::Category* tabulated; // [kQuantiles] categories, or nullptr
+    photometry::Category fixed;            // the category of every draw, or the drawn marker
     float g_mag, g_error_mag, colour_mag, colour_error_mag;
 };
 
 /// True when the star's membership is certain at every radius: probability exactly 0 or 1.
-bool membershipCertain(const StarDrawInputs& star) {
-    return std::none_of(star.within, star.within + star.radii, [](float p) { return p > 0.0f && p < 1.0f; });
+bool membershipCertain(std::span<const float> within) {
+    return std::none_of(within.begin(), within.end(), [](float p) { return p > 0.0f && p < 1.0f; });
 }
 
 /// The category every draw of a star must give, when no draw can change it: its fixed category, or the
-/// star's whole range of outcomes (the extreme distance quantiles, normal deviates up to FastNormal's
-/// largest, `largest_deviate`) inside cells of one category. With its membership certain too, the star
-/// is tallied without drawing; without, its draws decide only the membership.
-std::optional<photometry::Category>
-categoryOfEveryDraw(const StarDrawInputs& star, const photometry::ClassGrid& grid, float largest_deviate) {
+/// star's whole range of outcomes (the extreme distance moduli of its draws, normal deviates up to
+/// FastNormal's largest, `largest_deviate`) inside cells of one category. With its membership certain too,
+/// the star is tallied without drawing; without, its draws decide only the membership.
+std::optional<photometry::Category> categoryOfEveryDraw(const StarDrawInputs& star, float nearest_modulus_mag,
+                                                        float farthest_modulus_mag,
+                                                        const photometry::ClassGrid& grid,
+                                                        float largest_deviate) {
     constexpr int kQuantiles = PreparedSample::kQuantiles;
     if (star.fixed != PreparedSample::kDrawnCategory) {
         return star.fixed;
@@ -95,8 +95,8 @@ categoryOfEveryDraw(const StarDrawInputs& star, const photometry::ClassGrid& gri
     // Float rounding in the loop can move a value by a few ulps past these bounds: widen them.
     constexpr float kMarginMag = 1e-3f;
     const float g_reach = star.g_error_mag * largest_deviate + kMarginMag;
-    const float magnitude_low = star.g_mag - g_reach - star.farthest_modulus_mag;
-    const float magnitude_high = star.g_mag + g_reach - star.nearest_modulus_mag;
+    const float magnitude_low = star.g_mag - g_reach - farthest_modulus_mag;
+    const float magnitude_high = star.g_mag + g_reach - nearest_modulus_mag;
     if (!std::isfinite(star.colour_mag)) {
         return grid.uniformMagnitudeOnlyCategory(magnitude_low, magnitude_high);
     }
@@ -151,13 +151,12 @@ struct DrawAccumulators {
 /// its draw tables (run()), or of one star at a time while the sample is prepared (prepareAndDraw).
 class SampleDrawer {
   public:
-    /// What one star's draws read besides its membership probabilities.
-    struct StarInputs {
-        const float* quantiles;                // [kQuantiles] distance moduli
-        const photometry::Category* tabulated; // [kQuantiles] categories, or nullptr
-        photometry::Category fixed;            // or kDrawnCategory
-        float g_mag, g_error_mag, colour_mag, colour_error_mag;
-    };
+    /// A prepared star's draw inputs, with its quantile and category tables (either may be nullptr).
+    static StarDrawInputs inputsOf(const PreparedSample::DrawnStar& star, const float* quantiles,
+                                   const photometry::Category* tabulated) {
+        return {quantiles,        tabulated,       star.fixed,           star.g_mag,
+                star.g_error_mag, star.colour_mag, star.colour_error_mag};
+    }
 
     SampleDrawer(const PreparedSample& sample, const photometry::ClassGrid& classes,
                  const DrawSettings& settings, std::size_t begin, std::size_t end)
@@ -205,7 +204,7 @@ class SampleDrawer {
 
     /// Star s's draws, from its own random stream. A star of fixed category (star.quantiles may then be
     /// nullptr) draws only its membership, from the same numbers of the stream as the full draw.
-    void drawStar(std::size_t s, const StarInputs& star, unsigned thread,
+    void drawStar(std::size_t s, const StarDrawInputs& star, unsigned thread,
                   DrawAccumulators& accumulators) const {
         const std::size_t radii = sample_.radii_pc_.size();
         constexpr float kQuantileSteps = PreparedSample::kQuantiles - 1;
@@ -278,38 +277,27 @@ class SampleDrawer {
             // Without a grid in the sample every star is drawn, and tested for certainty here.
             const PreparedSample::BlockTables& tables = sample_.block_tables_[s / kBlockStars];
             const PreparedSample::DrawnStar& star = tables.drawn[sample_.drawn_row_[s]];
-            StarInputs inputs{nullptr, // a fixed category needs no distance modulus, and keeps no table
-                              star.categories == PreparedSample::kNoRow
-                                  ? nullptr
-                                  : &tables.categories[star.categories * PreparedSample::kQuantiles],
-                              star.fixed,
-                              star.g_mag,
-                              star.g_error_mag,
-                              star.colour_mag,
-                              star.colour_error_mag};
-            if (star.fixed == PreparedSample::kDrawnCategory) {
-                inputs.quantiles = sample_.quantileTable(tables, star, refilled_quantiles);
-            }
+            // A fixed category needs no distance modulus, and keeps no table.
+            StarDrawInputs inputs =
+                inputsOf(star,
+                         star.fixed == PreparedSample::kDrawnCategory
+                             ? sample_.quantileTable(tables, star, refilled_quantiles)
+                             : nullptr,
+                         star.categories == PreparedSample::kNoRow
+                             ? nullptr
+                             : &tables.categories[star.categories * PreparedSample::kQuantiles]);
             if (!certainty_known) {
-                const auto [nearest, farthest] =
-                    inputs.quantiles == nullptr
-                        ? std::pair(0.0f, 0.0f)
-                        : std::pair(*std::min_element(inputs.quantiles,
-                                                      inputs.quantiles + PreparedSample::kQuantiles),
-                                    *std::max_element(inputs.quantiles,
-                                                      inputs.quantiles + PreparedSample::kQuantiles));
-                const StarDrawInputs test{nearest,
-                                          farthest,
-                                          &sample_.probability_within_[s * radii],
-                                          radii,
-                                          inputs.tabulated,
-                                          inputs.fixed,
-                                          inputs.g_mag,
-                                          inputs.g_error_mag,
-                                          inputs.colour_mag,
-                                          inputs.colour_error_mag};
-                if (const auto category = categoryOfEveryDraw(test, classes_, normal_.largestMagnitude())) {
-                    if (membershipCertain(test)) {
+                float nearest = 0.0f; // read only for a drawn category, which has a table
+                float farthest = 0.0f;
+                if (inputs.quantiles != nullptr) {
+                    const auto [low, high] =
+                        std::minmax_element(inputs.quantiles, inputs.quantiles + PreparedSample::kQuantiles);
+                    nearest = *low;
+                    farthest = *high;
+                }
+                if (const auto category = categoryOfEveryDraw(inputs, nearest, farthest, classes_,
+                                                              normal_.largestMagnitude())) {
+                    if (membershipCertain({&sample_.probability_within_[s * radii], radii})) {
                         tallyCertain(s, *category, thread, accumulators);
                         continue;
                     }
@@ -421,18 +409,12 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                                                posterior.distanceModulusQuantiles(), categories);
             }
             if (grid != nullptr) {
-                const StarDrawInputs inputs{posterior.nearestModulus(),
-                                            posterior.farthestModulus(),
-                                            within,
-                                            radii,
-                                            tabulated ? categories.data() : nullptr,
-                                            star.fixed,
-                                            star.g_mag,
-                                            star.g_error_mag,
-                                            star.colour_mag,
-                                            star.colour_error_mag};
-                if (const auto category = categoryOfEveryDraw(inputs, *grid, largest_deviate)) {
-                    if (membershipCertain(inputs)) {
+                const StarDrawInputs inputs =
+                    SampleDrawer::inputsOf(star, nullptr, tabulated ? categories.data() : nullptr);
+                if (const auto category =
+                        categoryOfEveryDraw(inputs, posterior.nearestModulus(), posterior.farthestModulus(),
+                                            *grid, largest_deviate)) {
+                    if (membershipCertain({within, radii})) {
                         if (drawer) {
                             drawer->tallyCertain(s, *category, thread, *accumulators);
                         } else {
@@ -450,9 +432,10 @@ PreparedSample::PreparedSample(std::span<const photometry::CatalogRow> rows,
                     posterior.tabulateQuantiles();
                 }
                 drawer->drawStar(s,
-                                 {keeps_tables ? posterior.distanceModulusQuantiles().data() : nullptr,
-                                  keeps_tables && tabulated ? categories.data() : nullptr, star.fixed,
-                                  star.g_mag, star.g_error_mag, star.colour_mag, star.colour_error_mag},
+                                 SampleDrawer::inputsOf(
+                                     star,
+                                     keeps_tables ? posterior.distanceModulusQuantiles().data() : nullptr,
+                                     keeps_tables && tabulated ? categories.data() : nullptr),
                                  thread, *accumulators);
                 continue;
             }
